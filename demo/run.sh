@@ -1,0 +1,13 @@
+#!/usr/bin/env bash
+# The main job on the bundled demo scenario: installs what is missing, builds, and tabulates
+# the demo galaxy (Kestrel) with its resonances into demo/out/.
+set -euo pipefail
+here=$(cd "$(dirname "$0")/.." && pwd)
+cd "$here"
+bash cmake/install-deps.sh
+cmake -S . -B build -G Ninja -DCMAKE_BUILD_TYPE=Release -DUNDERTOW_TESTS=OFF -DUNDERTOW_BENCHMARKS=OFF >/dev/null
+cmake --build build --target undertow
+mkdir -p demo/out
+./build/undertow tabulate potentials/kestrel.toml --from 0.5 --to 20 --step 0.5 --format csv -o demo/out/kestrel-profile.csv
+./build/undertow tabulate potentials/kestrel.toml --from 1 --to 16 --step 1 --format markdown -o demo/out/kestrel-profile.md
+cat demo/out/kestrel-profile.md

@@ -1,0 +1,26 @@
+#pragma once
+// Output files appear whole or not at all: written to a temporary name beside the target and
+// renamed into place on commit(); a writer destroyed without commit() removes its temporary.
+#include <fstream>
+#include <string>
+
+namespace undertow::io {
+
+class AtomicFile {
+public:
+  explicit AtomicFile(std::string path); // throws InputError if the folder is not writable
+  ~AtomicFile();
+  AtomicFile(const AtomicFile&) = delete;
+  AtomicFile& operator=(const AtomicFile&) = delete;
+
+  std::ostream& stream() { return out_; }
+  const std::string& temporary_path() const { return tmp_; }
+  void commit(); // flushes, checks for write errors, renames; throws InputError on failure
+
+private:
+  std::string path_, tmp_;
+  std::ofstream out_;
+  bool done_ = false;
+};
+
+} // namespace undertow::io

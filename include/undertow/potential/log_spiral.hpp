@@ -1,0 +1,112 @@
+#pragma once
+// Logarithmic m-armed spiral in the tight-winding form (Lin & Shu 1964, ApJ 140, 646;
+// Binney & Tremaine 2008, §6.1):
+//   Phi = -A F(R) Z(z) cos(chi),  chi = m (psi - psi_p(t)) + m cot(p) ln(R / R_ref),
+// psi the Galactocentric azimuth in the sense of rotation, measured from the Sun's direction.
+// With A > 0 the potential troughs (the arms) lie at chi = 0: at R_ref, psi = psi_p, and
+// the arms trail for pitch p > 0. Envelope F = exp(-(R - R_ref)/R_s) T(R)/T(R_ref) with the
+// inner taper T = R^2 / (R^2 + R_in^2), which keeps the force finite at the centre;
+// vertical profile Z = sech^2(z / h).
+#include "undertow/detail/kernel.hpp"
+#include "undertow/units.hpp"
+
+namespace undertow::potential {
+
+struct LogSpiral {
+  static constexpr const char* kind = "log-spiral";
+  int m = 2;
+  double md = 2;     // m as a double, so the kernels stay in floating point
+  double cotp = 1;   // cot(pitch angle)
+  double rref = 8;   // kpc
+  double inv_rs = 0; // 1 / envelope scale length, 1/kpc (0: flat envelope)
+  double rin2 = 1;   // inner taper radius squared, kpc^2
+  double inv_h = 0;  // 1 / scale height, 1/kpc (0: no vertical decay)
+  double amp = 0;    // A, (km/s)^2
+  double norm = 1;   // 1 / T(R_ref)
+
+  // pitch in degrees (0, 90); envelope_kpc and height_kpc may be +infinity.
+  static LogSpiral make(int arms, double pitch_deg, double rref_kpc, double envelope_kpc,
+                        double taper_kpc, double height_kpc, double amplitude_kms2) {
+    if (arms < 1 || arms > 16)
+      throw detail::ParameterError("arms", "must be a whole number from 1 to 16, got " +
+                                               std::to_string(arms));
+    const double p = detail::finite(pitch_deg, "pitch_deg");
+    if (!(p > 0 && p < 90))
+      throw detail::ParameterError("pitch_deg", "must lie in (0, 90) degrees (trailing arms), got " +
+                                                    std::to_string(p));
+    LogSpiral s;
+    s.m = arms;
+    s.md = arms;
+    s.cotp = 1 / std::tan(p * units::deg);
+    s.rref = detail::positive(rref_kpc, "reference_radius_kpc");
+    if (!(envelope_kpc > 0))
+      throw detail::ParameterError("envelope_scale_kpc", "must be positive, got " +
+                                                             std::to_string(envelope_kpc));
+    s.inv_rs = 1 / envelope_kpc;
+    const double rin = detail::positive(taper_kpc, "inner_taper_kpc");
+    s.rin2 = rin * rin;
+    if (!(height_kpc > 0))
+      throw detail::ParameterError("scale_height_kpc", "must be positive, got " +
+                                                           std::to_string(height_kpc));
+    s.inv_h = 1 / height_kpc;
+    s.amp = detail::finite(amplitude_kms2, "amplitude_kms2");
+    s.norm = (s.rref * s.rref + s.rin2) / (s.rref * s.rref);
+    return s;
+  }
+
+  struct At {
+    double amp;    // A times the growth factor
+    double offset; // -m psi_p(t)
+  };
+  At at(double growth, double angle) const { return {amp * growth, -md * angle}; }
+
+  // Peak over azimuth of |dPhi/dR| at R_ref, z = 0, per unit amplitude A (1/kpc).
+  double peak_radial_force_per_amplitude() const {
+    const double d = rref * rref + rin2;
+    const double fprime = 2 * rref * rin2 / (d * d) * norm - inv_rs;
+    const double k = md * cotp / rref;
+    return std::sqrt(fprime * fprime + k * k);
+  }
+
+  template <class T> UNDERTOW_INLINE T potential_t(const At& w, const T& x, const T& y, const T& z) const {
+    using std::abs, std::atan2, std::cos, std::exp, std::log, std::sqrt;
+    const T R2 = x * x + y * y + detail::tiny2;
+    const T R = sqrt(R2);
+    const T F = exp((rref - R) * inv_rs) * norm * R2 / (R2 + rin2);
+    const T e = exp(-2.0 * abs(z) * inv_h);
+    const T Z = 4.0 * e / ((1.0 + e) * (1.0 + e));
+    const T chi = md * atan2(y, -x) + w.offset + md * cotp * log(R / rref);
+    return -w.amp * F * Z * cos(chi);
+  }
+  UNDERTOW_INLINE double potential(const At& w, double x, double y, double z) const {
+    return potential_t(w, x, y, z);
+  }
+
+  UNDERTOW_INLINE void add_accel(const At& w, double x, double y, double z, double& ax,
+                                 double& ay, double& az) const {
+    const double R2 = x * x + y * y + detail::tiny2;
+    const double R = std::sqrt(R2);
+    const double d = R2 + rin2;
+    const double E = std::exp((rref - R) * inv_rs) * norm;
+    const double F = E * R2 / d;
+    const double Fp = E * (2 * R * rin2 / (d * d) - inv_rs * R2 / d);
+    const double FoR = E * R / d;  // F / R
+    const double FoR2 = E / d;     // F / R^2
+    const double e = std::exp(-2.0 * std::fabs(z) * inv_h);
+    const double ope = 1.0 + e;
+    const double Z = 4.0 * e / (ope * ope);
+    const double Zp = -2.0 * inv_h * Z * std::copysign((1.0 - e) / ope, z);
+    const double chi = md * std::atan2(y, -x) + w.offset + md * cotp * std::log(R / rref);
+    const double c = std::cos(chi), s = std::sin(chi);
+    const double mk = md * cotp;
+    const double dR = -w.amp * Z * (Fp * c - FoR * s * mk); // dPhi/dR
+    const double dpsi = w.amp * Z * md * s * FoR2;           // (dPhi/dpsi) / R^2
+    const double dz = -w.amp * F * Zp * c;
+    const double iR = 1.0 / R;
+    ax -= dR * x * iR + dpsi * y;
+    ay -= dR * y * iR - dpsi * x;
+    az -= dz;
+  }
+};
+
+} // namespace undertow::potential

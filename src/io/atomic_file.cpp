@@ -1,0 +1,48 @@
+#include "undertow/io/atomic_file.hpp"
+
+#include <cerrno>
+#include <cstdio>
+#include <cstring>
+#include <filesystem>
+#include <unistd.h>
+
+#include "undertow/error.hpp"
+
+namespace undertow::io {
+
+AtomicFile::AtomicFile(std::string path) : path_(std::move(path)) {
+  const std::filesystem::path p(path_);
+  tmp_ = (p.parent_path() / ("." + p.filename().string() + ".tmp-" + std::to_string(::getpid())))
+             .string();
+  out_.open(tmp_, std::ios::binary | std::ios::trunc);
+  if (!out_)
+    throw InputError(SourcePlace{path_, 0, 0, {}},
+                     std::string("cannot write here: ") + std::strerror(errno));
+}
+
+AtomicFile::~AtomicFile() {
+  if (!done_) {
+    out_.close();
+    std::remove(tmp_.c_str());
+  }
+}
+
+void AtomicFile::commit() {
+  out_.flush();
+  const bool ok = bool(out_);
+  out_.close();
+  if (!ok || out_.fail()) {
+    std::remove(tmp_.c_str());
+    done_ = true;
+    throw InputError(SourcePlace{path_, 0, 0, {}}, "write failed (disk full?); nothing written");
+  }
+  if (std::rename(tmp_.c_str(), path_.c_str()) != 0) {
+    const std::string why = std::strerror(errno);
+    std::remove(tmp_.c_str());
+    done_ = true;
+    throw InputError(SourcePlace{path_, 0, 0, {}}, "cannot move the finished file into place: " + why);
+  }
+  done_ = true;
+}
+
+} // namespace undertow::io

@@ -1,0 +1,116 @@
+#include "undertow/io/table.hpp"
+
+#include <cctype>
+#include <cmath>
+#include <cstdio>
+#include <stdexcept>
+
+#include "undertow/error.hpp"
+
+namespace undertow::io {
+
+void Table::add_row(std::vector<double> row) {
+  if (row.size() != columns.size())
+    throw std::logic_error("table '" + title + "': row has " + std::to_string(row.size()) +
+                           " values for " + std::to_string(columns.size()) + " columns");
+  rows.push_back(std::move(row));
+}
+
+TableFormat table_format_from_name(const std::string& name) {
+  if (name == "csv") return TableFormat::csv;
+  if (name == "markdown" || name == "md") return TableFormat::markdown;
+  if (name == "latex" || name == "tex") return TableFormat::latex;
+  throw InputError("unknown table format '" + name + "' (csv, markdown, latex)");
+}
+
+std::string format_number(double v, int precision) {
+  if (std::isnan(v)) return "nan";
+  if (std::isinf(v)) return v > 0 ? "inf" : "-inf";
+  char b[64];
+  std::snprintf(b, sizeof b, "%.*g", precision, v);
+  return b;
+}
+
+namespace {
+
+// Units and numbers as LaTeX: "Msun/pc^3" -> "M$_\odot$/pc$^{3}$", 1.5e+10 -> 1.5\times10^{10}.
+std::string latex_unit(const std::string& u) {
+  std::string out;
+  for (std::size_t i = 0; i < u.size(); ++i) {
+    if (u.compare(i, 4, "Msun") == 0) {
+      out += "M$_\\odot$";
+      i += 3;
+    } else if (u[i] == '^') {
+      std::size_t j = i + 1;
+      while (j < u.size() && (std::isdigit(static_cast<unsigned char>(u[j])) || u[j] == '-')) ++j;
+      out += "$^{" + u.substr(i + 1, j - i - 1) + "}$";
+      i = j - 1;
+    } else {
+      out += u[i];
+    }
+  }
+  return out;
+}
+
+std::string latex_number(const std::string& s) {
+  const auto e = s.find('e');
+  if (e == std::string::npos) return s;
+  const int ex = std::stoi(s.substr(e + 1));
+  return s.substr(0, e) + "\\times10^{" + std::to_string(ex) + "}";
+}
+
+std::string header(const Column& c, bool latex) {
+  if (latex)
+    return (c.latex.empty() ? c.name : "$" + c.latex + "$") + (c.unit.empty() ? "" : " (" + latex_unit(c.unit) + ")");
+  return (c.plain.empty() ? c.name : c.plain) + (c.unit.empty() ? "" : " [" + c.unit + "]");
+}
+
+} // namespace
+
+void write_table(std::ostream& os, const Table& t, TableFormat f) {
+  const auto cell = [&](std::size_t r, std::size_t c) {
+    return format_number(t.rows[r][c], t.columns[c].precision);
+  };
+  switch (f) {
+  case TableFormat::csv:
+    if (!t.title.empty()) os << "# " << t.title << "\n";
+    for (const auto& n : t.notes) os << "# " << n << "\n";
+    for (std::size_t c = 0; c < t.columns.size(); ++c) os << (c ? "," : "") << t.columns[c].name;
+    os << "\n";
+    for (std::size_t r = 0; r < t.rows.size(); ++r) {
+      for (std::size_t c = 0; c < t.columns.size(); ++c) os << (c ? "," : "") << cell(r, c);
+      os << "\n";
+    }
+    break;
+  case TableFormat::markdown:
+    if (!t.title.empty()) os << "**" << t.title << "**\n\n";
+    os << "|";
+    for (const auto& c : t.columns) os << " " << header(c, false) << " |";
+    os << "\n|";
+    for (std::size_t c = 0; c < t.columns.size(); ++c) os << "---:|";
+    os << "\n";
+    for (std::size_t r = 0; r < t.rows.size(); ++r) {
+      os << "|";
+      for (std::size_t c = 0; c < t.columns.size(); ++c) os << " " << cell(r, c) << " |";
+      os << "\n";
+    }
+    if (!t.notes.empty()) os << "\n";
+    for (const auto& n : t.notes) os << n << "\n";
+    break;
+  case TableFormat::latex:
+    os << "% " << t.title << "\n\\begin{tabular}{" << std::string(t.columns.size(), 'r')
+       << "}\n\\toprule\n";
+    for (std::size_t c = 0; c < t.columns.size(); ++c)
+      os << (c ? " & " : "") << header(t.columns[c], true);
+    os << " \\\\\n\\midrule\n";
+    for (std::size_t r = 0; r < t.rows.size(); ++r) {
+      for (std::size_t c = 0; c < t.columns.size(); ++c) os << (c ? " & " : "") << "$" << latex_number(cell(r, c)) << "$";
+      os << " \\\\\n";
+    }
+    os << "\\bottomrule\n\\end{tabular}\n";
+    for (const auto& n : t.notes) os << "% " << n << "\n";
+    break;
+  }
+}
+
+} // namespace undertow::io

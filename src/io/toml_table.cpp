@@ -1,0 +1,136 @@
+#include "undertow/io/toml_table.hpp"
+
+#include <cmath>
+#include <fstream>
+#include <sstream>
+
+namespace undertow::io {
+
+TableReader::TableReader(const toml::table& t, std::string file, std::string context)
+    : t_(t), file_(std::move(file)), context_(std::move(context)) {}
+
+const toml::node* TableReader::get(std::string_view key) const {
+  used_.insert(std::string(key));
+  return t_.get(key);
+}
+
+bool TableReader::has(std::string_view key) const { return t_.contains(key); }
+
+SourcePlace TableReader::place(std::string_view key) const {
+  SourcePlace p{file_, 0, 0, context_.empty() ? std::string(key)
+                                              : (key.empty() ? context_ : context_ + "." + std::string(key))};
+  const toml::node* n = key.empty() ? nullptr : t_.get(key);
+  const auto& src = n ? n->source() : t_.source();
+  p.line = int(src.begin.line);
+  p.column = int(src.begin.column);
+  return p;
+}
+
+void TableReader::fail(std::string_view key, const std::string& what) const {
+  throw InputError(place(key), what);
+}
+
+std::optional<double> TableReader::optional_number(std::string_view key) const {
+  const toml::node* n = get(key);
+  if (!n) return std::nullopt;
+  double v;
+  if (auto f = n->as_floating_point()) v = f->get();
+  else if (auto i = n->as_integer()) v = double(i->get());
+  else fail(key, "must be a number");
+  if (!std::isfinite(v)) fail(key, "must be a finite number, got " + std::to_string(v));
+  return v;
+}
+
+double TableReader::number(std::string_view key) const {
+  if (auto v = optional_number(key)) return *v;
+  fail("", "missing required key '" + std::string(key) + "'");
+}
+
+double TableReader::number_or(std::string_view key, double fallback) const {
+  return optional_number(key).value_or(fallback);
+}
+
+int TableReader::integer(std::string_view key) const {
+  const toml::node* n = get(key);
+  if (!n) fail("", "missing required key '" + std::string(key) + "'");
+  auto i = n->as_integer();
+  if (!i) fail(key, "must be a whole number");
+  if (i->get() < -2147483647 || i->get() > 2147483647) fail(key, "is out of range");
+  return int(i->get());
+}
+
+std::string TableReader::string(std::string_view key) const {
+  const toml::node* n = get(key);
+  if (!n) fail("", "missing required key '" + std::string(key) + "'");
+  auto s = n->as_string();
+  if (!s) fail(key, "must be a string");
+  return s->get();
+}
+
+std::string TableReader::string_or(std::string_view key, std::string fallback) const {
+  return has(key) ? string(key) : (get(key), fallback);
+}
+
+std::vector<std::string> TableReader::strings(std::string_view key) const {
+  const toml::node* n = get(key);
+  if (!n) fail("", "missing required key '" + std::string(key) + "'");
+  auto a = n->as_array();
+  if (!a) fail(key, "must be an array of strings");
+  std::vector<std::string> out;
+  for (const auto& e : *a) {
+    auto s = e.as_string();
+    if (!s) fail(key, "must be an array of strings");
+    out.push_back(s->get());
+  }
+  return out;
+}
+
+const toml::table* TableReader::table(std::string_view key) const {
+  const toml::node* n = get(key);
+  if (!n) return nullptr;
+  auto t = n->as_table();
+  if (!t) fail(key, "must be a table");
+  return t;
+}
+
+const toml::array* TableReader::array_of_tables(std::string_view key) const {
+  const toml::node* n = get(key);
+  if (!n) return nullptr;
+  auto a = n->as_array();
+  if (!a || !a->is_array_of_tables()) fail(key, "must be written as [[" + std::string(key) + "]] tables");
+  return a;
+}
+
+void TableReader::finish(const std::vector<std::string>& valid) const {
+  for (const auto& [k, v] : t_) {
+    if (used_.count(k.str())) continue;
+    std::string list;
+    for (const auto& s : valid) list += (list.empty() ? "" : ", ") + s;
+    throw InputError(place(k.str()), "unknown key; valid keys here: " + list);
+  }
+}
+
+namespace {
+InputError from_parse_error(const toml::parse_error& e, const std::string& file) {
+  return InputError(SourcePlace{file, int(e.source().begin.line), int(e.source().begin.column), {}},
+                    std::string(e.description()));
+}
+} // namespace
+
+toml::table parse_toml_file(const std::string& path) {
+  std::ifstream in(path, std::ios::binary);
+  if (!in) throw InputError(SourcePlace{path, 0, 0, {}}, "cannot open file");
+  std::stringstream ss;
+  ss << in.rdbuf();
+  return parse_toml_text(ss.str(), path);
+}
+
+toml::table parse_toml_text(std::string_view text, const std::string& source_name) {
+  try {
+    return toml::parse(text, source_name);
+  } catch (const toml::parse_error& e) {
+    throw from_parse_error(e, source_name);
+  }
+}
+
+} // namespace undertow::io

@@ -1,0 +1,9 @@
+#!/usr/bin/env bash
+# Builds everything with warnings as errors and runs every test. Installs what is missing first.
+set -euo pipefail
+here=$(cd "$(dirname "$0")/.." && pwd)
+cd "$here"
+bash cmake/install-deps.sh
+cmake -S . -B build-test -G Ninja -DCMAKE_BUILD_TYPE=Release -DUNDERTOW_WERROR=ON >/dev/null
+cmake --build build-test
+ctest --test-dir build-test --output-on-failure -j 2 "$@"
