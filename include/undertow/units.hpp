@@ -23,8 +23,12 @@ inline constexpr double time_unit_myr = kpc_km / myr_s; // ≈ 977.79 Myr
 // A pattern speed in km/s/kpc times a time in Myr gives an angle in radians via this factor.
 inline constexpr double kms_per_kpc_times_myr = 1.0 / time_unit_myr;
 
-inline constexpr double myr_to_internal(double t_myr) { return t_myr / time_unit_myr; }
-inline constexpr double internal_to_myr(double t) { return t * time_unit_myr; }
+inline constexpr double myr_to_internal(double t_myr) {
+  return t_myr / time_unit_myr;
+}
+inline constexpr double internal_to_myr(double t) {
+  return t * time_unit_myr;
+}
 
 // 1 Msun/pc^3 in Msun/kpc^3.
 inline constexpr double msun_pc3 = 1e9;

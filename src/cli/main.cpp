@@ -27,8 +27,8 @@ struct TabulateArgs {
 int run_tabulate(const TabulateArgs& a) {
   using namespace undertow;
   const potential::Model model = potential::load_model_file(a.model_path);
-  const auto table = dynamics::model_profile(model, dynamics::radius_grid(a.from, a.to, a.step),
-                                             a.escape_to);
+  const auto table =
+      dynamics::model_profile(model, dynamics::radius_grid(a.from, a.to, a.step), a.escape_to);
   const auto fmt = io::table_format_from_name(a.format);
   std::string summary;
   const auto add = [&](double speed, int m, const std::string& label) {
@@ -47,7 +47,8 @@ int run_tabulate(const TabulateArgs& a) {
       std::istringstream lines(summary);
       std::string l;
       std::cout << "\n";
-      while (std::getline(lines, l)) std::cout << (fmt == io::TableFormat::csv ? "# " : "") << l << "\n";
+      while (std::getline(lines, l))
+        std::cout << (fmt == io::TableFormat::csv ? "# " : "") << l << "\n";
     }
   } else {
     io::AtomicFile f(a.output);

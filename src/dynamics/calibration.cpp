@@ -10,12 +10,15 @@ namespace undertow::dynamics {
 double calibrate(potential::Model& m, double r0_kpc, double theta0_kms,
                  const std::vector<std::string>& labels) {
   if (!(r0_kpc > 0) || !std::isfinite(r0_kpc))
-    throw InputError("calibration: radius_kpc must be positive, got " + std::to_string(r0_kpc));
+    throw InputError("calibration: radius_kpc must be positive, got " +
+                     undertow::detail::num(r0_kpc));
   if (!(theta0_kms > 0) || !std::isfinite(theta0_kms))
-    throw InputError("calibration: speed_kms must be positive, got " + std::to_string(theta0_kms));
+    throw InputError("calibration: speed_kms must be positive, got " +
+                     undertow::detail::num(theta0_kms));
   if (labels.empty()) throw InputError("calibration: rescale names no component");
   std::set<std::size_t> chosen;
-  for (const auto& l : labels) chosen.insert(m.component_index(l));
+  for (const auto& l : labels)
+    chosen.insert(m.component_index(l));
   double fixed = 0, scaled = 0; // contributions to v_c^2 at R0
   for (std::size_t i = 0; i < m.components.size(); ++i) {
     const double v2 = -r0_kpc * m.component_acceleration(i, {r0_kpc, 0, 0})[0];
@@ -23,9 +26,10 @@ double calibrate(potential::Model& m, double r0_kpc, double theta0_kms,
   }
   const double factor = (theta0_kms * theta0_kms - fixed) / scaled;
   if (!(factor > 0) || !std::isfinite(factor))
-    throw InputError("calibration: cannot reach " + std::to_string(theta0_kms) + " km/s at R = " +
-                     std::to_string(r0_kpc) + " kpc: the components not rescaled already give " +
-                     std::to_string(std::sqrt(fixed)) + " km/s");
+    throw InputError("calibration: cannot reach " + undertow::detail::num(theta0_kms) +
+                     " km/s at R = " + undertow::detail::num(r0_kpc) +
+                     " kpc: the components not rescaled already give " +
+                     undertow::detail::num(std::sqrt(fixed)) + " km/s");
   for (std::size_t i : chosen)
     std::visit([&](auto& c) { c.scale_mass(factor); }, m.components[i].shape);
   return factor;

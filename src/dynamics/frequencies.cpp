@@ -6,7 +6,9 @@ namespace undertow::dynamics {
 namespace {
 
 // -dPhi/dR in the midplane at azimuth 0 (axisymmetric, so any azimuth will do).
-double radial_pull(const Model& m, double R) { return -m.axisymmetric_acceleration({R, 0, 0})[0]; }
+double radial_pull(const Model& m, double R) {
+  return -m.axisymmetric_acceleration({R, 0, 0})[0];
+}
 
 // Richardson-extrapolated central difference: error O(h^4).
 template <class F> double derivative(F&& f, double x, double h) {
@@ -15,7 +17,9 @@ template <class F> double derivative(F&& f, double x, double h) {
   return (4 * d2 - d1) / 3;
 }
 
-double step(double R) { return 2e-3 * std::fmax(R, 1e-2); }
+double step(double R) {
+  return 2e-3 * std::fmax(R, 1e-2);
+}
 
 } // namespace
 
@@ -29,7 +33,9 @@ double circular_speed_component(const Model& m, std::size_t i, double R) {
   return v2 >= 0 ? std::sqrt(v2) : std::nan("");
 }
 
-double omega(const Model& m, double R) { return circular_speed(m, R) / R; }
+double omega(const Model& m, double R) {
+  return circular_speed(m, R) / R;
+}
 
 double kappa(const Model& m, double R) {
   // kappa^2 = d^2Phi/dR^2 + (3/R) dPhi/dR
@@ -42,8 +48,11 @@ double kappa(const Model& m, double R) {
 double nu(const Model& m, double R) {
   // nu^2 = d^2Phi/dz^2 at z = 0 = -d a_z / dz
   const double h = 1e-3 * std::fmax(std::fmin(R, 1.0), 1e-2);
-  const double n2 = -derivative([&](double z) { return m.axisymmetric_acceleration({R, 0, z})[2]; },
-                                0.0, h);
+  const double n2 = -derivative(
+      [&](double z) {
+        return m.axisymmetric_acceleration({R, 0, z})[2];
+      },
+      0.0, h);
   return n2 >= 0 ? std::sqrt(n2) : std::nan("");
 }
 

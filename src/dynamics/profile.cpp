@@ -11,13 +11,17 @@
 namespace undertow::dynamics {
 
 std::vector<double> radius_grid(double from, double to, double step) {
-  if (!(from > 0) || !std::isfinite(from)) throw InputError("radius grid: the first radius must be positive");
-  if (!(to >= from) || !std::isfinite(to)) throw InputError("radius grid: the last radius must not be below the first");
-  if (!(step > 0) || !std::isfinite(step)) throw InputError("radius grid: the step must be positive");
+  if (!(from > 0) || !std::isfinite(from))
+    throw InputError("radius grid: the first radius must be positive");
+  if (!(to >= from) || !std::isfinite(to))
+    throw InputError("radius grid: the last radius must not be below the first");
+  if (!(step > 0) || !std::isfinite(step))
+    throw InputError("radius grid: the step must be positive");
   const long n = std::lround(std::floor((to - from) / step * (1 + 1e-12))) + 1;
   if (n > 100000) throw InputError("radius grid: more than 100000 radii; use a larger step");
   std::vector<double> r;
-  for (long i = 0; i < n; ++i) r.push_back(from + double(i) * step);
+  for (long i = 0; i < n; ++i)
+    r.push_back(from + double(i) * step);
   return r;
 }
 
@@ -28,7 +32,8 @@ io::Table model_profile(const potential::Model& m, const std::vector<double>& ra
   t.columns.push_back({"R_kpc", "R", "R", "kpc", 6});
   t.columns.push_back({"vc_kms", "v_c", "v_c", "km/s", 6});
   for (const auto& c : m.components)
-    t.columns.push_back({"vc_" + c.label + "_kms", "v_{c," + c.label + "}", "v_c," + c.label, "km/s", 6});
+    t.columns.push_back(
+        {"vc_" + c.label + "_kms", "v_{c," + c.label + "}", "v_c," + c.label, "km/s", 6});
   t.columns.push_back({"omega_kms_kpc", "\\Omega", "Ω", "km/s/kpc", 6});
   t.columns.push_back({"kappa_kms_kpc", "\\kappa", "κ", "km/s/kpc", 6});
   t.columns.push_back({"nu_kms_kpc", "\\nu", "ν", "km/s/kpc", 6});
@@ -39,9 +44,11 @@ io::Table model_profile(const potential::Model& m, const std::vector<double>& ra
   t.columns.push_back({"mass_enclosed_msun", "M(<r)", "M(<r)", "Msun", 5});
   t.columns.push_back({"rho_midplane_msun_pc3", "\\rho(R, 0)", "ρ(R,0)", "Msun/pc^3", 5});
   if (escape)
-    t.notes.push_back(escape_to ? "escape speed to r = " + format_number_kpc(*escape_to) : "escape speed to infinity");
+    t.notes.push_back(escape_to ? "escape speed to r = " + format_number_kpc(*escape_to)
+                                : "escape speed to infinity");
   else
-    t.notes.push_back("no escape speed: the potential does not vanish at infinity (give a radius to escape to)");
+    t.notes.push_back(
+        "no escape speed: the potential does not vanish at infinity (give a radius to escape to)");
   t.notes.push_back("M(<r): mass inside the sphere of radius r = R; axisymmetric components only");
   for (double R : radii) {
     if (!(R > 0)) throw InputError("profile radii must be positive");

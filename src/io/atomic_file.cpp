@@ -40,7 +40,8 @@ void AtomicFile::commit() {
     const std::string why = std::strerror(errno);
     std::remove(tmp_.c_str());
     done_ = true;
-    throw InputError(SourcePlace{path_, 0, 0, {}}, "cannot move the finished file into place: " + why);
+    throw InputError(SourcePlace{path_, 0, 0, {}},
+                     "cannot move the finished file into place: " + why);
   }
   done_ = true;
 }

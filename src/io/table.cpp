@@ -42,7 +42,8 @@ std::string latex_unit(const std::string& u) {
       i += 3;
     } else if (u[i] == '^') {
       std::size_t j = i + 1;
-      while (j < u.size() && (std::isdigit(static_cast<unsigned char>(u[j])) || u[j] == '-')) ++j;
+      while (j < u.size() && (std::isdigit(static_cast<unsigned char>(u[j])) || u[j] == '-'))
+        ++j;
       out += "$^{" + u.substr(i + 1, j - i - 1) + "}$";
       i = j - 1;
     } else {
@@ -61,7 +62,8 @@ std::string latex_number(const std::string& s) {
 
 std::string header(const Column& c, bool latex) {
   if (latex)
-    return (c.latex.empty() ? c.name : "$" + c.latex + "$") + (c.unit.empty() ? "" : " (" + latex_unit(c.unit) + ")");
+    return (c.latex.empty() ? c.name : "$" + c.latex + "$") +
+           (c.unit.empty() ? "" : " (" + latex_unit(c.unit) + ")");
   return (c.plain.empty() ? c.name : c.plain) + (c.unit.empty() ? "" : " [" + c.unit + "]");
 }
 
@@ -74,28 +76,35 @@ void write_table(std::ostream& os, const Table& t, TableFormat f) {
   switch (f) {
   case TableFormat::csv:
     if (!t.title.empty()) os << "# " << t.title << "\n";
-    for (const auto& n : t.notes) os << "# " << n << "\n";
-    for (std::size_t c = 0; c < t.columns.size(); ++c) os << (c ? "," : "") << t.columns[c].name;
+    for (const auto& n : t.notes)
+      os << "# " << n << "\n";
+    for (std::size_t c = 0; c < t.columns.size(); ++c)
+      os << (c ? "," : "") << t.columns[c].name;
     os << "\n";
     for (std::size_t r = 0; r < t.rows.size(); ++r) {
-      for (std::size_t c = 0; c < t.columns.size(); ++c) os << (c ? "," : "") << cell(r, c);
+      for (std::size_t c = 0; c < t.columns.size(); ++c)
+        os << (c ? "," : "") << cell(r, c);
       os << "\n";
     }
     break;
   case TableFormat::markdown:
     if (!t.title.empty()) os << "**" << t.title << "**\n\n";
     os << "|";
-    for (const auto& c : t.columns) os << " " << header(c, false) << " |";
+    for (const auto& c : t.columns)
+      os << " " << header(c, false) << " |";
     os << "\n|";
-    for (std::size_t c = 0; c < t.columns.size(); ++c) os << "---:|";
+    for (std::size_t c = 0; c < t.columns.size(); ++c)
+      os << "---:|";
     os << "\n";
     for (std::size_t r = 0; r < t.rows.size(); ++r) {
       os << "|";
-      for (std::size_t c = 0; c < t.columns.size(); ++c) os << " " << cell(r, c) << " |";
+      for (std::size_t c = 0; c < t.columns.size(); ++c)
+        os << " " << cell(r, c) << " |";
       os << "\n";
     }
     if (!t.notes.empty()) os << "\n";
-    for (const auto& n : t.notes) os << n << "\n";
+    for (const auto& n : t.notes)
+      os << n << "\n";
     break;
   case TableFormat::latex:
     os << "% " << t.title << "\n\\begin{tabular}{" << std::string(t.columns.size(), 'r')
@@ -104,11 +113,13 @@ void write_table(std::ostream& os, const Table& t, TableFormat f) {
       os << (c ? " & " : "") << header(t.columns[c], true);
     os << " \\\\\n\\midrule\n";
     for (std::size_t r = 0; r < t.rows.size(); ++r) {
-      for (std::size_t c = 0; c < t.columns.size(); ++c) os << (c ? " & " : "") << "$" << latex_number(cell(r, c)) << "$";
+      for (std::size_t c = 0; c < t.columns.size(); ++c)
+        os << (c ? " & " : "") << "$" << latex_number(cell(r, c)) << "$";
       os << " \\\\\n";
     }
     os << "\\bottomrule\n\\end{tabular}\n";
-    for (const auto& n : t.notes) os << "% " << n << "\n";
+    for (const auto& n : t.notes)
+      os << "% " << n << "\n";
     break;
   }
 }

@@ -1,5 +1,6 @@
 #include "undertow/io/toml_table.hpp"
 
+#include <algorithm>
 #include <cmath>
 #include <fstream>
 #include <sstream>
@@ -14,11 +15,14 @@ const toml::node* TableReader::get(std::string_view key) const {
   return t_.get(key);
 }
 
-bool TableReader::has(std::string_view key) const { return t_.contains(key); }
+bool TableReader::has(std::string_view key) const {
+  return t_.contains(key);
+}
 
 SourcePlace TableReader::place(std::string_view key) const {
-  SourcePlace p{file_, 0, 0, context_.empty() ? std::string(key)
-                                              : (key.empty() ? context_ : context_ + "." + std::string(key))};
+  SourcePlace p{file_, 0, 0,
+                context_.empty() ? std::string(key)
+                                 : (key.empty() ? context_ : context_ + "." + std::string(key))};
   const toml::node* n = key.empty() ? nullptr : t_.get(key);
   const auto& src = n ? n->source() : t_.source();
   p.line = int(src.begin.line);
@@ -34,9 +38,12 @@ std::optional<double> TableReader::optional_number(std::string_view key) const {
   const toml::node* n = get(key);
   if (!n) return std::nullopt;
   double v;
-  if (auto f = n->as_floating_point()) v = f->get();
-  else if (auto i = n->as_integer()) v = double(i->get());
-  else fail(key, "must be a number");
+  if (auto f = n->as_floating_point())
+    v = f->get();
+  else if (auto i = n->as_integer())
+    v = double(i->get());
+  else
+    fail(key, "must be a number");
   if (!std::isfinite(v)) fail(key, "must be a finite number, got " + std::to_string(v));
   return v;
 }
@@ -97,17 +104,32 @@ const toml::array* TableReader::array_of_tables(std::string_view key) const {
   const toml::node* n = get(key);
   if (!n) return nullptr;
   auto a = n->as_array();
-  if (!a || !a->is_array_of_tables()) fail(key, "must be written as [[" + std::string(key) + "]] tables");
+  if (!a || !a->is_array_of_tables())
+    fail(key, "must be written as [[" + std::string(key) + "]] tables");
   return a;
 }
 
+namespace {
+[[noreturn]] void unknown_key(const TableReader& r, const toml::key& k,
+                              const std::vector<std::string>& valid) {
+  std::string list;
+  for (const auto& s : valid)
+    list += (list.empty() ? "" : ", ") + s;
+  SourcePlace at = r.place(k.str());
+  at.line = int(k.source().begin.line); // point at the key itself, not its value
+  at.column = int(k.source().begin.column);
+  throw InputError(at, "unknown key; valid keys here: " + list);
+}
+} // namespace
+
+void TableReader::check_keys(const std::vector<std::string>& valid) const {
+  for (const auto& [k, v] : t_)
+    if (std::find(valid.begin(), valid.end(), k.str()) == valid.end()) unknown_key(*this, k, valid);
+}
+
 void TableReader::finish(const std::vector<std::string>& valid) const {
-  for (const auto& [k, v] : t_) {
-    if (used_.count(k.str())) continue;
-    std::string list;
-    for (const auto& s : valid) list += (list.empty() ? "" : ", ") + s;
-    throw InputError(place(k.str()), "unknown key; valid keys here: " + list);
-  }
+  for (const auto& [k, v] : t_)
+    if (!used_.count(k.str())) unknown_key(*this, k, valid);
 }
 
 namespace {

@@ -12,7 +12,8 @@
 #include "undertow/potential/model.hpp"
 
 #if defined(__x86_64__) && defined(__GNUC__) && !defined(__clang__)
-#define UNDERTOW_CLONES __attribute__((target_clones("default", "arch=x86-64-v3", "arch=x86-64-v4")))
+#define UNDERTOW_CLONES                                                                            \
+  __attribute__((target_clones("default", "arch=x86-64-v3", "arch=x86-64-v4")))
 #else
 #define UNDERTOW_CLONES
 #endif
@@ -45,7 +46,8 @@ template <class C> UNDERTOW_CLONES void component_accel(const C c, const Tile t)
   UNDERTOW_TILE_LOCALS;
   for (std::size_t i = 0; i < n; i += kBlock) {
 #pragma omp simd
-    for (std::size_t j = i; j < i + kBlock; ++j) c.add_accel(x[j], y[j], z[j], ax[j], ay[j], az[j]);
+    for (std::size_t j = i; j < i + kBlock; ++j)
+      c.add_accel(x[j], y[j], z[j], ax[j], ay[j], az[j]);
   }
 }
 
@@ -64,7 +66,8 @@ template <class C> UNDERTOW_CLONES void component_phi(const C c, const Tile t) {
   (void)ay, (void)az;
   for (std::size_t i = 0; i < n; i += kBlock) {
 #pragma omp simd
-    for (std::size_t j = i; j < i + kBlock; ++j) ax[j] += c.potential(x[j], y[j], z[j]);
+    for (std::size_t j = i; j < i + kBlock; ++j)
+      ax[j] += c.potential(x[j], y[j], z[j]);
   }
 }
 
@@ -74,7 +77,8 @@ UNDERTOW_CLONES void pattern_phi(const P p, const typename P::At w, const Tile t
   (void)ay, (void)az;
   for (std::size_t i = 0; i < n; i += kBlock) {
 #pragma omp simd
-    for (std::size_t j = i; j < i + kBlock; ++j) ax[j] += p.potential(w, x[j], y[j], z[j]);
+    for (std::size_t j = i; j < i + kBlock; ++j)
+      ax[j] += p.potential(w, x[j], y[j], z[j]);
   }
 }
 
@@ -115,8 +119,13 @@ void over_tiles(std::span<const double> x, std::span<const double> y, std::span<
   const std::size_t whole = n - n % kBlock;
   for (; start < whole; start += kTile) {
     const std::size_t len = std::min(kTile, whole - start);
-    Tile t{x.data() + start, y.data() + start, z.data() + start, o1.data() + start,
-           three ? o2.data() + start : nullptr, three ? o3.data() + start : nullptr, len};
+    Tile t{x.data() + start,
+           y.data() + start,
+           z.data() + start,
+           o1.data() + start,
+           three ? o2.data() + start : nullptr,
+           three ? o3.data() + start : nullptr,
+           len};
     f(t);
   }
   if (whole == n) return;

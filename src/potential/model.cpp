@@ -9,8 +9,7 @@
 namespace undertow::potential {
 namespace {
 
-template <class S>
-double shape_density(const S& s, const typename S::At& w, const Vec3& r) {
+template <class S> double shape_density(const S& s, const typename S::At& w, const Vec3& r) {
   if constexpr (requires { s.density(w, r[0], r[1], r[2]); }) {
     return s.density(w, r[0], r[1], r[2]);
   } else {
@@ -79,7 +78,8 @@ double Model::axisymmetric_potential(const Vec3& r) const {
 }
 double Model::axisymmetric_density(const Vec3& r) const {
   double rho = 0;
-  for (std::size_t i = 0; i < components.size(); ++i) rho += component_density(i, r);
+  for (std::size_t i = 0; i < components.size(); ++i)
+    rho += component_density(i, r);
   return rho;
 }
 
@@ -95,12 +95,14 @@ Vec3 Model::acceleration_pointwise(const Vec3& r, double t_myr) const {
 }
 double Model::potential_pointwise(const Vec3& r, double t_myr) const {
   double phi = axisymmetric_potential(r);
-  for (std::size_t i = 0; i < patterns.size(); ++i) phi += pattern_potential(i, r, t_myr);
+  for (std::size_t i = 0; i < patterns.size(); ++i)
+    phi += pattern_potential(i, r, t_myr);
   return phi;
 }
 double Model::density(const Vec3& r, double t_myr) const {
   double rho = axisymmetric_density(r);
-  for (std::size_t i = 0; i < patterns.size(); ++i) rho += pattern_density(i, r, t_myr);
+  for (std::size_t i = 0; i < patterns.size(); ++i)
+    rho += pattern_density(i, r, t_myr);
   return rho;
 }
 

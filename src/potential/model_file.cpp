@@ -25,18 +25,26 @@ struct KindSpec {
 
 const std::map<std::string, KindSpec>& component_specs() {
   static const std::map<std::string, KindSpec> specs = {
-      {PointMass::kind, {{"mass_msun"}, [](const TableReader& r) -> ComponentShape {
-         return PointMass::make(r.number("mass_msun"));
-       }}},
-      {Plummer::kind, {{"mass_msun", "scale_kpc"}, [](const TableReader& r) -> ComponentShape {
-         return Plummer::make(r.number("mass_msun"), r.number("scale_kpc"));
-       }}},
-      {Hernquist::kind, {{"mass_msun", "scale_kpc"}, [](const TableReader& r) -> ComponentShape {
-         return Hernquist::make(r.number("mass_msun"), r.number("scale_kpc"));
-       }}},
-      {Isochrone::kind, {{"mass_msun", "scale_kpc"}, [](const TableReader& r) -> ComponentShape {
-         return Isochrone::make(r.number("mass_msun"), r.number("scale_kpc"));
-       }}},
+      {PointMass::kind,
+       {{"mass_msun"},
+        [](const TableReader& r) -> ComponentShape {
+          return PointMass::make(r.number("mass_msun"));
+        }}},
+      {Plummer::kind,
+       {{"mass_msun", "scale_kpc"},
+        [](const TableReader& r) -> ComponentShape {
+          return Plummer::make(r.number("mass_msun"), r.number("scale_kpc"));
+        }}},
+      {Hernquist::kind,
+       {{"mass_msun", "scale_kpc"},
+        [](const TableReader& r) -> ComponentShape {
+          return Hernquist::make(r.number("mass_msun"), r.number("scale_kpc"));
+        }}},
+      {Isochrone::kind,
+       {{"mass_msun", "scale_kpc"},
+        [](const TableReader& r) -> ComponentShape {
+          return Isochrone::make(r.number("mass_msun"), r.number("scale_kpc"));
+        }}},
       {MiyamotoNagai::kind,
        {{"mass_msun", "radial_scale_kpc", "vertical_scale_kpc"},
         [](const TableReader& r) -> ComponentShape {
@@ -58,12 +66,14 @@ const std::map<std::string, KindSpec>& component_specs() {
                                   r.number_or("hubble_kms_mpc", 70.0));
         }}},
       {Logarithmic::kind,
-       {{"speed_kms", "core_kpc", "flattening"}, [](const TableReader& r) -> ComponentShape {
+       {{"speed_kms", "core_kpc", "flattening"},
+        [](const TableReader& r) -> ComponentShape {
           return Logarithmic::make(r.number("speed_kms"), r.number_or("core_kpc", 0.0),
                                    r.number_or("flattening", 1.0));
         }}},
       {Burkert::kind,
-       {{"density_msun_kpc3", "core_kpc"}, [](const TableReader& r) -> ComponentShape {
+       {{"density_msun_kpc3", "core_kpc"},
+        [](const TableReader& r) -> ComponentShape {
           return Burkert::make(r.number("density_msun_kpc3"), r.number("core_kpc"));
         }}},
       {PowerLawCutoff::kind,
@@ -86,7 +96,8 @@ const std::map<std::string, KindSpec>& component_specs() {
 
 template <class Map> std::string kinds_of(const Map& m) {
   std::string s;
-  for (const auto& [k, v] : m) s += (s.empty() ? "" : ", ") + k;
+  for (const auto& [k, v] : m)
+    s += (s.empty() ? "" : ", ") + k;
   return s;
 }
 
@@ -106,31 +117,49 @@ std::string context_for(const char* table, const std::string& label, std::size_t
 Component read_component(const toml::table& t, const std::string& file, const std::string& ctx,
                          std::size_t index) {
   const std::string label_hint = t["label"].value_or(std::string{});
-  TableReader r(t, file, ctx.empty() ? context_for("component", label_hint, index)
-                                     : ctx + "." + context_for("component", label_hint, index));
+  TableReader r(t, file,
+                ctx.empty() ? context_for("component", label_hint, index)
+                            : ctx + "." + context_for("component", label_hint, index));
   const std::string kind = r.string("kind");
   const auto& specs = component_specs();
   const auto it = specs.find(kind);
-  if (it == specs.end()) r.fail("kind", "unknown component kind '" + kind + "'; known kinds: " + kinds_of(specs));
+  if (it == specs.end())
+    r.fail("kind", "unknown component kind '" + kind + "'; known kinds: " + kinds_of(specs));
+  std::vector<std::string> valid{"kind", "label"};
+  valid.insert(valid.end(), it->second.keys.begin(), it->second.keys.end());
+  r.check_keys(valid);
   Component c;
   c.label = r.string_or("label", kind);
   c.shape = at_keys(r, [&] { return it->second.make(r); });
-  std::vector<std::string> valid{"kind", "label"};
-  valid.insert(valid.end(), it->second.keys.begin(), it->second.keys.end());
   r.finish(valid);
   return c;
 }
 
-const std::vector<std::string> pattern_common = {"kind", "label", "pattern_speed_kms_kpc", "phase_deg",
-                                                 "grow_start_myr", "grow_duration_myr"};
+const std::vector<std::string> pattern_common = {
+    "kind", "label", "pattern_speed_kms_kpc", "phase_deg", "grow_start_myr", "grow_duration_myr"};
 
 // Builds a pattern; force ratios and bar strengths need the finished axisymmetric model.
 Pattern read_pattern(const toml::table& t, const std::string& file, const std::string& ctx,
                      std::size_t index, const Model& axi) {
   const std::string label_hint = t["label"].value_or(std::string{});
-  TableReader r(t, file, ctx.empty() ? context_for("pattern", label_hint, index)
-                                     : ctx + "." + context_for("pattern", label_hint, index));
+  TableReader r(t, file,
+                ctx.empty() ? context_for("pattern", label_hint, index)
+                            : ctx + "." + context_for("pattern", label_hint, index));
   const std::string kind = r.string("kind");
+  std::vector<std::string> valid = pattern_common;
+  if (kind == LogSpiral::kind)
+    valid.insert(valid.end(),
+                 {"arms", "pitch_deg", "reference_radius_kpc", "amplitude_kms2", "force_ratio",
+                  "envelope_scale_kpc", "inner_taper_kpc", "scale_height_kpc"});
+  else if (kind == CoxGomezSpiral::kind)
+    valid.insert(valid.end(), {"arms", "pitch_deg", "reference_radius_kpc", "radial_scale_kpc",
+                               "scale_height_kpc", "density_msun_pc3"});
+  else if (kind == DehnenBar::kind)
+    valid.insert(valid.end(),
+                 {"bar_radius_kpc", "amplitude_kms2", "strength", "reference_radius_kpc"});
+  else
+    r.fail("kind", "unknown pattern kind '" + kind + "'; known kinds: " + pattern_kinds());
+  r.check_keys(valid);
   Pattern p;
   p.label = r.string_or("label", kind);
   p.pattern_speed = r.number("pattern_speed_kms_kpc");
@@ -138,7 +167,6 @@ Pattern read_pattern(const toml::table& t, const std::string& file, const std::s
   p.growth.start_myr = r.number_or("grow_start_myr", 0.0);
   p.growth.duration_myr = r.number_or("grow_duration_myr", 0.0);
   if (p.growth.duration_myr < 0) r.fail("grow_duration_myr", "must not be negative");
-  std::vector<std::string> valid = pattern_common;
   const auto vc = [&](double R, const char* key) {
     const double v = dynamics::circular_speed(axi, R);
     if (!(v > 0)) r.fail(key, "the axisymmetric model has no circular speed at this radius");
@@ -148,31 +176,25 @@ Pattern read_pattern(const toml::table& t, const std::string& file, const std::s
     const bool direct = r.has("amplitude_kms2"), ratio = r.has("force_ratio");
     if (direct == ratio) r.fail("", "give exactly one of amplitude_kms2 and force_ratio");
     p.shape = at_keys(r, [&] {
-      auto s = LogSpiral::make(r.integer("arms"), r.number("pitch_deg"),
-                               r.number("reference_radius_kpc"),
-                               r.number_or("envelope_scale_kpc", inf),
-                               r.number_or("inner_taper_kpc", 1.0),
-                               r.number_or("scale_height_kpc", inf),
-                               direct ? r.number("amplitude_kms2") : 0.0);
+      auto s = LogSpiral::make(
+          r.integer("arms"), r.number("pitch_deg"), r.number("reference_radius_kpc"),
+          r.number_or("envelope_scale_kpc", inf), r.number_or("inner_taper_kpc", 1.0),
+          r.number_or("scale_height_kpc", inf), direct ? r.number("amplitude_kms2") : 0.0);
       if (ratio) {
         const double f = r.number("force_ratio");
-        if (!(f >= 0 && f < 1)) r.fail("force_ratio", "must lie in [0, 1), got " + std::to_string(f));
+        if (!(f >= 0 && f < 1))
+          r.fail("force_ratio", "must lie in [0, 1), got " + undertow::detail::num(f));
         const double v = vc(s.rref, "reference_radius_kpc");
         s.amp = f * (v * v / s.rref) / s.peak_radial_force_per_amplitude();
       }
       return s;
     });
-    valid.insert(valid.end(), {"arms", "pitch_deg", "reference_radius_kpc", "amplitude_kms2",
-                               "force_ratio", "envelope_scale_kpc", "inner_taper_kpc",
-                               "scale_height_kpc"});
   } else if (kind == CoxGomezSpiral::kind) {
     p.shape = at_keys(r, [&] {
       return CoxGomezSpiral::make(r.integer("arms"), r.number("pitch_deg"),
                                   r.number("reference_radius_kpc"), r.number("radial_scale_kpc"),
                                   r.number("scale_height_kpc"), r.number("density_msun_pc3"));
     });
-    valid.insert(valid.end(), {"arms", "pitch_deg", "reference_radius_kpc", "radial_scale_kpc",
-                               "scale_height_kpc", "density_msun_pc3"});
   } else if (kind == DehnenBar::kind) {
     const bool direct = r.has("amplitude_kms2"), strength = r.has("strength");
     if (direct == strength) r.fail("", "give exactly one of amplitude_kms2 and strength");
@@ -182,15 +204,14 @@ Pattern read_pattern(const toml::table& t, const std::string& file, const std::s
       if (direct) {
         amp = r.number("amplitude_kms2");
       } else {
-        const double r0 = detail::positive(r.number("reference_radius_kpc"), "reference_radius_kpc");
-        amp = DehnenBar::amplitude_from_strength(r.number("strength"), vc(r0, "reference_radius_kpc"),
-                                                 r0, detail::positive(rb, "bar_radius_kpc"));
+        const double r0 =
+            detail::positive(r.number("reference_radius_kpc"), "reference_radius_kpc");
+        amp =
+            DehnenBar::amplitude_from_strength(r.number("strength"), vc(r0, "reference_radius_kpc"),
+                                               r0, detail::positive(rb, "bar_radius_kpc"));
       }
       return DehnenBar::make(rb, amp);
     });
-    valid.insert(valid.end(), {"bar_radius_kpc", "amplitude_kms2", "strength", "reference_radius_kpc"});
-  } else {
-    r.fail("kind", "unknown pattern kind '" + kind + "'; known kinds: " + pattern_kinds());
   }
   r.finish(valid);
   return p;
@@ -198,13 +219,16 @@ Pattern read_pattern(const toml::table& t, const std::string& file, const std::s
 
 } // namespace
 
-std::string component_kinds() { return kinds_of(component_specs()); }
+std::string component_kinds() {
+  return kinds_of(component_specs());
+}
 std::string pattern_kinds() {
   return std::string(LogSpiral::kind) + ", " + CoxGomezSpiral::kind + ", " + DehnenBar::kind;
 }
 
 Model model_from_table(const toml::table& t, const std::string& file, const std::string& ctx) {
   TableReader r(t, file, ctx);
+  r.check_keys({"name", "description", "component", "pattern", "calibration"});
   Model m;
   m.name = r.string_or("name", "");
   m.description = r.string_or("description", "");
@@ -214,11 +238,13 @@ Model model_from_table(const toml::table& t, const std::string& file, const std:
   for (std::size_t i = 0; i < comps->size(); ++i) {
     Component c = read_component(*comps->get(i)->as_table(), file, ctx, i);
     if (!labels.insert(c.label).second)
-      TableReader(*comps->get(i)->as_table(), file, ctx).fail("label", "component label '" + c.label + "' is used twice");
+      TableReader(*comps->get(i)->as_table(), file, ctx)
+          .fail("label", "component label '" + c.label + "' is used twice");
     m.components.push_back(std::move(c));
   }
   if (const toml::table* cal = r.table("calibration")) {
     TableReader cr(*cal, file, ctx.empty() ? "calibration" : ctx + ".calibration");
+    cr.check_keys({"radius_kpc", "speed_kms", "rescale"});
     const double r0 = cr.number("radius_kpc"), v0 = cr.number("speed_kms");
     const auto which = cr.strings("rescale");
     cr.finish({"radius_kpc", "speed_kms", "rescale"});

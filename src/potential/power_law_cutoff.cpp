@@ -12,7 +12,7 @@ PowerLawCutoff PowerLawCutoff::make(double rho1_msun_kpc3, double r1_kpc, double
   b.alpha = detail::non_negative(alpha, "slope");
   // Gamma(1 - alpha/2, x) needs a positive first argument in Boost.Math.
   if (!(b.alpha < 2))
-    throw detail::ParameterError("slope", "must lie in [0, 2), got " + std::to_string(alpha));
+    throw detail::ParameterError("slope", "must lie in [0, 2), got " + detail::num(alpha));
   b.rc = detail::positive(rc_kpc, "cutoff_kpc");
   return b;
 }

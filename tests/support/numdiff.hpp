@@ -38,6 +38,8 @@ template <class F> double laplacian(const F& f, const V3& r, double h) {
   return sum;
 }
 
-inline double rel_err(double a, double b, double scale) { return std::fabs(a - b) / scale; }
+inline double rel_err(double a, double b, double scale) {
+  return std::fabs(a - b) / scale;
+}
 
 } // namespace undertow::test

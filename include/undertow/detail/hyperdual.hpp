@@ -26,7 +26,9 @@ inline HyperDual operator+(const HyperDual& x, const HyperDual& y) {
 inline HyperDual operator-(const HyperDual& x, const HyperDual& y) {
   return {x.a - y.a, x.b - y.b, x.c - y.c, x.d - y.d};
 }
-inline HyperDual operator-(const HyperDual& x) { return {-x.a, -x.b, -x.c, -x.d}; }
+inline HyperDual operator-(const HyperDual& x) {
+  return {-x.a, -x.b, -x.c, -x.d};
+}
 inline HyperDual operator*(const HyperDual& x, const HyperDual& y) {
   return {x.a * y.a, x.a * y.b + x.b * y.a, x.a * y.c + x.c * y.a,
           x.a * y.d + x.b * y.c + x.c * y.b + x.d * y.a};
@@ -35,8 +37,12 @@ inline HyperDual inverse(const HyperDual& x) {
   const double i = 1 / x.a;
   return chain(x, i, -i * i, 2 * i * i * i);
 }
-inline HyperDual operator/(const HyperDual& x, const HyperDual& y) { return x * inverse(y); }
-inline bool operator<(const HyperDual& x, const HyperDual& y) { return x.a < y.a; }
+inline HyperDual operator/(const HyperDual& x, const HyperDual& y) {
+  return x * inverse(y);
+}
+inline bool operator<(const HyperDual& x, const HyperDual& y) {
+  return x.a < y.a;
+}
 
 inline HyperDual sqrt(const HyperDual& x) {
   const double s = std::sqrt(x.a);
@@ -50,7 +56,9 @@ inline HyperDual expm1(const HyperDual& x) {
   const double e = std::exp(x.a);
   return chain(x, std::expm1(x.a), e, e);
 }
-inline HyperDual log(const HyperDual& x) { return chain(x, std::log(x.a), 1 / x.a, -1 / (x.a * x.a)); }
+inline HyperDual log(const HyperDual& x) {
+  return chain(x, std::log(x.a), 1 / x.a, -1 / (x.a * x.a));
+}
 inline HyperDual log1p(const HyperDual& x) {
   const double i = 1 / (1 + x.a);
   return chain(x, std::log1p(x.a), i, -i * i);
@@ -67,7 +75,9 @@ inline HyperDual atan(const HyperDual& x) {
   const double i = 1 / (1 + x.a * x.a);
   return chain(x, std::atan(x.a), i, -2 * x.a * i * i);
 }
-inline HyperDual abs(const HyperDual& x) { return x.a < 0 ? -x : x; }
+inline HyperDual abs(const HyperDual& x) {
+  return x.a < 0 ? -x : x;
+}
 inline HyperDual pow(const HyperDual& x, double p) {
   const double v = std::pow(x.a, p);
   return chain(x, v, p * v / x.a, p * (p - 1) * v / (x.a * x.a));

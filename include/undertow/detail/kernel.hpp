@@ -4,6 +4,7 @@
 // -ffast-math. libmvec is accurate to a few ulp (glibc manual, "Errors in Math Functions").
 
 #include <cmath>
+#include <cstdio>
 #include <stdexcept>
 #include <string>
 
@@ -36,27 +37,36 @@ namespace undertow::detail {
 inline constexpr double tiny2 = 1e-300;
 
 // max(v, lo) that vectorises on every x86-64 level (std::fmax must honour NaN rules).
-UNDERTOW_INLINE double at_least(double v, double lo) { return v > lo ? v : lo; }
+UNDERTOW_INLINE double at_least(double v, double lo) {
+  return v > lo ? v : lo;
+}
 
 // Parameter checks shared by all components; the message names the key so the model-file
 // reader can add file and line.
 struct ParameterError : std::invalid_argument {
   std::string key;
-  ParameterError(std::string k, const std::string& msg) : std::invalid_argument(msg), key(std::move(k)) {}
+  ParameterError(std::string k, const std::string& msg)
+      : std::invalid_argument(msg), key(std::move(k)) {}
 };
+
+inline std::string num(double v) {
+  char b[32];
+  std::snprintf(b, sizeof b, "%.6g", v);
+  return b;
+}
 
 inline double positive(double v, const char* key) {
   if (!(std::isfinite(v) && v > 0))
-    throw ParameterError(key, "must be positive and finite, got " + std::to_string(v));
+    throw ParameterError(key, "must be positive and finite, got " + num(v));
   return v;
 }
 inline double non_negative(double v, const char* key) {
   if (!(std::isfinite(v) && v >= 0))
-    throw ParameterError(key, "must be zero or positive and finite, got " + std::to_string(v));
+    throw ParameterError(key, "must be zero or positive and finite, got " + num(v));
   return v;
 }
 inline double finite(double v, const char* key) {
-  if (!std::isfinite(v)) throw ParameterError(key, "must be finite, got " + std::to_string(v));
+  if (!std::isfinite(v)) throw ParameterError(key, "must be finite, got " + num(v));
   return v;
 }
 

@@ -16,7 +16,7 @@ struct Resonance {
   std::string note;          // why there is none, when there is none
 };
 
-std::vector<Resonance> resonances(const potential::Model& m, double pattern_speed_kms_kpc,
-                                  int arms, double r_min_kpc = 0.05, double r_max_kpc = 50);
+std::vector<Resonance> resonances(const potential::Model& m, double pattern_speed_kms_kpc, int arms,
+                                  double r_min_kpc = 0.05, double r_max_kpc = 50);
 
 } // namespace undertow::dynamics

@@ -8,11 +8,11 @@
 namespace undertow::io {
 
 struct Column {
-  std::string name;   // machine name, used as the CSV header: e.g. "vc_kms"
-  std::string latex;  // LaTeX symbol (math mode): e.g. "v_{c}", "\\kappa"
-  std::string plain;  // symbol for plain text and Markdown: e.g. "v_c", "κ"
-  std::string unit;   // e.g. "km/s"; empty for dimensionless
-  int precision = 6;  // significant digits
+  std::string name;  // machine name, used as the CSV header: e.g. "vc_kms"
+  std::string latex; // LaTeX symbol (math mode): e.g. "v_{c}", "\\kappa"
+  std::string plain; // symbol for plain text and Markdown: e.g. "v_c", "κ"
+  std::string unit;  // e.g. "km/s"; empty for dimensionless
+  int precision = 6; // significant digits
 };
 
 struct Table {

@@ -26,11 +26,14 @@ public:
   std::string string(std::string_view key) const;
   std::string string_or(std::string_view key, std::string fallback) const;
   std::vector<std::string> strings(std::string_view key) const;
-  const toml::table* table(std::string_view key) const;        // optional sub-table
+  const toml::table* table(std::string_view key) const;           // optional sub-table
   const toml::array* array_of_tables(std::string_view key) const; // optional [[key]]
 
   SourcePlace place(std::string_view key) const; // of the key's value, or of the table
   [[noreturn]] void fail(std::string_view key, const std::string& what) const;
+  // Throws for the first key not in valid (a misspelled key is reported as such, before any
+  // "missing key" error it would cause).
+  void check_keys(const std::vector<std::string>& valid) const;
   // Throws for the first key that was never asked for, listing the valid ones.
   void finish(const std::vector<std::string>& valid) const;
 

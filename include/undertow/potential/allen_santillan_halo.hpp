@@ -13,9 +13,9 @@ namespace undertow::potential {
 struct AllenSantillanHalo {
   static constexpr const char* kind = "allen-santillan-halo";
   static constexpr bool vanishes_at_infinity = true;
-  double gm = 0;   // G M_h, kpc (km/s)^2
-  double a = 1;    // kpc
-  double g = 2.02; // exponent gamma
+  double gm = 0;    // G M_h, kpc (km/s)^2
+  double a = 1;     // kpc
+  double g = 2.02;  // exponent gamma
   double cut = 100; // L, kpc
 
   static AllenSantillanHalo make(double mass_msun, double scale_kpc, double exponent,
@@ -25,7 +25,7 @@ struct AllenSantillanHalo {
                          detail::positive(exponent, "exponent"),
                          detail::positive(cutoff_kpc, "cutoff_kpc")};
     if (!(h.g > 1 && h.g < 3))
-      throw detail::ParameterError("exponent", "must lie in (1, 3), got " + std::to_string(h.g));
+      throw detail::ParameterError("exponent", "must lie in (1, 3), got " + detail::num(h.g));
     return h;
   }
   UNDERTOW_INLINE double gmass(double r) const { // G M(r) for r < L

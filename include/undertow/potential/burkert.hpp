@@ -24,8 +24,8 @@ struct Burkert {
   UNDERTOW_INLINE double potential(double x, double y, double z) const {
     const double r = std::sqrt(x * x + y * y + z * z + detail::tiny2);
     const double u = r / r0;
-    const double outer = units::pi / 4 + 0.5 * std::log1p(u) - 0.25 * std::log1p(u * u) -
-                         0.5 * std::atan(u);
+    const double outer =
+        units::pi / 4 + 0.5 * std::log1p(u) - 0.25 * std::log1p(u * u) - 0.5 * std::atan(u);
     return -gpr3 * mass_shape(u) / r - 4 * gpr3 / r0 * outer;
   }
   UNDERTOW_INLINE void add_accel(double x, double y, double z, double& ax, double& ay,

@@ -20,22 +20,22 @@ struct CoxGomezSpiral {
   static constexpr std::array<double, 3> C = {8.0 / (3 * units::pi), 0.5, 8.0 / (15 * units::pi)};
   static constexpr double eps2 = 1e-8; // softening squared, kpc^2
   int arms = 2;
-  double nd = 2; // arms as a double
+  double nd = 2;                     // arms as a double
   double sin_a = 0.25, tan_a = 0.26; // pitch alpha
   double r0 = 8;                     // kpc
   double inv_rs = 1.0 / 7;           // 1/kpc
   double H = 0.18;                   // kpc
   double pref = 0;                   // 4 pi G H rho0, (km/s)^2
 
-  static CoxGomezSpiral make(int arms, double pitch_deg, double r0_kpc, double rs_kpc,
-                             double h_kpc, double rho0_msun_pc3) {
+  static CoxGomezSpiral make(int arms, double pitch_deg, double r0_kpc, double rs_kpc, double h_kpc,
+                             double rho0_msun_pc3) {
     if (arms < 1 || arms > 16)
       throw detail::ParameterError("arms", "must be a whole number from 1 to 16, got " +
                                                std::to_string(arms));
     const double p = detail::finite(pitch_deg, "pitch_deg");
     if (!(p > 0 && p < 90))
-      throw detail::ParameterError("pitch_deg", "must lie in (0, 90) degrees, got " +
-                                                    std::to_string(p));
+      throw detail::ParameterError("pitch_deg",
+                                   "must lie in (0, 90) degrees, got " + detail::num(p));
     CoxGomezSpiral s;
     s.arms = arms;
     s.nd = arms;
@@ -55,7 +55,8 @@ struct CoxGomezSpiral {
   };
   At at(double growth, double angle) const { return {growth, -nd * angle}; }
 
-  template <class T> UNDERTOW_INLINE T potential_t(const At& w, const T& x, const T& y, const T& z) const {
+  template <class T>
+  UNDERTOW_INLINE T potential_t(const At& w, const T& x, const T& y, const T& z) const {
     using std::abs, std::atan2, std::cos, std::exp, std::expm1, std::log, std::log1p, std::sqrt;
     const T R = sqrt(x * x + y * y + eps2);
     const T gam = nd * atan2(y, -x) + w.offset + nd * log(R / r0) / tan_a;
@@ -76,8 +77,8 @@ struct CoxGomezSpiral {
     return potential_t(w, x, y, z);
   }
 
-  UNDERTOW_INLINE void add_accel(const At& w, double x, double y, double z, double& ax,
-                                 double& ay, double& az) const {
+  UNDERTOW_INLINE void add_accel(const At& w, double x, double y, double z, double& ax, double& ay,
+                                 double& az) const {
     const double Rt2 = x * x + y * y;
     const double R = std::sqrt(Rt2 + eps2);
     const double iR = 1.0 / R;

@@ -44,8 +44,8 @@ struct DehnenBar {
     const double h = r < rb ? r / rb3 - 2 / r2 : -rb3 / (r2 * r2 * r);
     return w.amp * quad(w, x, y) * h;
   }
-  UNDERTOW_INLINE void add_accel(const At& w, double x, double y, double z, double& ax,
-                                 double& ay, double& az) const {
+  UNDERTOW_INLINE void add_accel(const At& w, double x, double y, double z, double& ax, double& ay,
+                                 double& az) const {
     const double r2 = detail::at_least(x * x + y * y + z * z, 1e-12), r = std::sqrt(r2);
     const double rb3 = rb * rb * rb, ir3 = 1 / (r2 * r);
     const bool in = r < rb;

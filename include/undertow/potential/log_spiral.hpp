@@ -32,22 +32,22 @@ struct LogSpiral {
                                                std::to_string(arms));
     const double p = detail::finite(pitch_deg, "pitch_deg");
     if (!(p > 0 && p < 90))
-      throw detail::ParameterError("pitch_deg", "must lie in (0, 90) degrees (trailing arms), got " +
-                                                    std::to_string(p));
+      throw detail::ParameterError(
+          "pitch_deg", "must lie in (0, 90) degrees (trailing arms), got " + detail::num(p));
     LogSpiral s;
     s.m = arms;
     s.md = arms;
     s.cotp = 1 / std::tan(p * units::deg);
     s.rref = detail::positive(rref_kpc, "reference_radius_kpc");
     if (!(envelope_kpc > 0))
-      throw detail::ParameterError("envelope_scale_kpc", "must be positive, got " +
-                                                             std::to_string(envelope_kpc));
+      throw detail::ParameterError("envelope_scale_kpc",
+                                   "must be positive, got " + detail::num(envelope_kpc));
     s.inv_rs = 1 / envelope_kpc;
     const double rin = detail::positive(taper_kpc, "inner_taper_kpc");
     s.rin2 = rin * rin;
     if (!(height_kpc > 0))
-      throw detail::ParameterError("scale_height_kpc", "must be positive, got " +
-                                                           std::to_string(height_kpc));
+      throw detail::ParameterError("scale_height_kpc",
+                                   "must be positive, got " + detail::num(height_kpc));
     s.inv_h = 1 / height_kpc;
     s.amp = detail::finite(amplitude_kms2, "amplitude_kms2");
     s.norm = (s.rref * s.rref + s.rin2) / (s.rref * s.rref);
@@ -68,7 +68,8 @@ struct LogSpiral {
     return std::sqrt(fprime * fprime + k * k);
   }
 
-  template <class T> UNDERTOW_INLINE T potential_t(const At& w, const T& x, const T& y, const T& z) const {
+  template <class T>
+  UNDERTOW_INLINE T potential_t(const At& w, const T& x, const T& y, const T& z) const {
     using std::abs, std::atan2, std::cos, std::exp, std::log, std::sqrt;
     const T R2 = x * x + y * y + detail::tiny2;
     const T R = sqrt(R2);
@@ -82,16 +83,16 @@ struct LogSpiral {
     return potential_t(w, x, y, z);
   }
 
-  UNDERTOW_INLINE void add_accel(const At& w, double x, double y, double z, double& ax,
-                                 double& ay, double& az) const {
+  UNDERTOW_INLINE void add_accel(const At& w, double x, double y, double z, double& ax, double& ay,
+                                 double& az) const {
     const double R2 = x * x + y * y + detail::tiny2;
     const double R = std::sqrt(R2);
     const double d = R2 + rin2;
     const double E = std::exp((rref - R) * inv_rs) * norm;
     const double F = E * R2 / d;
     const double Fp = E * (2 * R * rin2 / (d * d) - inv_rs * R2 / d);
-    const double FoR = E * R / d;  // F / R
-    const double FoR2 = E / d;     // F / R^2
+    const double FoR = E * R / d; // F / R
+    const double FoR2 = E / d;    // F / R^2
     const double e = std::exp(-2.0 * std::fabs(z) * inv_h);
     const double ope = 1.0 + e;
     const double Z = 4.0 * e / (ope * ope);
@@ -100,7 +101,7 @@ struct LogSpiral {
     const double c = std::cos(chi), s = std::sin(chi);
     const double mk = md * cotp;
     const double dR = -w.amp * Z * (Fp * c - FoR * s * mk); // dPhi/dR
-    const double dpsi = w.amp * Z * md * s * FoR2;           // (dPhi/dpsi) / R^2
+    const double dpsi = w.amp * Z * md * s * FoR2;          // (dPhi/dpsi) / R^2
     const double dz = -w.amp * F * Zp * c;
     const double iR = 1.0 / R;
     ax -= dR * x * iR + dpsi * y;

@@ -9,9 +9,9 @@ namespace undertow::potential {
 struct Logarithmic {
   static constexpr const char* kind = "logarithmic";
   static constexpr bool vanishes_at_infinity = false; // Phi grows without bound
-  double v02 = 1;  // (km/s)^2
-  double rc2 = 0;  // kpc^2
-  double iq2 = 1;  // 1 / q^2
+  double v02 = 1;                                     // (km/s)^2
+  double rc2 = 0;                                     // kpc^2
+  double iq2 = 1;                                     // 1 / q^2
 
   static Logarithmic make(double speed_kms, double core_kpc, double flattening) {
     const double v = detail::positive(speed_kms, "speed_kms");
@@ -21,7 +21,8 @@ struct Logarithmic {
     if (q < 1 / std::sqrt(2.0))
       throw detail::ParameterError("flattening", "must be at least 1/sqrt(2) = 0.7071 or the "
                                                  "density turns negative (Binney & Tremaine "
-                                                 "2008 §2.3.2), got " + std::to_string(q));
+                                                 "2008 §2.3.2), got " +
+                                                     detail::num(q));
     return {v * v, rc * rc, 1 / (q * q)};
   }
   UNDERTOW_INLINE double potential(double x, double y, double z) const {

@@ -27,8 +27,8 @@ public:
   void accelerations(std::span<const double> x, std::span<const double> y,
                      std::span<const double> z, double t_myr, std::span<double> ax,
                      std::span<double> ay, std::span<double> az) const;
-  void potentials(std::span<const double> x, std::span<const double> y,
-                  std::span<const double> z, double t_myr, std::span<double> phi) const;
+  void potentials(std::span<const double> x, std::span<const double> y, std::span<const double> z,
+                  double t_myr, std::span<double> phi) const;
 
   // One position through the batched path (same bits as in a batch).
   Vec3 acceleration(const Vec3& r, double t_myr) const;

@@ -1,0 +1,180 @@
+// Model files: strict reading, errors that name the file, line and key.
+#include <catch2/catch.hpp>
+
+#include "undertow/error.hpp"
+#include "undertow/potential/model_file.hpp"
+
+using namespace undertow;
+using potential::parse_model_text;
+
+namespace {
+std::string error_of(const std::string& text) {
+  try {
+    parse_model_text(text, "m.toml");
+  } catch (const InputError& e) {
+    return e.what();
+  }
+  return "(no error)";
+}
+const char* hernquist = "[[component]]\nkind = \"hernquist\"\nmass_msun = 1e10\nscale_kpc = 0.6\n";
+} // namespace
+
+TEST_CASE("A model file with every kind of component and pattern reads", "[model-file]") {
+  const auto m = parse_model_text(R"(
+name = "all"
+[[component]]
+kind = "point-mass"
+label = "bh"
+mass_msun = 4e6
+[[component]]
+kind = "plummer"
+mass_msun = 1e9
+scale_kpc = 0.3
+[[component]]
+kind = "hernquist"
+mass_msun = 1e10
+scale_kpc = 0.6
+[[component]]
+kind = "isochrone"
+mass_msun = 1e10
+scale_kpc = 1
+[[component]]
+kind = "miyamoto-nagai"
+mass_msun = 5e10
+radial_scale_kpc = 3
+vertical_scale_kpc = 0.3
+[[component]]
+label = "nfw-virial"
+kind = "nfw"
+virial_mass_msun = 1e12
+concentration = 10
+[[component]]
+kind = "logarithmic"
+speed_kms = 50
+core_kpc = 5
+flattening = 0.9
+[[component]]
+kind = "burkert"
+density_msun_kpc3 = 1e7
+core_kpc = 5
+[[component]]
+kind = "power-law-cutoff"
+density_msun_kpc3 = 1e9
+slope = 1.8
+cutoff_kpc = 1.9
+[[component]]
+kind = "allen-santillan-halo"
+mass_msun = 1e11
+scale_kpc = 12
+[[pattern]]
+kind = "log-spiral"
+arms = 2
+pitch_deg = 12
+pattern_speed_kms_kpc = 25
+reference_radius_kpc = 8
+amplitude_kms2 = 600
+[[pattern]]
+kind = "cox-gomez-spiral"
+arms = 2
+pitch_deg = 15
+pattern_speed_kms_kpc = 20
+reference_radius_kpc = 8
+radial_scale_kpc = 7
+scale_height_kpc = 0.18
+density_msun_pc3 = 0.35
+[[pattern]]
+kind = "dehnen-bar"
+pattern_speed_kms_kpc = 50
+bar_radius_kpc = 3.5
+strength = 0.01
+reference_radius_kpc = 8
+)",
+                                  "all.toml");
+  CHECK(m.components.size() == 10);
+  CHECK(m.patterns.size() == 3);
+  CHECK(m.components[0].label == "bh");
+  CHECK(m.components[2].label == "hernquist"); // the kind is the default label
+  CHECK_FALSE(m.vanishes_at_infinity());       // the logarithmic halo
+}
+
+TEST_CASE("Model-file errors name the file, line, column and key", "[model-file]") {
+  SECTION("unknown key, with the valid ones listed") {
+    const auto e = error_of(std::string(hernquist) + "scale_kcp = 1\n");
+    CHECK_THAT(e, Catch::StartsWith("m.toml:5:1: component[1].scale_kcp: unknown key"));
+    CHECK_THAT(e, Catch::Contains("mass_msun"));
+  }
+  SECTION("unknown component kind") {
+    CHECK_THAT(error_of("[[component]]\nkind = \"hernquist-disk\"\n"),
+               Catch::StartsWith(
+                   "m.toml:2:8: component[1].kind: unknown component kind 'hernquist-disk'"));
+  }
+  SECTION("negative mass, at the line of the key") {
+    CHECK_THAT(error_of("[[component]]\nlabel = \"bulge\"\nkind = \"hernquist\"\nmass_msun = "
+                        "-1e10\nscale_kpc = 0.6\n"),
+               Catch::StartsWith("m.toml:4:13: component[bulge].mass_msun: must be positive"));
+  }
+  SECTION("zero scale") {
+    CHECK_THAT(error_of("[[component]]\nkind = \"plummer\"\nmass_msun = 1e10\nscale_kpc = 0\n"),
+               Catch::Contains("component[1].scale_kpc: must be positive"));
+  }
+  SECTION("NaN") {
+    CHECK_THAT(error_of("[[component]]\nkind = \"plummer\"\nmass_msun = nan\nscale_kpc = 1\n"),
+               Catch::StartsWith("m.toml:3:13: component[1].mass_msun: must be a finite number"));
+  }
+  SECTION("missing key") {
+    CHECK_THAT(error_of("[[component]]\nkind = \"plummer\"\nmass_msun = 1e10\n"),
+               Catch::Contains("missing required key 'scale_kpc'"));
+  }
+  SECTION("a string where a number belongs") {
+    CHECK_THAT(error_of("[[component]]\nkind = \"plummer\"\nmass_msun = \"1e10\"\nscale_kpc = 1\n"),
+               Catch::Contains("mass_msun: must be a number"));
+  }
+  SECTION("TOML syntax error") {
+    CHECK_THAT(error_of("[[component]\nkind = 1\n"), Catch::StartsWith("m.toml:1:"));
+  }
+  SECTION("no components") {
+    CHECK_THAT(error_of("name = \"empty\"\n"), Catch::Contains("at least one [[component]]"));
+  }
+  SECTION("duplicate labels") {
+    CHECK_THAT(error_of(std::string(hernquist) + hernquist), Catch::Contains("used twice"));
+  }
+  SECTION("unknown top-level key") {
+    CHECK_THAT(error_of(std::string("galaxy = 1\n") + hernquist),
+               Catch::StartsWith("m.toml:1:1: galaxy: unknown key"));
+  }
+  SECTION("spiral with both amplitude and force ratio") {
+    CHECK_THAT(error_of(std::string(hernquist) + R"([[pattern]]
+kind = "log-spiral"
+arms = 2
+pitch_deg = 12
+pattern_speed_kms_kpc = 25
+reference_radius_kpc = 8
+amplitude_kms2 = 600
+force_ratio = 0.02
+)"),
+               Catch::Contains("exactly one of amplitude_kms2 and force_ratio"));
+  }
+  SECTION("pitch angle out of range") {
+    CHECK_THAT(error_of(std::string(hernquist) + R"([[pattern]]
+kind = "log-spiral"
+arms = 2
+pitch_deg = 95
+pattern_speed_kms_kpc = 25
+reference_radius_kpc = 8
+amplitude_kms2 = 600
+)"),
+               Catch::Contains("pattern[1].pitch_deg: must lie in (0, 90)"));
+  }
+  SECTION("calibration that cannot work") {
+    CHECK_THAT(error_of(std::string(hernquist) +
+                        "[[component]]\nlabel = \"halo\"\nkind = \"nfw\"\n"
+                        "density_msun_kpc3 = 1e7\nscale_kpc = 15\n[calibration]\nradius_kpc = 8\n"
+                        "speed_kms = 20\nrescale = [\"halo\"]\n"),
+               Catch::Contains("calibration.rescale: calibration: cannot reach"));
+  }
+}
+
+TEST_CASE("A missing model file is a one-line error naming it", "[model-file]") {
+  CHECK_THROWS_WITH(potential::load_model_file("no/such/model.toml"),
+                    "no/such/model.toml: cannot open file");
+}
