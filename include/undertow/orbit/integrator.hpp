@@ -1,0 +1,42 @@
+#pragma once
+// Advances an ensemble of tracers through a galaxy model. Fixed-step symplectic methods
+// advance batches of tracers as one structure-of-arrays state (one odeint state per batch);
+// adaptive methods advance one orbit at a time. Batches run in parallel with OpenMP, and every
+// tracer goes through the same arithmetic whatever its batch or thread: results are
+// bit-identical for any thread count and batch size.
+#include <atomic>
+#include <cstddef>
+#include <functional>
+#include <optional>
+
+#include "undertow/orbit/method.hpp"
+#include "undertow/orbit/phase_space.hpp"
+#include "undertow/potential/model.hpp"
+
+namespace undertow::orbit {
+
+struct IntegrationSettings {
+  Method method = Method::leapfrog;
+  double step_myr = 0.1;     // fixed-step methods: the largest step; segments are split evenly
+  double tolerance = 1e-10;  // adaptive methods: relative and absolute error per step
+  std::size_t batch = 4096;  // tracers per batch (symplectic methods)
+  // Adaptive methods only: integrate the equations of motion in the frame rotating at this
+  // pattern speed (km/s/kpc) instead of the inertial frame. Fixed-step symplectic methods always
+  // integrate in the inertial frame (the rotating-frame equations are not separable); the
+  // snapshot writer can still express their output in the rotating frame.
+  std::optional<double> rotating_frame_speed;
+};
+
+// Called after each finished batch or orbit with the number of tracers done so far.
+using ProgressFn = std::function<void(std::size_t done)>;
+
+// Advances p (inertial Galactocentric coordinates) from t0 to t1 (Myr; t1 < t0 integrates
+// backward). Stops early, returning false, when *stop becomes true between batches.
+bool advance(const potential::Model& m, PhaseSpace& p, double t0_myr, double t1_myr,
+             const IntegrationSettings& s, const ProgressFn& progress = {},
+             const std::atomic<bool>* stop = nullptr);
+
+// Number of fixed steps used for a segment, and their length.
+std::size_t steps_for(double t0_myr, double t1_myr, double step_myr);
+
+} // namespace undertow::orbit

@@ -1,0 +1,220 @@
+// Ensemble integration through Boost.Odeint.
+//
+// Symplectic methods advance a batch of tracers as one state: q = (x[], y[], z[]) and
+// p = (vx[], vy[], vz[]) are flat structure-of-arrays vectors, so odeint's range algebra runs
+// contiguous loops and the force call evaluates the whole batch at once. McLachlan's stepper
+// gives its force function no time, so time rides along as one more coordinate with unit
+// "momentum" (extended phase space): each drift sub-step moves it exactly as it moves the
+// positions, and the pattern's growth and rotation are seen at the right stage times.
+// Internal time unit: kpc/(km/s), so that dx/dt = v and dv/dt = a with no factors.
+#include "undertow/orbit/integrator.hpp"
+
+#include <boost/numeric/odeint.hpp>
+#include <cmath>
+#include <mutex>
+
+#include "undertow/error.hpp"
+#include "undertow/orbit/frame.hpp"
+#include "undertow/units.hpp"
+
+namespace undertow::orbit {
+namespace {
+
+namespace ode = boost::numeric::odeint;
+using Vec = std::vector<double>;
+using potential::Model;
+
+constexpr double kMyr = units::time_unit_myr; // Myr per internal time unit
+
+// Force on a batch of n tracers laid out as (x[n], y[n], z[n], ...).
+struct BatchForce {
+  const Model* m;
+  std::size_t n;
+  void eval(const Vec& q, Vec& a, double t_internal) const {
+    const double* x = q.data();
+    double* o = a.data();
+    m->accelerations({x, n}, {x + n, n}, {x + 2 * n, n}, t_internal * kMyr, {o, n}, {o + n, n},
+                     {o + 2 * n, n});
+  }
+};
+
+struct VerletSystem {
+  BatchForce f;
+  void operator()(const Vec& q, const Vec& /*v*/, Vec& a, double t) const { f.eval(q, a, t); }
+};
+
+// q and p carry time as their last element (q[3n] = t, p[3n] = 1).
+struct ExtendedSystem {
+  BatchForce f;
+  void operator()(const Vec& q, Vec& dpdt) const {
+    f.eval(q, dpdt, q[3 * f.n]);
+    dpdt[3 * f.n] = 0.0;
+  }
+};
+
+void gather(const PhaseSpace& p, std::size_t first, std::size_t n, Vec& q, Vec& v) {
+  for (std::size_t i = 0; i < n; ++i) {
+    q[i] = p.x[first + i];
+    q[n + i] = p.y[first + i];
+    q[2 * n + i] = p.z[first + i];
+    v[i] = p.vx[first + i];
+    v[n + i] = p.vy[first + i];
+    v[2 * n + i] = p.vz[first + i];
+  }
+}
+
+void scatter(PhaseSpace& p, std::size_t first, std::size_t n, const Vec& q, const Vec& v) {
+  for (std::size_t i = 0; i < n; ++i) {
+    p.x[first + i] = q[i];
+    p.y[first + i] = q[n + i];
+    p.z[first + i] = q[2 * n + i];
+    p.vx[first + i] = v[i];
+    p.vy[first + i] = v[n + i];
+    p.vz[first + i] = v[2 * n + i];
+  }
+}
+
+void advance_batch_symplectic(const Model& m, PhaseSpace& p, std::size_t first, std::size_t n,
+                              double t0, double dt, std::size_t steps, Method method) {
+  const bool extended = method == Method::mclachlan4;
+  Vec q(3 * n + (extended ? 1 : 0)), v(q.size());
+  gather(p, first, n, q, v);
+  const BatchForce f{&m, n};
+  // Each step starts at t0 + k dt computed afresh, so a run resumed at a segment boundary
+  // repeats the same arithmetic as one that never stopped.
+  if (method == Method::leapfrog) {
+    ode::velocity_verlet<Vec> st;
+    const VerletSystem sys{f};
+    for (std::size_t k = 0; k < steps; ++k)
+      st.do_step(sys, std::make_pair(std::ref(q), std::ref(v)), t0 + double(k) * dt, dt);
+  } else {
+    ode::symplectic_rkn_sb3a_mclachlan<Vec> st;
+    const ExtendedSystem sys{f};
+    v[3 * n] = 1.0;
+    for (std::size_t k = 0; k < steps; ++k) {
+      const double t = t0 + double(k) * dt;
+      q[3 * n] = t;
+      st.do_step(sys, std::make_pair(std::ref(q), std::ref(v)), t, dt);
+    }
+  }
+  scatter(p, first, n, q, v);
+}
+
+using State6 = std::array<double, 6>;
+
+// GCC 12 reports a false -Wmaybe-uninitialized inside odeint's copy of the Fehlberg stepper's
+// scratch arrays (they are written before they are read); silenced for this function only.
+#pragma GCC diagnostic push
+#pragma GCC diagnostic ignored "-Wmaybe-uninitialized"
+
+// One orbit with an adaptive stepper, in the inertial frame or in the frame rotating at w.
+void advance_orbit_adaptive(const Model& m, PhaseSpace& p, std::size_t i, double t0, double t1,
+                            const IntegrationSettings& s) {
+  const bool rotating = s.rotating_frame_speed.has_value();
+  const RotatingFrame frame{rotating ? *s.rotating_frame_speed : 0.0};
+  PhaseSpace one;
+  one.assign_range(p, i, 1);
+  if (rotating) frame.to_rotating(one, t0 * kMyr);
+  State6 st{one.x[0], one.y[0], one.z[0], one.vx[0], one.vy[0], one.vz[0]};
+  const double w = frame.pattern_speed;
+  const auto rhs = [&](const State6& y, State6& d, double t) {
+    double x = y[0], yy = y[1];
+    if (rotating) { // inertial position of the rotating-frame point
+      const double th = w * t, c = std::cos(th), sn = std::sin(th);
+      x = c * y[0] + sn * y[1];
+      yy = -sn * y[0] + c * y[1];
+    }
+    auto a = m.acceleration({x, yy, y[2]}, t * kMyr);
+    if (rotating) {
+      const double th = w * t, c = std::cos(th), sn = std::sin(th);
+      const double ax = c * a[0] - sn * a[1], ay = sn * a[0] + c * a[1];
+      a[0] = ax - 2 * w * y[4] + w * w * y[0]; // Coriolis and centrifugal terms
+      a[1] = ay + 2 * w * y[3] + w * w * y[1];
+    }
+    d = {y[3], y[4], y[5], a[0], a[1], a[2]};
+  };
+  const double dt0 = std::copysign(s.step_myr / kMyr, t1 - t0);
+  switch (s.method) {
+  case Method::dopri5:
+    ode::integrate_adaptive(
+        ode::make_controlled(s.tolerance, s.tolerance, ode::runge_kutta_dopri5<State6>()), rhs,
+        st, t0, t1, dt0);
+    break;
+  case Method::fehlberg78:
+    ode::integrate_adaptive(
+        ode::make_controlled(s.tolerance, s.tolerance, ode::runge_kutta_fehlberg78<State6>()),
+        rhs, st, t0, t1, dt0);
+    break;
+  case Method::bulirsch_stoer: {
+    ode::bulirsch_stoer<State6> bs(s.tolerance, s.tolerance);
+    ode::integrate_adaptive(bs, rhs, st, t0, t1, dt0);
+    break;
+  }
+  default:
+    throw std::logic_error("not an adaptive method");
+  }
+  one.x[0] = st[0], one.y[0] = st[1], one.z[0] = st[2];
+  one.vx[0] = st[3], one.vy[0] = st[4], one.vz[0] = st[5];
+  if (rotating) frame.to_inertial(one, t1 * kMyr);
+  p.store_range(one, i);
+}
+#pragma GCC diagnostic pop
+
+} // namespace
+
+std::size_t steps_for(double t0, double t1, double step) {
+  if (!(step > 0) || !std::isfinite(step))
+    throw InputError("integration step must be positive, got " + std::to_string(step));
+  const double n = std::ceil(std::fabs(t1 - t0) / step * (1 - 1e-12));
+  if (n > 1e12) throw InputError("integration needs more than 1e12 steps; use a larger step");
+  return std::size_t(std::max(n, t1 == t0 ? 0.0 : 1.0));
+}
+
+bool advance(const Model& m, PhaseSpace& p, double t0_myr, double t1_myr,
+             const IntegrationSettings& s, const ProgressFn& progress,
+             const std::atomic<bool>* stop) {
+  const std::size_t N = p.size();
+  if (N == 0 || t0_myr == t1_myr) return true;
+  std::mutex progress_mutex;
+  std::size_t done = 0;
+  const auto report = [&](std::size_t n) {
+    if (!progress) return;
+    std::lock_guard<std::mutex> lock(progress_mutex);
+    done += n;
+    progress(done);
+  };
+  bool stopped = false;
+  if (is_symplectic(s.method)) {
+    if (s.batch == 0) throw InputError("batch size must be positive");
+    const std::size_t steps = steps_for(t0_myr, t1_myr, s.step_myr);
+    const double dt = (t1_myr - t0_myr) / double(steps) / kMyr, t0 = t0_myr / kMyr;
+    const long nb = long((N + s.batch - 1) / s.batch);
+#pragma omp parallel for schedule(dynamic, 1) reduction(|| : stopped)
+    for (long b = 0; b < nb; ++b) {
+      if (stop && stop->load()) {
+        stopped = true;
+        continue;
+      }
+      const std::size_t first = std::size_t(b) * s.batch, n = std::min(s.batch, N - first);
+      advance_batch_symplectic(m, p, first, n, t0, dt, steps, s.method);
+      report(n);
+    }
+  } else {
+    const double t0 = t0_myr / kMyr, t1 = t1_myr / kMyr;
+    const long chunk = 64;
+    const long nc = long((N + chunk - 1) / chunk);
+#pragma omp parallel for schedule(dynamic, 1) reduction(|| : stopped)
+    for (long c = 0; c < nc; ++c) {
+      if (stop && stop->load()) {
+        stopped = true;
+        continue;
+      }
+      const std::size_t first = std::size_t(c) * chunk, n = std::min<std::size_t>(chunk, N - first);
+      for (std::size_t i = first; i < first + n; ++i) advance_orbit_adaptive(m, p, i, t0, t1, s);
+      report(n);
+    }
+  }
+  return !stopped;
+}
+
+} // namespace undertow::orbit
