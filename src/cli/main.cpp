@@ -10,6 +10,14 @@
 #include "undertow/error.hpp"
 #include "undertow/io/atomic_file.hpp"
 #include "undertow/potential/model_file.hpp"
+#include "undertow/run/ensemble.hpp"
+#include "undertow/scenario/scenario.hpp"
+
+#include <csignal>
+#include <cstdlib>
+#include <filesystem>
+#include <omp.h>
+#include <unistd.h>
 
 namespace {
 
@@ -59,6 +67,59 @@ int run_tabulate(const TabulateArgs& a) {
   return 0;
 }
 
+std::atomic<bool> g_stop{false};
+extern "C" void on_signal(int) {
+  g_stop.store(true);
+}
+
+struct IntegrateArgs {
+  std::string scenario;
+  std::string output;
+  bool restart = false;
+  int threads = 0;
+};
+
+int run_integrate(const IntegrateArgs& a) {
+  using namespace undertow;
+  const auto sc = scenario::load_scenario(a.scenario);
+  run::EnsembleOptions o;
+  o.output =
+      a.output.empty() ? std::filesystem::path(a.scenario).stem().string() + ".h5" : a.output;
+  o.restart = a.restart;
+  o.progress = ::isatty(2) && !std::getenv("CI");
+  o.stop = &g_stop;
+  o.log = &std::cerr;
+  if (a.threads > 0) omp_set_num_threads(a.threads);
+  std::signal(SIGINT, on_signal);
+  std::signal(SIGTERM, on_signal);
+  const auto r = run::run_ensemble(sc, o);
+  if (!r.complete) {
+    std::cerr << "undertow: interrupted; snapshots up to t = " << r.reached_myr
+              << " Myr are kept in " << o.output
+              << ".parts/; run the same command again to resume\n";
+    return 130;
+  }
+  std::cout << "wrote " << o.output << ": " << r.tracers << " tracers, "
+            << sc.output.times_myr.size() + 1 << " snapshots, " << r.seconds << " s";
+  if (r.orbit_steps > 0)
+    std::cout << " (" << r.orbit_steps / r.seconds / 1e6 << " million orbit-steps/s)";
+  std::cout << "\n";
+  const auto& d = r.diagnostics;
+  if (d.invariant == "none") {
+    std::cout << "no conserved quantity to check: " << d.note << "\n";
+  } else {
+    std::cout << d.invariant << " error (relative, end vs start): median " << d.median << ", max "
+              << d.max << "\n";
+    if (d.max > 1e-6) {
+      std::cout << "  worst tracers (id: error):";
+      for (std::size_t i = 0; i < d.worst_ids.size(); ++i)
+        std::cout << " " << d.worst_ids[i] << ": " << d.worst_errors[i];
+      std::cout << "\n  warning: errors above 1e-6 — use a smaller step or a higher-order method\n";
+    }
+  }
+  return 0;
+}
+
 } // namespace
 
 int main(int argc, char** argv) {
@@ -93,9 +154,20 @@ int main(int argc, char** argv) {
   t->add_option("--search-to", tab.search_max, "Outer radius of the resonance search, kpc")
       ->capture_default_str();
 
+  IntegrateArgs integ;
+  auto* ig = app.add_subcommand("integrate", "Integrate a scenario's tracer orbits and write its "
+                                             "HDF5 snapshot file (resumes an interrupted run)");
+  ig->add_option("scenario", integ.scenario, "Scenario file (TOML)")->required();
+  ig->add_option("-o,--output", integ.output, "Snapshot file to write (default: <scenario>.h5)");
+  ig->add_flag("--restart", integ.restart, "Discard the kept snapshots of an unfinished run");
+  ig->add_option("--threads", integ.threads,
+                 "OpenMP threads (default: OMP_NUM_THREADS or all cores)")
+      ->check(CLI::Range(1, 4096));
+
   CLI11_PARSE(app, argc, argv);
   try {
     if (t->parsed()) return run_tabulate(tab);
+    if (ig->parsed()) return run_integrate(integ);
   } catch (const undertow::InputError& e) {
     std::cerr << "undertow: error: " << e.what() << "\n";
     return 2;

@@ -92,6 +92,34 @@ std::vector<std::string> TableReader::strings(std::string_view key) const {
   return out;
 }
 
+std::vector<double> TableReader::numbers(std::string_view key) const {
+  const toml::node* n = get(key);
+  if (!n) fail("", "missing required key '" + std::string(key) + "'");
+  auto a = n->as_array();
+  if (!a) fail(key, "must be an array of numbers");
+  std::vector<double> out;
+  for (const auto& e : *a) {
+    double v;
+    if (auto f = e.as_floating_point())
+      v = f->get();
+    else if (auto i = e.as_integer())
+      v = double(i->get());
+    else
+      fail(key, "must be an array of numbers");
+    if (!std::isfinite(v)) fail(key, "must hold finite numbers only");
+    out.push_back(v);
+  }
+  return out;
+}
+
+bool TableReader::boolean_or(std::string_view key, bool fallback) const {
+  const toml::node* n = get(key);
+  if (!n) return fallback;
+  auto b = n->as_boolean();
+  if (!b) fail(key, "must be true or false");
+  return b->get();
+}
+
 const toml::table* TableReader::table(std::string_view key) const {
   const toml::node* n = get(key);
   if (!n) return nullptr;

@@ -15,8 +15,7 @@ Invariant conserved_quantity(const potential::Model& m, double t0, double t1) {
     const double g_lo = p.growth.factor(lo), g_hi = p.growth.factor(hi);
     const bool constant = (hi <= p.growth.start_myr) || (lo >= p.growth.end_myr());
     if (!constant || g_lo != g_hi)
-      return {Invariant::Kind::none, 0,
-              "pattern '" + p.label + "' grows during the integration"};
+      return {Invariant::Kind::none, 0, "pattern '" + p.label + "' grows during the integration"};
     if (g_lo == 0) continue; // absent throughout
     if (have_speed && p.pattern_speed != inv.pattern_speed)
       return {Invariant::Kind::none, 0, "patterns rotate at different speeds"};
@@ -41,7 +40,8 @@ std::vector<double> evaluate(const Invariant& inv, const potential::Model& m, co
 
 std::vector<double> relative_errors(const std::vector<double>& i0, const std::vector<double>& i1) {
   std::vector<double> r(i0.size());
-  for (std::size_t i = 0; i < r.size(); ++i) r[i] = std::fabs(i1[i] - i0[i]) / std::fabs(i0[i]);
+  for (std::size_t i = 0; i < r.size(); ++i)
+    r[i] = std::fabs(i1[i] - i0[i]) / std::fabs(i0[i]);
   return r;
 }
 
@@ -54,7 +54,8 @@ ErrorSummary summarise(const std::vector<double>& rel, std::size_t n_worst) {
   std::partial_sort(idx.begin(), idx.begin() + long(k), idx.end(),
                     [&](std::size_t a, std::size_t b) { return rel[a] > rel[b]; });
   s.worst.assign(idx.begin(), idx.begin() + long(k));
-  for (auto i : s.worst) s.worst_error.push_back(rel[i]);
+  for (auto i : s.worst)
+    s.worst_error.push_back(rel[i]);
   s.max = rel[idx[0]];
   std::vector<double> v = rel;
   std::nth_element(v.begin(), v.begin() + long(v.size() / 2), v.end());

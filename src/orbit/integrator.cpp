@@ -137,13 +137,13 @@ void advance_orbit_adaptive(const Model& m, PhaseSpace& p, std::size_t i, double
   switch (s.method) {
   case Method::dopri5:
     ode::integrate_adaptive(
-        ode::make_controlled(s.tolerance, s.tolerance, ode::runge_kutta_dopri5<State6>()), rhs,
-        st, t0, t1, dt0);
+        ode::make_controlled(s.tolerance, s.tolerance, ode::runge_kutta_dopri5<State6>()), rhs, st,
+        t0, t1, dt0);
     break;
   case Method::fehlberg78:
     ode::integrate_adaptive(
-        ode::make_controlled(s.tolerance, s.tolerance, ode::runge_kutta_fehlberg78<State6>()),
-        rhs, st, t0, t1, dt0);
+        ode::make_controlled(s.tolerance, s.tolerance, ode::runge_kutta_fehlberg78<State6>()), rhs,
+        st, t0, t1, dt0);
     break;
   case Method::bulirsch_stoer: {
     ode::bulirsch_stoer<State6> bs(s.tolerance, s.tolerance);
@@ -210,7 +210,8 @@ bool advance(const Model& m, PhaseSpace& p, double t0_myr, double t1_myr,
         continue;
       }
       const std::size_t first = std::size_t(c) * chunk, n = std::min<std::size_t>(chunk, N - first);
-      for (std::size_t i = first; i < first + n; ++i) advance_orbit_adaptive(m, p, i, t0, t1, s);
+      for (std::size_t i = first; i < first + n; ++i)
+        advance_orbit_adaptive(m, p, i, t0, t1, s);
       report(n);
     }
   }

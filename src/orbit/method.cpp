@@ -18,7 +18,8 @@ constexpr Named kMethods[] = {{Method::leapfrog, "leapfrog"},
 
 std::string method_names() {
   std::string s;
-  for (const auto& n : kMethods) s += (s.empty() ? "" : ", ") + std::string(n.name);
+  for (const auto& n : kMethods)
+    s += (s.empty() ? "" : ", ") + std::string(n.name);
   return s;
 }
 
@@ -34,6 +35,8 @@ std::string method_name(Method m) {
   return "?";
 }
 
-bool is_symplectic(Method m) { return m == Method::leapfrog || m == Method::mclachlan4; }
+bool is_symplectic(Method m) {
+  return m == Method::leapfrog || m == Method::mclachlan4;
+}
 
 } // namespace undertow::orbit

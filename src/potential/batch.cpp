@@ -8,6 +8,7 @@
 // whole block so that no position ever takes a scalar remainder loop with different rounding.
 #include <algorithm>
 #include <cstring>
+#include <type_traits>
 
 #include "undertow/potential/model.hpp"
 
@@ -61,6 +62,41 @@ UNDERTOW_CLONES void pattern_accel(const P p, const typename P::At w, const Tile
   }
 }
 
+// The logarithmic spiral with its arm number fixed at compile time (no atan2 per position).
+template <int M>
+UNDERTOW_CLONES void spiral_accel(const LogSpiral p, const LogSpiral::At w, const Tile t) {
+  UNDERTOW_TILE_LOCALS;
+  for (std::size_t i = 0; i < n; i += kBlock) {
+#pragma omp simd
+    for (std::size_t j = i; j < i + kBlock; ++j)
+      p.template add_accel_m<M>(w, x[j], y[j], z[j], ax[j], ay[j], az[j]);
+  }
+}
+
+template <class P> void dispatch_pattern_accel(const P& p, const typename P::At& w, const Tile& t) {
+  if constexpr (std::is_same_v<P, LogSpiral>) {
+    switch (p.m) {
+    case 1:
+      return spiral_accel<1>(p, w, t);
+    case 2:
+      return spiral_accel<2>(p, w, t);
+    case 3:
+      return spiral_accel<3>(p, w, t);
+    case 4:
+      return spiral_accel<4>(p, w, t);
+    case 5:
+      return spiral_accel<5>(p, w, t);
+    case 6:
+      return spiral_accel<6>(p, w, t);
+    case 8:
+      return spiral_accel<8>(p, w, t);
+    default:
+      break;
+    }
+  }
+  pattern_accel(p, w, t);
+}
+
 template <class C> UNDERTOW_CLONES void component_phi(const C c, const Tile t) {
   UNDERTOW_TILE_LOCALS;
   (void)ay, (void)az;
@@ -92,7 +128,7 @@ void accel_tile(const Model& m, const Tile& t, double t_myr) {
     const double g = p.growth.factor(t_myr);
     if (g == 0) continue;
     const double a = p.angle_at(t_myr);
-    std::visit([&](const auto& s) { pattern_accel(s, s.at(g, a), t); }, p.shape);
+    std::visit([&](const auto& s) { dispatch_pattern_accel(s, s.at(g, a), t); }, p.shape);
   }
 }
 

@@ -2,6 +2,7 @@
 #include "undertow/potential/model.hpp"
 
 #include <stdexcept>
+#include <type_traits>
 
 #include "undertow/detail/hyperdual.hpp"
 #include "undertow/error.hpp"
@@ -18,6 +19,27 @@ template <class S> double shape_density(const S& s, const typename S::At& w, con
       return s.potential_t(w, x, y, z);
     };
     return detail::laplacian(f, r[0], r[1], r[2]) / (4 * units::pi * units::G);
+  }
+}
+
+void add_spiral_pointwise(const LogSpiral& s, const LogSpiral::At& w, const Vec3& r, Vec3& a) {
+  switch (s.m) {
+  case 1:
+    return s.add_accel_m<1>(w, r[0], r[1], r[2], a[0], a[1], a[2]);
+  case 2:
+    return s.add_accel_m<2>(w, r[0], r[1], r[2], a[0], a[1], a[2]);
+  case 3:
+    return s.add_accel_m<3>(w, r[0], r[1], r[2], a[0], a[1], a[2]);
+  case 4:
+    return s.add_accel_m<4>(w, r[0], r[1], r[2], a[0], a[1], a[2]);
+  case 5:
+    return s.add_accel_m<5>(w, r[0], r[1], r[2], a[0], a[1], a[2]);
+  case 6:
+    return s.add_accel_m<6>(w, r[0], r[1], r[2], a[0], a[1], a[2]);
+  case 8:
+    return s.add_accel_m<8>(w, r[0], r[1], r[2], a[0], a[1], a[2]);
+  default:
+    return s.add_accel(w, r[0], r[1], r[2], a[0], a[1], a[2]);
   }
 }
 
@@ -44,8 +66,15 @@ Vec3 Model::pattern_acceleration(std::size_t i, const Vec3& r, double t_myr) con
   const double g = p.growth.factor(t_myr);
   if (g == 0) return a;
   const double ang = p.angle_at(t_myr);
-  std::visit([&](const auto& s) { s.add_accel(s.at(g, ang), r[0], r[1], r[2], a[0], a[1], a[2]); },
-             p.shape);
+  std::visit(
+      [&](const auto& s) {
+        using S = std::decay_t<decltype(s)>;
+        if constexpr (std::is_same_v<S, LogSpiral>) {
+          if (s.m <= 8 && s.m != 7) return add_spiral_pointwise(s, s.at(g, ang), r, a);
+        }
+        s.add_accel(s.at(g, ang), r[0], r[1], r[2], a[0], a[1], a[2]);
+      },
+      p.shape);
   return a;
 }
 double Model::pattern_potential(std::size_t i, const Vec3& r, double t_myr) const {

@@ -35,7 +35,8 @@ double dist(const PhaseSpace& a, const PhaseSpace& b, std::size_t i = 0) {
 }
 
 Model demo(bool spiral) {
-  Model m = potential::load_model_file(std::string(UNDERTOW_SOURCE_DIR) + "/potentials/kestrel.toml");
+  Model m =
+      potential::load_model_file(std::string(UNDERTOW_SOURCE_DIR) + "/potentials/kestrel.toml");
   if (!spiral) m.patterns.clear();
   return m;
 }
@@ -62,9 +63,10 @@ TEST_CASE("Kepler orbit: after 100 periods T = 2 pi sqrt(a^3/GM) the orbit is ba
     Method method;
     double step, tol;
   };
-  for (const Case& c : {Case{Method::mclachlan4, T / 4000, 1e-6}, Case{Method::leapfrog, T / 20000, 1e-3},
-                        Case{Method::dopri5, T / 100, 1e-7}, Case{Method::fehlberg78, T / 100, 1e-7},
-                        Case{Method::bulirsch_stoer, T / 100, 1e-7}}) {
+  for (const Case& c :
+       {Case{Method::mclachlan4, T / 4000, 1e-6}, Case{Method::leapfrog, T / 20000, 1e-3},
+        Case{Method::dopri5, T / 100, 1e-7}, Case{Method::fehlberg78, T / 100, 1e-7},
+        Case{Method::bulirsch_stoer, T / 100, 1e-7}}) {
     INFO(method_name(c.method));
     PhaseSpace p = start;
     REQUIRE(advance(m, p, 0, 100 * T, with(c.method, c.step, 1e-13)));
@@ -186,7 +188,8 @@ TEST_CASE("Results are bit-identical for 1 and 2 threads and for any batch size 
     const double R = 3 + 10.0 * double(i) / n, a = 0.37 * double(i);
     p.id[i] = i;
     p.x[i] = -R * std::cos(a), p.y[i] = R * std::sin(a), p.z[i] = 0.01 * double(i % 17);
-    p.vx[i] = 200 * std::sin(a) + double(i % 7), p.vy[i] = 200 * std::cos(a), p.vz[i] = double(i % 5);
+    p.vx[i] = 200 * std::sin(a) + double(i % 7), p.vy[i] = 200 * std::cos(a),
+    p.vz[i] = double(i % 5);
   }
   for (Method meth : {Method::leapfrog, Method::mclachlan4, Method::dopri5}) {
     INFO(method_name(meth));

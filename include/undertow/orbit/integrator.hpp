@@ -17,9 +17,9 @@ namespace undertow::orbit {
 
 struct IntegrationSettings {
   Method method = Method::leapfrog;
-  double step_myr = 0.1;     // fixed-step methods: the largest step; segments are split evenly
-  double tolerance = 1e-10;  // adaptive methods: relative and absolute error per step
-  std::size_t batch = 4096;  // tracers per batch (symplectic methods)
+  double step_myr = 0.1;    // fixed-step methods: the largest step; segments are split evenly
+  double tolerance = 1e-10; // adaptive methods: relative and absolute error per step
+  std::size_t batch = 4096; // tracers per batch (symplectic methods)
   // Adaptive methods only: integrate the equations of motion in the frame rotating at this
   // pattern speed (km/s/kpc) instead of the inertial frame. Fixed-step symplectic methods always
   // integrate in the inertial frame (the rotating-frame equations are not separable); the

@@ -13,7 +13,8 @@ struct PhaseSpace {
   std::size_t size() const { return x.size(); }
   void resize(std::size_t n) {
     id.resize(n);
-    for (auto* v : {&x, &y, &z, &vx, &vy, &vz}) v->resize(n);
+    for (auto* v : {&x, &y, &z, &vx, &vy, &vz})
+      v->resize(n);
   }
   // Copies tracers [first, first + n) of other into this one (resized to n).
   void assign_range(const PhaseSpace& other, std::size_t first, std::size_t n);

@@ -83,10 +83,15 @@ struct LogSpiral {
     return potential_t(w, x, y, z);
   }
 
-  UNDERTOW_INLINE void add_accel(const At& w, double x, double y, double z, double& ax, double& ay,
-                                 double& az) const {
+  // The kernel for a compile-time arm number M (M = 0: any m, through atan2). For M >= 1 the
+  // factor e^{i M psi} is built from the unit vector (-x + i y)/R by complex multiplication,
+  // which saves the atan2 call; both forms give the same potential to rounding.
+  template <int M>
+  UNDERTOW_INLINE void add_accel_m(const At& w, double x, double y, double z, double& ax,
+                                   double& ay, double& az) const {
     const double R2 = x * x + y * y + detail::tiny2;
     const double R = std::sqrt(R2);
+    const double iR = 1.0 / R;
     const double d = R2 + rin2;
     const double E = std::exp((rref - R) * inv_rs) * norm;
     const double F = E * R2 / d;
@@ -97,16 +102,36 @@ struct LogSpiral {
     const double ope = 1.0 + e;
     const double Z = 4.0 * e / (ope * ope);
     const double Zp = -2.0 * inv_h * Z * std::copysign((1.0 - e) / ope, z);
-    const double chi = md * std::atan2(y, -x) + w.offset + md * cotp * std::log(R / rref);
-    const double c = std::cos(chi), s = std::sin(chi);
+    double c, s;
+    if constexpr (M == 0) {
+      const double chi = md * std::atan2(y, -x) + w.offset + md * cotp * std::log(R / rref);
+      c = std::cos(chi);
+      s = std::sin(chi);
+    } else {
+      const double ux = -x * iR, uy = y * iR; // e^{i psi}
+      double pc = ux, ps = uy;
+#pragma GCC unroll 16
+      for (int k = 1; k < M; ++k) {
+        const double t = pc * ux - ps * uy;
+        ps = pc * uy + ps * ux;
+        pc = t;
+      }
+      const double phase = w.offset + md * cotp * std::log(R / rref);
+      const double cp = std::cos(phase), sp = std::sin(phase);
+      c = pc * cp - ps * sp;
+      s = ps * cp + pc * sp;
+    }
     const double mk = md * cotp;
     const double dR = -w.amp * Z * (Fp * c - FoR * s * mk); // dPhi/dR
     const double dpsi = w.amp * Z * md * s * FoR2;          // (dPhi/dpsi) / R^2
     const double dz = -w.amp * F * Zp * c;
-    const double iR = 1.0 / R;
     ax -= dR * x * iR + dpsi * y;
     ay -= dR * y * iR - dpsi * x;
     az -= dz;
+  }
+  UNDERTOW_INLINE void add_accel(const At& w, double x, double y, double z, double& ax, double& ay,
+                                 double& az) const {
+    add_accel_m<0>(w, x, y, z, ax, ay, az);
   }
 };
 

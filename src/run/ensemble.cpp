@@ -1,0 +1,205 @@
+#include "undertow/run/ensemble.hpp"
+
+#include <chrono>
+#include <cmath>
+#include <cstdio>
+#include <filesystem>
+#include <fstream>
+#include <iostream>
+#include <sstream>
+
+#include "undertow/error.hpp"
+#include "undertow/io/atomic_file.hpp"
+#include "undertow/orbit/conserved.hpp"
+#include "undertow/orbit/frame.hpp"
+#include "undertow/tracers/disk_population.hpp"
+#include "undertow/tracers/tracer_file.hpp"
+
+namespace undertow::run {
+namespace {
+
+namespace fs = std::filesystem;
+
+std::string part_name(const std::string& dir, std::size_t k) {
+  char b[32];
+  std::snprintf(b, sizeof b, "part_%05zu.h5", k);
+  return (fs::path(dir) / b).string();
+}
+
+std::string read_all(const std::string& path) {
+  std::ifstream in(path, std::ios::binary);
+  std::stringstream ss;
+  ss << in.rdbuf();
+  return ss.str();
+}
+
+// What identifies a run: the scenario text and the text of its model file.
+std::string identity(const scenario::Scenario& s) {
+  return s.text + "\n#-- model file --\n" + s.model_text;
+}
+
+orbit::PhaseSpace initial_tracers(const scenario::Scenario& s) {
+  if (s.tracers.kind == scenario::TracerSource::Kind::file)
+    return tracers::read_tracer_file(s.tracers.file, s.max_radius_kpc);
+  const auto& d = s.tracers.disk;
+  orbit::PhaseSpace p;
+  p.resize(d.count);
+  const std::uint64_t chunk = 4096;
+  const long nc = long((d.count + chunk - 1) / chunk);
+#pragma omp parallel for schedule(dynamic, 1)
+  for (long c = 0; c < nc; ++c) {
+    const std::uint64_t first = std::uint64_t(c) * chunk, n = std::min(chunk, d.count - first);
+    p.store_range(tracers::sample(s.model, d, s.seed, first, n), first);
+  }
+  return p;
+}
+
+io::Snapshot snapshot_of(const orbit::PhaseSpace& p, double t, double birth, double rmax) {
+  io::Snapshot snap;
+  snap.time_myr = t;
+  snap.tracers = p;
+  snap.birth_time_myr.assign(p.size(), birth);
+  snap.flags.assign(p.size(), 0);
+  for (std::size_t i = 0; i < p.size(); ++i)
+    if (std::hypot(p.x[i], p.y[i], p.z[i]) > rmax) snap.flags[i] |= io::kFlagOutsideRange;
+  return snap;
+}
+
+class Progress {
+public:
+  Progress(bool on, std::size_t tracers, std::size_t segments)
+      : on_(on), n_(tracers), segs_(segments), t0_(clock::now()) {}
+  void update(std::size_t seg, std::size_t done, double ta, double tb) {
+    if (!on_) return;
+    const double el = seconds();
+    const double frac = (double(seg) + double(done) / double(n_)) / double(segs_);
+    const double left = frac > 0 ? el * (1 - frac) / frac : 0;
+    std::fprintf(
+        stderr, "\r  t %.6g -> %.6g Myr (%zu/%zu): %zu/%zu tracers, %.3g tracers/s, %.0f s left   ",
+        ta, tb, seg + 1, segs_, done, n_,
+        el > 0 ? (double(seg) * double(n_) + double(done)) / el : 0.0, left);
+    std::fflush(stderr);
+  }
+  void finish() {
+    if (on_) std::fprintf(stderr, "\n");
+  }
+  double seconds() const { return std::chrono::duration<double>(clock::now() - t0_).count(); }
+
+private:
+  using clock = std::chrono::steady_clock;
+  bool on_;
+  std::size_t n_, segs_;
+  clock::time_point t0_;
+};
+
+} // namespace
+
+EnsembleResult run_ensemble(const scenario::Scenario& s, const EnsembleOptions& o) {
+  if (o.output.empty()) throw InputError("no output file given");
+  const std::string dir = o.output + ".parts";
+  const std::string id_file = (fs::path(dir) / "scenario.txt").string();
+  std::vector<double> times{s.start_myr};
+  times.insert(times.end(), s.output.times_myr.begin(), s.output.times_myr.end());
+
+  if (o.restart && fs::exists(dir)) fs::remove_all(dir);
+  std::size_t have = 0; // whole parts present
+  if (fs::exists(dir)) {
+    if (!fs::exists(id_file) || read_all(id_file) != identity(s))
+      throw InputError(SourcePlace{dir, 0, 0, {}},
+                       "holds an unfinished run of a different scenario (or model file); remove it "
+                       "or run again with --restart");
+    while (have < times.size() && fs::exists(part_name(dir, have))) {
+      try {
+        (void)io::read_snapshot_part(part_name(dir, have)); // a damaged part is redone
+      } catch (const InputError&) {
+        fs::remove(part_name(dir, have));
+        break;
+      }
+      ++have;
+    }
+  } else {
+    std::error_code ec;
+    fs::create_directories(dir, ec);
+    if (ec) throw InputError(SourcePlace{dir, 0, 0, {}}, "cannot create folder: " + ec.message());
+    io::AtomicFile f(id_file);
+    f.stream() << identity(s);
+    f.commit();
+  }
+
+  EnsembleResult res;
+  orbit::PhaseSpace p;
+  const double birth = s.start_myr;
+  if (have == 0) {
+    p = initial_tracers(s);
+    io::write_snapshot_part(part_name(dir, 0), snapshot_of(p, times[0], birth, s.max_radius_kpc));
+    have = 1;
+  } else {
+    p = io::read_snapshot_part(part_name(dir, have - 1)).tracers;
+    if (o.log && have < times.size())
+      *o.log << "resuming from t = " << times[have - 1] << " Myr (" << have << " of "
+             << times.size() << " snapshots on disk)\n";
+  }
+  res.tracers = p.size();
+  Progress prog(o.progress, p.size(), times.size() - 1);
+  for (std::size_t k = have; k < times.size(); ++k) {
+    const double ta = times[k - 1], tb = times[k];
+    const auto report = [&](std::size_t done) { prog.update(k - 1, done, ta, tb); };
+    if (!orbit::advance(s.model, p, ta, tb, s.integration, report, o.stop)) {
+      prog.finish();
+      res.reached_myr = ta;
+      res.seconds = prog.seconds();
+      return res; // interrupted: the parts on disk are whole; rerun to resume
+    }
+    if (orbit::is_symplectic(s.integration.method))
+      res.orbit_steps +=
+          double(p.size()) * double(orbit::steps_for(ta, tb, s.integration.step_myr));
+    io::write_snapshot_part(part_name(dir, k), snapshot_of(p, tb, birth, s.max_radius_kpc));
+  }
+  prog.finish();
+
+  // Diagnostics: the invariant at the end against the start.
+  const auto inv = orbit::conserved_quantity(s.model, s.start_myr, s.end_myr);
+  io::Diagnostics d;
+  const auto first = io::read_snapshot_part(part_name(dir, 0)).tracers;
+  if (inv.kind == orbit::Invariant::Kind::none) {
+    d.invariant = "none";
+    d.note = inv.why_none;
+  } else {
+    d.invariant = inv.kind == orbit::Invariant::Kind::energy ? "energy" : "jacobi";
+    const auto rel = orbit::relative_errors(orbit::evaluate(inv, s.model, first, s.start_myr),
+                                            orbit::evaluate(inv, s.model, p, s.end_myr));
+    const auto sum = orbit::summarise(rel, 5);
+    d.relative_error = rel;
+    d.median = sum.median;
+    d.max = sum.max;
+    for (std::size_t i = 0; i < sum.worst.size(); ++i) {
+      d.worst_ids.push_back(p.id[sum.worst[i]]);
+      d.worst_errors.push_back(sum.worst_error[i]);
+    }
+  }
+  std::vector<std::string> parts;
+  for (std::size_t k = 0; k < times.size(); ++k)
+    parts.push_back(part_name(dir, k));
+  const orbit::RotatingFrame frame{s.output.frame_pattern_speed};
+  const bool rotating = s.output.frame == scenario::Output::Frame::rotating;
+  const auto transform = [&](std::size_t k, io::Snapshot& snap) {
+    if (rotating) {
+      frame.to_rotating(snap.tracers, snap.time_myr);
+      snap.frame = "rotating";
+      snap.frame_pattern_speed = frame.pattern_speed;
+    }
+    if (k + 1 == parts.size() && !d.relative_error.empty())
+      for (std::size_t i = 0; i < snap.flags.size(); ++i)
+        if (d.relative_error[i] > 1e-6) snap.flags[i] |= io::kFlagLargeError;
+  };
+  io::assemble(o.output, io::make_provenance(s.text, s.path, s.model_text, s.seed), s.model,
+               orbit::method_name(s.integration.method), parts, d, transform);
+  fs::remove_all(dir);
+  res.complete = true;
+  res.reached_myr = s.end_myr;
+  res.seconds = prog.seconds();
+  res.diagnostics = std::move(d);
+  return res;
+}
+
+} // namespace undertow::run

@@ -1,0 +1,210 @@
+#include "undertow/scenario/scenario.hpp"
+
+#include <cmath>
+#include <filesystem>
+#include <fstream>
+#include <sstream>
+
+#include "undertow/io/toml_table.hpp"
+#include "undertow/potential/model_file.hpp"
+
+namespace undertow::scenario {
+namespace {
+
+using io::TableReader;
+namespace fs = std::filesystem;
+
+std::string read_text(const std::string& path) {
+  std::ifstream in(path, std::ios::binary);
+  if (!in) throw InputError(SourcePlace{path, 0, 0, {}}, "cannot open file");
+  std::stringstream ss;
+  ss << in.rdbuf();
+  return ss.str();
+}
+
+// Paths in a scenario are relative to the scenario's own folder.
+std::string resolve(const std::string& scenario_path, const std::string& p) {
+  const fs::path q(p);
+  if (q.is_absolute()) return p;
+  return (fs::path(scenario_path).parent_path() / q).lexically_normal().string();
+}
+
+template <class F> auto at_keys(const TableReader& r, F&& f) {
+  try {
+    return f();
+  } catch (const detail::ParameterError& e) {
+    r.fail(e.key, e.what());
+  }
+}
+
+void read_tracers(Scenario& s, const TableReader& r) {
+  const std::string source = r.string("source");
+  if (source == "disk") {
+    r.check_keys({"source", "count", "scale_length_kpc", "r_min_kpc", "r_max_kpc",
+                  "vertical_profile", "scale_height_kpc", "sigma_r_kms", "sigma_z_kms",
+                  "dispersion_radius_kpc", "dispersion_scale_kpc", "asymmetric_drift"});
+    auto& d = s.tracers.disk;
+    s.tracers.kind = TracerSource::Kind::disk;
+    const double count = r.number("count");
+    if (!(count >= 1 && count <= 1e10 && std::floor(count) == count))
+      r.fail("count", "must be a whole number from 1 to 1e10");
+    d.count = std::uint64_t(count);
+    d.scale_length_kpc = r.number("scale_length_kpc");
+    d.r_min_kpc = r.number("r_min_kpc");
+    d.r_max_kpc = r.number("r_max_kpc");
+    const std::string vp = r.string_or("vertical_profile", "sech2");
+    if (vp == "sech2")
+      d.vertical = tracers::DiskPopulation::Vertical::sech2;
+    else if (vp == "exponential")
+      d.vertical = tracers::DiskPopulation::Vertical::exponential;
+    else
+      r.fail("vertical_profile", "must be \"sech2\" or \"exponential\", got \"" + vp + "\"");
+    d.scale_height_kpc = r.number("scale_height_kpc");
+    d.sigma_r_kms = r.number("sigma_r_kms");
+    d.sigma_z_kms = r.number("sigma_z_kms");
+    d.dispersion_radius_kpc = r.number_or("dispersion_radius_kpc", 8.0);
+    d.dispersion_scale_kpc = r.number_or("dispersion_scale_kpc", INFINITY);
+    d.asymmetric_drift = r.boolean_or("asymmetric_drift", true);
+    at_keys(r, [&] {
+      d.validate();
+      return 0;
+    });
+  } else if (source == "file") {
+    r.check_keys({"source", "file"});
+    s.tracers.kind = TracerSource::Kind::file;
+    s.tracers.file = resolve(s.path, r.string("file"));
+  } else {
+    r.fail("source", "must be \"disk\" or \"file\", got \"" + source + "\"");
+  }
+}
+
+void read_integration(Scenario& s, const TableReader& r) {
+  r.check_keys({"method", "start_myr", "end_myr", "step_myr", "tolerance", "batch_size", "frame",
+                "frame_pattern", "max_radius_kpc"});
+  try {
+    s.integration.method = orbit::method_from_name(r.string("method"));
+  } catch (const InputError& e) {
+    r.fail("method", e.what());
+  }
+  s.start_myr = r.number_or("start_myr", 0.0);
+  s.end_myr = r.number("end_myr");
+  if (s.end_myr == s.start_myr) r.fail("end_myr", "must differ from start_myr");
+  s.integration.step_myr = r.number("step_myr");
+  if (!(s.integration.step_myr > 0)) r.fail("step_myr", "must be positive");
+  s.integration.tolerance = r.number_or("tolerance", 1e-10);
+  if (!(s.integration.tolerance > 0 && s.integration.tolerance < 1))
+    r.fail("tolerance", "must lie in (0, 1)");
+  const double batch = r.number_or("batch_size", 4096);
+  if (!(batch >= 1 && batch <= 1 << 24 && std::floor(batch) == batch))
+    r.fail("batch_size", "must be a whole number from 1 to 16777216");
+  s.integration.batch = std::size_t(batch);
+  s.max_radius_kpc = r.number_or("max_radius_kpc", 500.0);
+  if (!(s.max_radius_kpc > 0)) r.fail("max_radius_kpc", "must be positive");
+  const std::string frame = r.string_or("frame", "inertial");
+  if (frame == "rotating") {
+    if (orbit::is_symplectic(s.integration.method))
+      r.fail("frame", "the " + orbit::method_name(s.integration.method) +
+                          " stepper integrates in the inertial frame (the rotating-frame "
+                          "equations are not separable); use an adaptive method, or ask for "
+                          "rotating-frame output in [output]");
+    const std::string label = r.string("frame_pattern");
+    for (const auto& p : s.model.patterns)
+      if (p.label == label) s.integration.rotating_frame_speed = p.pattern_speed;
+    if (!s.integration.rotating_frame_speed)
+      r.fail("frame_pattern", "no pattern labelled '" + label + "'");
+  } else if (frame != "inertial") {
+    r.fail("frame", "must be \"inertial\" or \"rotating\", got \"" + frame + "\"");
+  }
+}
+
+void read_output(Scenario& s, const TableReader& r) {
+  r.check_keys({"times_myr", "every_myr", "frame", "frame_pattern"});
+  auto& o = s.output;
+  const bool list = r.has("times_myr"), every = r.has("every_myr");
+  if (list && every) r.fail("", "give times_myr or every_myr, not both");
+  const double lo = std::min(s.start_myr, s.end_myr), hi = std::max(s.start_myr, s.end_myr);
+  if (list) {
+    o.times_myr = r.numbers("times_myr");
+    for (std::size_t i = 0; i < o.times_myr.size(); ++i) {
+      const double t = o.times_myr[i];
+      if (t < lo || t > hi)
+        r.fail("times_myr", "every output time must lie between start_myr and end_myr");
+      const bool ordered =
+          i == 0 || (s.end_myr > s.start_myr ? t > o.times_myr[i - 1] : t < o.times_myr[i - 1]);
+      if (!ordered)
+        r.fail("times_myr",
+               "output times must run in the direction of integration, without repeats");
+    }
+    if (!o.times_myr.empty() && o.times_myr.front() == s.start_myr)
+      o.times_myr.erase(o.times_myr.begin());
+  }
+  if (every) {
+    const double e = r.number("every_myr");
+    if (!(e > 0)) r.fail("every_myr", "must be positive");
+    const double n = std::floor((hi - lo) / e * (1 + 1e-12));
+    if (n > 100000) r.fail("every_myr", "gives more than 100000 snapshots");
+    for (double k = 1; k <= n; ++k)
+      o.times_myr.push_back(s.end_myr > s.start_myr ? s.start_myr + k * e : s.start_myr - k * e);
+  }
+  if (o.times_myr.empty() || o.times_myr.back() != s.end_myr) o.times_myr.push_back(s.end_myr);
+  const std::string frame = r.string_or("frame", "inertial");
+  if (frame == "rotating") {
+    o.frame = Output::Frame::rotating;
+    o.frame_pattern = r.string("frame_pattern");
+    bool found = false;
+    for (const auto& p : s.model.patterns)
+      if (p.label == o.frame_pattern) o.frame_pattern_speed = p.pattern_speed, found = true;
+    if (!found) r.fail("frame_pattern", "no pattern labelled '" + o.frame_pattern + "'");
+  } else if (frame != "inertial") {
+    r.fail("frame", "must be \"inertial\" or \"rotating\", got \"" + frame + "\"");
+  }
+}
+
+} // namespace
+
+Scenario parse_scenario(const std::string& text, const std::string& path) {
+  Scenario s;
+  s.path = path;
+  s.text = text;
+  const toml::table root = io::parse_toml_text(text, path);
+  TableReader r(root, path, "");
+  r.check_keys({"run", "galaxy", "tracers", "integration", "output"});
+  const auto section = [&](const char* name) {
+    const toml::table* t = r.table(name);
+    if (!t) r.fail("", std::string("missing [") + name + "] table");
+    return TableReader(*t, path, name);
+  };
+  {
+    TableReader run = section("run");
+    run.check_keys({"name", "description", "seed"});
+    s.name = run.string("name");
+    s.description = run.string_or("description", "");
+    const double seed = run.number("seed");
+    if (!(seed >= 0 && seed < 9.007199254740992e15 && std::floor(seed) == seed))
+      run.fail("seed", "must be a whole number from 0 to 2^53");
+    s.seed = std::uint64_t(seed);
+  }
+  {
+    const toml::table* g = r.table("galaxy");
+    if (!g) r.fail("", "missing [galaxy] table");
+    TableReader gr(*g, path, "galaxy");
+    if (gr.has("model_file")) {
+      gr.check_keys({"model_file"});
+      s.model_path = resolve(path, gr.string("model_file"));
+      s.model_text = read_text(s.model_path);
+      s.model = potential::parse_model_text(s.model_text, s.model_path);
+    } else {
+      s.model = potential::model_from_table(*g, path, "galaxy");
+    }
+  }
+  read_tracers(s, section("tracers"));
+  read_integration(s, section("integration"));
+  read_output(s, section("output"));
+  return s;
+}
+
+Scenario load_scenario(const std::string& path) {
+  return parse_scenario(read_text(path), path);
+}
+
+} // namespace undertow::scenario
