@@ -105,6 +105,27 @@ File File::create(const std::string& path) {
   return f;
 }
 
+File File::create_in_memory(const std::string& name) {
+  quiet();
+  File f;
+  f.path_ = name;
+  Handle fapl(H5Pcreate(H5P_FILE_ACCESS), H5Pclose);
+  H5Pset_fapl_core(fapl.id(), 16 << 20, 0);
+  f.h_ = Handle(check(H5Fcreate(name.c_str(), H5F_ACC_TRUNC, H5P_DEFAULT, fapl.id()), f,
+                      "cannot create an HDF5 file in memory"),
+                H5Fclose);
+  return f;
+}
+
+std::vector<char> File::image() const {
+  flush();
+  const ssize_t n = H5Fget_file_image(h_.id(), nullptr, 0);
+  if (n < 0) fail(*this, "cannot get the file image");
+  std::vector<char> buf(static_cast<std::size_t>(n));
+  if (H5Fget_file_image(h_.id(), buf.data(), buf.size()) < 0) fail(*this, "cannot get the file image");
+  return buf;
+}
+
 File File::open_read(const std::string& path) {
   quiet();
   File f;

@@ -7,6 +7,7 @@
 #include <unistd.h>
 
 #include "undertow/error.hpp"
+#include "undertow/io/atomic_file.hpp"
 #include "undertow/io/hdf5.hpp"
 #include "undertow/potential/describe.hpp"
 
@@ -16,25 +17,19 @@ namespace {
 namespace fs = std::filesystem;
 constexpr std::int64_t kFormatVersion = 1;
 
-std::string temporary_for(const std::string& path) {
-  const fs::path p(path);
-  return (p.parent_path() / ("." + p.filename().string() + ".tmp-" + std::to_string(::getpid())))
-      .string();
-}
 
-// Runs write(tmp) and renames tmp to path; on any failure removes tmp and rethrows.
+// Builds the file in memory with write(file), then writes its bytes under a temporary name and
+// renames it into place (io::AtomicFile): a full disk or a write error leaves nothing behind.
 template <class F> void write_atomically(const std::string& path, F&& write) {
-  const std::string tmp = temporary_for(path);
-  try {
-    write(tmp);
-  } catch (...) {
-    std::remove(tmp.c_str());
-    throw;
+  std::vector<char> bytes;
+  {
+    const auto f = h5::File::create_in_memory(path);
+    write(f);
+    bytes = f.image();
   }
-  if (std::rename(tmp.c_str(), path.c_str()) != 0) {
-    std::remove(tmp.c_str());
-    throw InputError(SourcePlace{path, 0, 0, {}}, "cannot move the finished file into place");
-  }
+  AtomicFile out(path);
+  out.stream().write(bytes.data(), std::streamsize(bytes.size()));
+  out.commit();
 }
 
 void write_tracers(const h5::File& f, hid_t g, const Snapshot& s) {
@@ -103,11 +98,9 @@ Provenance make_provenance(const std::string& text, const std::string& file,
 }
 
 void write_snapshot_part(const std::string& path, const Snapshot& s) {
-  write_atomically(path, [&](const std::string& tmp) {
-    const auto f = h5::File::create(tmp);
+  write_atomically(path, [&](const h5::File& f) {
     h5::set_attr(f, f.id(), "undertow_part", std::int64_t(1));
     write_tracers(f, f.id(), s);
-    f.flush();
   });
 }
 
@@ -119,8 +112,7 @@ Snapshot read_snapshot_part(const std::string& path) {
 void assemble(const std::string& out, const Provenance& p, const potential::Model& m,
               const std::string& method, const std::vector<std::string>& parts,
               const Diagnostics& d, const std::function<void(std::size_t, Snapshot&)>& transform) {
-  write_atomically(out, [&](const std::string& tmp) {
-    const auto f = h5::File::create(tmp);
+  write_atomically(out, [&](const h5::File& f) {
     const hid_t root = f.id();
     h5::set_attr(f, root, "undertow_format", std::string("snapshots"));
     h5::set_attr(f, root, "format_version", kFormatVersion);
@@ -175,7 +167,6 @@ void assemble(const std::string& out, const Provenance& p, const potential::Mode
       h5::write_doubles(f, g.id(), "worst_errors", d.worst_errors, 1, "", "their relative errors");
     }
     h5::set_attr(f, root, "complete", std::int64_t(1));
-    f.flush();
   });
 }
 

@@ -103,11 +103,16 @@ EnsembleResult run_ensemble(const scenario::Scenario& s, const EnsembleOptions& 
 
   if (o.restart && fs::exists(dir)) fs::remove_all(dir);
   std::size_t have = 0; // whole parts present
+  EnsembleResult res;
+  orbit::PhaseSpace p;
+  const double birth = s.start_myr;
   if (fs::exists(dir)) {
     if (!fs::exists(id_file) || read_all(id_file) != identity(s))
       throw InputError(SourcePlace{dir, 0, 0, {}},
                        "holds an unfinished run of a different scenario (or model file); remove it "
                        "or run again with --restart");
+    for (const auto& e : fs::directory_iterator(dir)) // temporaries of a run that was killed
+      if (e.path().filename().string().rfind(".part_", 0) == 0) fs::remove(e.path());
     while (have < times.size() && fs::exists(part_name(dir, have))) {
       try {
         (void)io::read_snapshot_part(part_name(dir, have)); // a damaged part is redone
@@ -117,27 +122,29 @@ EnsembleResult run_ensemble(const scenario::Scenario& s, const EnsembleOptions& 
       }
       ++have;
     }
-  } else {
-    std::error_code ec;
-    fs::create_directories(dir, ec);
-    if (ec) throw InputError(SourcePlace{dir, 0, 0, {}}, "cannot create folder: " + ec.message());
-    io::AtomicFile f(id_file);
-    f.stream() << identity(s);
-    f.commit();
   }
-
-  EnsembleResult res;
-  orbit::PhaseSpace p;
-  const double birth = s.start_myr;
   if (have == 0) {
-    p = initial_tracers(s);
-    io::write_snapshot_part(part_name(dir, 0), snapshot_of(p, times[0], birth, s.max_radius_kpc));
+    p = initial_tracers(s); // all input is checked before anything is written
+    const bool fresh = !fs::exists(dir);
+    try {
+      std::error_code ec;
+      fs::create_directories(dir, ec);
+      if (ec) throw InputError(SourcePlace{dir, 0, 0, {}}, "cannot create folder: " + ec.message());
+      io::AtomicFile f(id_file);
+      f.stream() << identity(s);
+      f.commit();
+      io::write_snapshot_part(part_name(dir, 0), snapshot_of(p, times[0], birth, s.max_radius_kpc));
+    } catch (...) {
+      std::error_code ec;
+      if (fresh) fs::remove_all(dir, ec); // leave nothing behind
+      throw;
+    }
     have = 1;
   } else {
     p = io::read_snapshot_part(part_name(dir, have - 1)).tracers;
     if (o.log && have < times.size())
-      *o.log << "resuming from t = " << times[have - 1] << " Myr (" << have << " of "
-             << times.size() << " snapshots on disk)\n";
+      *o.log << "resuming from t = " << times[have - 1] << " Myr (" << have << " of " << times.size()
+             << " snapshots on disk)\n";
   }
   res.tracers = p.size();
   Progress prog(o.progress, p.size(), times.size() - 1);
@@ -154,6 +161,7 @@ EnsembleResult run_ensemble(const scenario::Scenario& s, const EnsembleOptions& 
       res.orbit_steps +=
           double(p.size()) * double(orbit::steps_for(ta, tb, s.integration.step_myr));
     io::write_snapshot_part(part_name(dir, k), snapshot_of(p, tb, birth, s.max_radius_kpc));
+    if (o.on_snapshot) o.on_snapshot(tb);
   }
   prog.finish();
 

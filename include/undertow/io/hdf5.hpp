@@ -30,6 +30,10 @@ private:
 class File {
 public:
   static File create(const std::string& path); // truncates
+  // A file built in memory (HDF5 core driver); image() returns its bytes, which the caller
+  // writes with checked I/O. A full disk then never leaves HDF5 with a file it cannot close.
+  static File create_in_memory(const std::string& name);
+  std::vector<char> image() const;
   static File open_read(const std::string& path);
   const std::string& path() const { return path_; }
   hid_t id() const { return h_.id(); }

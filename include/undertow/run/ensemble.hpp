@@ -5,6 +5,8 @@
 // a node that dies) is resumed by running the same command again: it restarts from the last
 // whole part and gives the same bits as a run that never stopped.
 #include <atomic>
+#include <functional>
+#include <functional>
 #include <ostream>
 #include <string>
 
@@ -19,6 +21,7 @@ struct EnsembleOptions {
   bool progress = false;                   // progress lines on stderr (for terminals)
   const std::atomic<bool>* stop = nullptr; // set from a signal handler to stop between batches
   std::ostream* log = nullptr;             // one-line notes (resuming, finished)
+  std::function<void(double t_myr)> on_snapshot; // after each snapshot is safely on disk
 };
 
 struct EnsembleResult {
