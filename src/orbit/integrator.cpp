@@ -15,6 +15,7 @@
 
 #include "undertow/error.hpp"
 #include "undertow/orbit/frame.hpp"
+#include "undertow/orbit/soa_algebra.hpp"
 #include "undertow/units.hpp"
 
 namespace undertow::orbit {
@@ -74,21 +75,31 @@ void scatter(PhaseSpace& p, std::size_t first, std::size_t n, const Vec& q, cons
   }
 }
 
+// Steppers and state buffers are kept per thread and reused from batch to batch, so a long run
+// does not allocate, fault in and release memory for every batch.
+using Verlet = ode::velocity_verlet<Vec, Vec, double, Vec, double, double, SoaAlgebra,
+                                    ode::default_operations, ode::always_resizer>;
+using McLachlan = ode::symplectic_rkn_sb3a_mclachlan<Vec, Vec, double, Vec, Vec, double, SoaAlgebra,
+                                                     ode::default_operations, ode::always_resizer>;
+
 void advance_batch_symplectic(const Model& m, PhaseSpace& p, std::size_t first, std::size_t n,
                               double t0, double dt, std::size_t steps, Method method) {
   const bool extended = method == Method::mclachlan4;
-  Vec q(3 * n + (extended ? 1 : 0)), v(q.size());
+  thread_local Vec q, v;
+  q.resize(3 * n + (extended ? 1 : 0));
+  v.resize(q.size());
   gather(p, first, n, q, v);
   const BatchForce f{&m, n};
   // Each step starts at t0 + k dt computed afresh, so a run resumed at a segment boundary
   // repeats the same arithmetic as one that never stopped.
   if (method == Method::leapfrog) {
-    ode::velocity_verlet<Vec> st;
+    thread_local Verlet st;
+    st.reset(); // no acceleration carried over from another batch
     const VerletSystem sys{f};
     for (std::size_t k = 0; k < steps; ++k)
       st.do_step(sys, std::make_pair(std::ref(q), std::ref(v)), t0 + double(k) * dt, dt);
   } else {
-    ode::symplectic_rkn_sb3a_mclachlan<Vec> st;
+    thread_local McLachlan st;
     const ExtendedSystem sys{f};
     v[3 * n] = 1.0;
     for (std::size_t k = 0; k < steps; ++k) {

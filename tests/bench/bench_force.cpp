@@ -70,10 +70,18 @@ void pointwise(benchmark::State& state, bool spiral) {
   per_eval(state);
 }
 
-void BM_axisymmetric_batch4096(benchmark::State& s) { batched(s, false); }
-void BM_spiral_batch4096(benchmark::State& s) { batched(s, true); }
-void BM_axisymmetric_pointwise(benchmark::State& s) { pointwise(s, false); }
-void BM_spiral_pointwise(benchmark::State& s) { pointwise(s, true); }
+void BM_axisymmetric_batch4096(benchmark::State& s) {
+  batched(s, false);
+}
+void BM_spiral_batch4096(benchmark::State& s) {
+  batched(s, true);
+}
+void BM_axisymmetric_pointwise(benchmark::State& s) {
+  pointwise(s, false);
+}
+void BM_spiral_pointwise(benchmark::State& s) {
+  pointwise(s, true);
+}
 
 } // namespace
 

@@ -18,7 +18,8 @@ std::string scenario_text(const std::string& method = "leapfrog") {
 name = "small"
 seed = 11
 [galaxy]
-model_file = ")") + UNDERTOW_SOURCE_DIR + R"(/potentials/kestrel.toml"
+model_file = ")") +
+         UNDERTOW_SOURCE_DIR + R"(/potentials/kestrel.toml"
 [tracers]
 source = "disk"
 count = 700
@@ -29,7 +30,8 @@ scale_height_kpc = 0.05
 sigma_r_kms = 8
 sigma_z_kms = 4
 [integration]
-method = ")" + method + R"("
+method = ")" +
+         method + R"("
 end_myr = 200
 step_myr = 0.5
 batch_size = 128
@@ -124,10 +126,12 @@ TEST_CASE("The kept parts of another scenario's run are never mixed in", "[run]"
   o.stop = &stop;
   o.on_snapshot = [&](double) { stop = true; };
   REQUIRE_FALSE(run::run_ensemble(sc, o).complete);
-  const auto other = scenario::parse_scenario(scenario_text("mclachlan4"), (d / "small.toml").string());
+  const auto other =
+      scenario::parse_scenario(scenario_text("mclachlan4"), (d / "small.toml").string());
   stop = false;
   o.on_snapshot = {};
-  CHECK_THROWS_WITH(run::run_ensemble(other, o), Catch::Contains("unfinished run of a different scenario"));
+  CHECK_THROWS_WITH(run::run_ensemble(other, o),
+                    Catch::Contains("unfinished run of a different scenario"));
   o.restart = true;
   CHECK(run::run_ensemble(other, o).complete);
 }

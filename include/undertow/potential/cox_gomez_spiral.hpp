@@ -53,7 +53,10 @@ struct CoxGomezSpiral {
     double amp;    // growth factor
     double offset; // -N psi_p(t)
   };
-  At at(double growth, double angle) const { return {growth, -nd * angle}; }
+  // Offset reduced to [-pi, pi] (see LogSpiral::at).
+  At at(double growth, double angle) const {
+    return {growth, std::remainder(-nd * angle, 2 * units::pi)};
+  }
 
   template <class T>
   UNDERTOW_INLINE T potential_t(const At& w, const T& x, const T& y, const T& z) const {

@@ -23,6 +23,7 @@ struct LogSpiral {
   double inv_h = 0;  // 1 / scale height, 1/kpc (0: no vertical decay)
   double amp = 0;    // A, (km/s)^2
   double norm = 1;   // 1 / T(R_ref)
+  double log_rref = std::log(8.0);
 
   // pitch in degrees (0, 90); envelope_kpc and height_kpc may be +infinity.
   static LogSpiral make(int arms, double pitch_deg, double rref_kpc, double envelope_kpc,
@@ -51,6 +52,7 @@ struct LogSpiral {
     s.inv_h = 1 / height_kpc;
     s.amp = detail::finite(amplitude_kms2, "amplitude_kms2");
     s.norm = (s.rref * s.rref + s.rin2) / (s.rref * s.rref);
+    s.log_rref = std::log(s.rref);
     return s;
   }
 
@@ -58,7 +60,11 @@ struct LogSpiral {
     double amp;    // A times the growth factor
     double offset; // -m psi_p(t)
   };
-  At at(double growth, double angle) const { return {amp * growth, -md * angle}; }
+  // The phase offset is reduced to [-pi, pi]: exact, and it keeps the per-position cos and sin
+  // arguments small (libmvec's large-argument path is several times slower).
+  At at(double growth, double angle) const {
+    return {amp * growth, std::remainder(-md * angle, 2 * units::pi)};
+  }
 
   // Peak over azimuth of |dPhi/dR| at R_ref, z = 0, per unit amplitude A (1/kpc).
   double peak_radial_force_per_amplitude() const {
@@ -89,22 +95,28 @@ struct LogSpiral {
   template <int M>
   UNDERTOW_INLINE void add_accel_m(const At& w, double x, double y, double z, double& ax,
                                    double& ay, double& az) const {
+    // One division for three reciprocals (1/R, 1/(R^2 + R_in^2), 1/(1 + e)): division is the
+    // slowest vector operation in this kernel.
     const double R2 = x * x + y * y + detail::tiny2;
     const double R = std::sqrt(R2);
-    const double iR = 1.0 / R;
-    const double d = R2 + rin2;
-    const double E = std::exp((rref - R) * inv_rs) * norm;
-    const double F = E * R2 / d;
-    const double Fp = E * (2 * R * rin2 / (d * d) - inv_rs * R2 / d);
-    const double FoR = E * R / d; // F / R
-    const double FoR2 = E / d;    // F / R^2
+    const double dd = R2 + rin2;
     const double e = std::exp(-2.0 * std::fabs(z) * inv_h);
     const double ope = 1.0 + e;
-    const double Z = 4.0 * e / (ope * ope);
-    const double Zp = -2.0 * inv_h * Z * std::copysign((1.0 - e) / ope, z);
+    const double inv = 1.0 / (R * dd * ope);
+    const double iR = inv * dd * ope;
+    const double id = inv * R * ope;
+    const double iope = inv * R * dd;
+    const double E = std::exp((rref - R) * inv_rs) * norm;
+    const double Eid = E * id;
+    const double F = Eid * R2;
+    const double Fp = Eid * (2 * R * rin2 * id - inv_rs * R2);
+    const double FoR = Eid * R; // F / R
+    const double FoR2 = Eid;    // F / R^2
+    const double Z = 4.0 * e * iope * iope;
+    const double Zp = -2.0 * inv_h * Z * std::copysign((1.0 - e) * iope, z);
     double c, s;
     if constexpr (M == 0) {
-      const double chi = md * std::atan2(y, -x) + w.offset + md * cotp * std::log(R / rref);
+      const double chi = md * std::atan2(y, -x) + w.offset + md * cotp * (std::log(R) - log_rref);
       c = std::cos(chi);
       s = std::sin(chi);
     } else {
@@ -116,7 +128,7 @@ struct LogSpiral {
         ps = pc * uy + ps * ux;
         pc = t;
       }
-      const double phase = w.offset + md * cotp * std::log(R / rref);
+      const double phase = w.offset + md * cotp * (std::log(R) - log_rref);
       const double cp = std::cos(phase), sp = std::sin(phase);
       c = pc * cp - ps * sp;
       s = ps * cp + pc * sp;

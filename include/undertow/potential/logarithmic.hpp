@@ -38,8 +38,9 @@ struct Logarithmic {
   double density(double x, double y, double z) const {
     const double R2 = x * x + y * y, z2 = z * z, q2 = 1 / iq2;
     const double d = rc2 + R2 + z2 * iq2;
-    return v02 / (4 * units::pi * units::G * q2) * ((2 * q2 + 1) * rc2 + R2 + (2 - iq2) * z2) /
-           (d * d);
+    return v02 / (4 * units::pi * units::G * q2) *
+           ((2 * q2 + 1) * rc2 + R2 + std::fmax(2 - iq2, 0.0) * z2) /
+           (d * d); // 1/q^2 may round just above 2 at q = 1/sqrt(2)
   }
   void scale_mass(double s) { v02 *= s; }
 };
