@@ -11,3 +11,5 @@ mkdir -p demo/out
 ./build/undertow tabulate potentials/kestrel.toml --from 0.5 --to 20 --step 0.5 --format csv -o demo/out/kestrel-profile.csv
 ./build/undertow tabulate potentials/kestrel.toml --from 1 --to 16 --step 1 --format markdown -o demo/out/kestrel-profile.md
 cat demo/out/kestrel-profile.md
+echo
+./build/undertow integrate demo/kestrel-orbits.toml -o demo/out/kestrel-orbits.h5 --restart

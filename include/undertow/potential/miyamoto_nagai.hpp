@@ -26,10 +26,11 @@ struct MiyamotoNagai {
     const double zeta = std::sqrt(z * z + b * b);
     const double s = a + zeta;
     const double d2 = x * x + y * y + s * s;
-    const double f = -gm / (d2 * std::sqrt(d2));
+    const double g = -gm / (d2 * std::sqrt(d2) * zeta); // one division for both factors
+    const double f = g * zeta;
     ax += f * x;
     ay += f * y;
-    az += f * z * s / zeta;
+    az += g * z * s;
   }
   double density(double x, double y, double z) const {
     const double R2 = x * x + y * y;

@@ -40,8 +40,8 @@ struct Nfw {
     const double r2 = x * x + y * y + z * z + detail::tiny2;
     const double r = std::sqrt(r2);
     const double u = r / rs;
-    const double m = std::log1p(u) - u / (1 + u); // M(r) / (4 pi rho_s r_s^3)
-    const double f = -gms * m / (r2 * r);
+    // M(r) / (4 pi rho_s r_s^3) = ln(1 + u) - u / (1 + u), with one division for both quotients
+    const double f = -gms * (std::log1p(u) * (1 + u) - u) / ((1 + u) * r2 * r);
     ax += f * x;
     ay += f * y;
     az += f * z;
