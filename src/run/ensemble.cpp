@@ -69,15 +69,19 @@ class Progress {
 public:
   Progress(bool on, std::size_t tracers, std::size_t segments)
       : on_(on), n_(tracers), segs_(segments), t0_(clock::now()) {}
-  void update(std::size_t seg, std::size_t done, double ta, double tb) {
+  // steps: fixed steps per segment (0 for adaptive methods)
+  void update(std::size_t seg, std::size_t done, double ta, double tb, std::size_t steps) {
     if (!on_) return;
     const double el = seconds();
     const double frac = (double(seg) + double(done) / double(n_)) / double(segs_);
     const double left = frac > 0 ? el * (1 - frac) / frac : 0;
-    std::fprintf(
-        stderr, "\r  t %.6g -> %.6g Myr (%zu/%zu): %zu/%zu tracers, %.3g tracers/s, %.0f s left   ",
-        ta, tb, seg + 1, segs_, done, n_,
-        el > 0 ? (double(seg) * double(n_) + double(done)) / el : 0.0, left);
+    const double orbits = double(seg) * double(n_) + double(done);
+    char rate[64] = "";
+    if (steps > 0 && el > 0)
+      std::snprintf(rate, sizeof rate, ", %.3g million orbit-steps/s",
+                    orbits * double(steps) / el / 1e6);
+    std::fprintf(stderr, "\r  t %.6g -> %.6g Myr (%zu/%zu): %zu/%zu tracers%s, %.0f s left   ", ta,
+                 tb, seg + 1, segs_, done, n_, rate, left);
     std::fflush(stderr);
   }
   void finish() {
@@ -150,7 +154,10 @@ EnsembleResult run_ensemble(const scenario::Scenario& s, const EnsembleOptions& 
   Progress prog(o.progress, p.size(), times.size() - 1);
   for (std::size_t k = have; k < times.size(); ++k) {
     const double ta = times[k - 1], tb = times[k];
-    const auto report = [&](std::size_t done) { prog.update(k - 1, done, ta, tb); };
+    const std::size_t steps = orbit::is_symplectic(s.integration.method)
+                                  ? orbit::steps_for(ta, tb, s.integration.step_myr)
+                                  : 0;
+    const auto report = [&](std::size_t done) { prog.update(k - 1, done, ta, tb, steps); };
     if (!orbit::advance(s.model, p, ta, tb, s.integration, report, o.stop)) {
       prog.finish();
       res.reached_myr = ta;
