@@ -5,11 +5,13 @@
 #include <optional>
 #include <sstream>
 
+#include "undertow/dynamics/frequencies.hpp"
 #include "undertow/dynamics/profile.hpp"
 #include "undertow/dynamics/resonances.hpp"
 #include "undertow/error.hpp"
 #include "undertow/io/atomic_file.hpp"
 #include "undertow/potential/model_file.hpp"
+#include "undertow/residuals/report.hpp"
 #include "undertow/run/ensemble.hpp"
 #include "undertow/scenario/scenario.hpp"
 
@@ -120,6 +122,81 @@ int run_integrate(const IntegrateArgs& a) {
   return 0;
 }
 
+struct ResidualArgs {
+  std::string catalog, model, prefix;
+  std::optional<double> flat_theta0;
+  double slope = 0;
+  double r0 = 8.1, z_sun = 0.0;
+  std::optional<double> theta0;
+  std::vector<double> solar{11.1, 12.24, 7.25};
+  std::string distance = "inverse", lsr = "apex";
+  double edsd_length = 1.35, min_snr = 0;
+  int draws = 1000, resamples = 1000;
+  std::uint64_t seed = 1;
+};
+
+int run_residuals(const ResidualArgs& a) {
+  using namespace undertow;
+  residuals::ResidualSettings s;
+  s.sun.r0_kpc = a.r0;
+  s.sun.z_sun_kpc = a.z_sun;
+  s.sun.u_sun_kms = a.solar[0], s.sun.v_sun_kms = a.solar[1], s.sun.w_sun_kms = a.solar[2];
+  std::string rot;
+  std::optional<potential::Model> model;
+  if (!a.model.empty()) {
+    model = potential::load_model_file(a.model);
+    s.rotation.kind = residuals::RotationCurve::Kind::model;
+    s.rotation.model = [&](double R) { return dynamics::circular_speed(*model, R); };
+    s.sun.theta0_kms = a.theta0 ? *a.theta0 : dynamics::circular_speed(*model, a.r0);
+    rot = "model " + a.model;
+  } else if (a.flat_theta0) {
+    s.rotation.kind = a.slope != 0 ? residuals::RotationCurve::Kind::linear
+                                   : residuals::RotationCurve::Kind::flat;
+    s.rotation.theta0_kms = *a.flat_theta0;
+    s.rotation.r0_kpc = a.r0;
+    s.rotation.slope_kms_kpc = a.slope;
+    s.sun.theta0_kms = a.theta0 ? *a.theta0 : *a.flat_theta0;
+    rot = "Theta(R) = " + std::to_string(*a.flat_theta0) + " + " + std::to_string(a.slope) +
+          " (R - R0) km/s";
+  } else {
+    throw InputError("give a rotation curve: --model FILE or --flat THETA0_KMS");
+  }
+  s.distance = a.distance == "edsd" ? residuals::ResidualSettings::Distance::edsd
+                                    : residuals::ResidualSettings::Distance::inverse;
+  s.edsd_length_kpc = a.edsd_length;
+  s.min_parallax_snr = a.min_snr;
+  s.lsr = a.lsr == "components" ? sky::LsrForm::components : sky::LsrForm::apex;
+  s.draws = a.draws;
+  s.seed = a.seed;
+  const auto cat = residuals::read_catalog(a.catalog);
+  const auto res = residuals::compute_residuals(cat, s);
+  if (res.sources.empty())
+    throw InputError(SourcePlace{a.catalog, 0, 0, {}},
+                     "no source is left after the selection; nothing written");
+  const auto sum = residuals::summarise(res, a.resamples, a.seed);
+  char settings[512];
+  std::snprintf(
+      settings, sizeof settings,
+      "R0 = %g kpc, z_sun = %g kpc, Theta0 = %g km/s, solar motion (%g, %g, %g) km/s, %s, "
+      "distance %s, LSR %s, %d draws, seed %llu",
+      s.sun.r0_kpc, s.sun.z_sun_kpc, s.sun.theta0_kms, s.sun.u_sun_kms, s.sun.v_sun_kms,
+      s.sun.w_sun_kms, rot.c_str(), a.distance.c_str(), a.lsr.c_str(), s.draws,
+      static_cast<unsigned long long>(s.seed));
+  const std::string prefix =
+      a.prefix.empty() ? std::filesystem::path(a.catalog).stem().string() + "-residuals" : a.prefix;
+  const auto files = residuals::write_report(prefix, res, sum, settings);
+  io::write_table(std::cout, residuals::summary_table(sum), io::TableFormat::markdown);
+  for (const auto& e : res.excluded)
+    std::cout << "left out: " << e << "\n";
+  for (const auto& w : res.warnings)
+    std::cerr << "warning: " << w << "\n";
+  std::cout << "wrote";
+  for (const auto& f : files)
+    std::cout << " " << f;
+  std::cout << "\n";
+  return 0;
+}
+
 } // namespace
 
 int main(int argc, char** argv) {
@@ -164,10 +241,49 @@ int main(int argc, char** argv) {
                  "OpenMP threads (default: OMP_NUM_THREADS or all cores)")
       ->check(CLI::Range(1, 4096));
 
+  ResidualArgs ra;
+  auto* rs =
+      app.add_subcommand("residuals", "Peculiar motions (U_s, V_s, W_s) of a measured catalog's "
+                                      "sources, with Monte Carlo and first-order errors, and "
+                                      "their mean and dispersion with bootstrap errors");
+  rs->add_option("catalog", ra.catalog, "Catalog (CSV, docs/catalog-format.md)")->required();
+  rs->add_option("--model", ra.model, "Galaxy model file: Theta(R) is its circular speed");
+  rs->add_option("--flat", ra.flat_theta0, "Flat rotation curve Theta(R) = THETA0, km/s");
+  rs->add_option("--slope", ra.slope, "With --flat: dTheta/dR, km/s/kpc")->capture_default_str();
+  rs->add_option("--r0", ra.r0, "Sun's distance from the centre R0, kpc")->capture_default_str();
+  rs->add_option("--z-sun", ra.z_sun, "Sun's height above the plane, kpc")->capture_default_str();
+  rs->add_option("--theta0", ra.theta0,
+                 "Circular speed at the Sun, km/s (default: from the rotation curve)");
+  rs->add_option("--solar-motion", ra.solar, "U, V, W of the Sun, km/s")
+      ->expected(3)
+      ->delimiter(',')
+      ->capture_default_str();
+  rs->add_option("--distance", ra.distance,
+                 "inverse (1/parallax) or edsd (Bailer-Jones 2015 prior)")
+      ->check(CLI::IsMember({"inverse", "edsd"}))
+      ->capture_default_str();
+  rs->add_option("--edsd-length", ra.edsd_length, "Length scale of the edsd prior, kpc")
+      ->capture_default_str();
+  rs->add_option("--min-parallax-snr", ra.min_snr,
+                 "Leave out sources with parallax/error below this")
+      ->capture_default_str();
+  rs->add_option("--lsr", ra.lsr, "LSR definition: apex (exact, default) or components")
+      ->check(CLI::IsMember({"apex", "components"}))
+      ->capture_default_str();
+  rs->add_option("--draws", ra.draws, "Monte Carlo draws per source")
+      ->check(CLI::Range(2, 10000000))
+      ->capture_default_str();
+  rs->add_option("--bootstrap", ra.resamples, "Bootstrap resamples")
+      ->check(CLI::Range(2, 10000000))
+      ->capture_default_str();
+  rs->add_option("--seed", ra.seed, "Random seed")->capture_default_str();
+  rs->add_option("-o,--output", ra.prefix, "Output prefix (default: <catalog>-residuals)");
+
   CLI11_PARSE(app, argc, argv);
   try {
     if (t->parsed()) return run_tabulate(tab);
     if (ig->parsed()) return run_integrate(integ);
+    if (rs->parsed()) return run_residuals(ra);
   } catch (const undertow::InputError& e) {
     std::cerr << "undertow: error: " << e.what() << "\n";
     return 2;

@@ -122,7 +122,8 @@ std::vector<char> File::image() const {
   const ssize_t n = H5Fget_file_image(h_.id(), nullptr, 0);
   if (n < 0) fail(*this, "cannot get the file image");
   std::vector<char> buf(static_cast<std::size_t>(n));
-  if (H5Fget_file_image(h_.id(), buf.data(), buf.size()) < 0) fail(*this, "cannot get the file image");
+  if (H5Fget_file_image(h_.id(), buf.data(), buf.size()) < 0)
+    fail(*this, "cannot get the file image");
   return buf;
 }
 
@@ -252,6 +253,24 @@ void write_u32(const File& f, hid_t parent, const std::string& name,
                const std::vector<std::uint32_t>& data, const std::string& description) {
   write_array(f, parent, name, data.data(), data.size(), 1, H5T_NATIVE_UINT32, H5T_STD_U32LE);
   Handle ds(H5Dopen2(parent, name.c_str(), H5P_DEFAULT), H5Dclose);
+  write_units(f, ds.id(), "", description);
+}
+
+void write_strings(const File& f, hid_t parent, const std::string& name,
+                   const std::vector<std::string>& data, const std::string& description) {
+  Handle t = string_type();
+  hsize_t dims[1] = {data.size()};
+  Handle space(H5Screate_simple(1, dims, nullptr), H5Sclose);
+  Handle ds(check(H5Dcreate2(parent, name.c_str(), t.id(), space.id(), H5P_DEFAULT, H5P_DEFAULT,
+                             H5P_DEFAULT),
+                  f, "cannot create dataset " + name),
+            H5Dclose);
+  std::vector<const char*> p;
+  for (const auto& x : data)
+    p.push_back(x.c_str());
+  if (!p.empty())
+    check(H5Dwrite(ds.id(), t.id(), H5S_ALL, H5S_ALL, H5P_DEFAULT, p.data()), f,
+          "cannot write dataset " + name, 0);
   write_units(f, ds.id(), "", description);
 }
 

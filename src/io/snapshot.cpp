@@ -17,7 +17,6 @@ namespace {
 namespace fs = std::filesystem;
 constexpr std::int64_t kFormatVersion = 1;
 
-
 // Builds the file in memory with write(file), then writes its bytes under a temporary name and
 // renames it into place (io::AtomicFile): a full disk or a write error leaves nothing behind.
 template <class F> void write_atomically(const std::string& path, F&& write) {

@@ -60,6 +60,15 @@ std::string latex_number(const std::string& s) {
   return s.substr(0, e) + "\\times10^{" + std::to_string(ex) + "}";
 }
 
+std::string latex_text(const std::string& s) {
+  std::string o;
+  for (char c : s) {
+    if (c == '_' || c == '&' || c == '%' || c == '#') o += '\\';
+    o += c;
+  }
+  return o;
+}
+
 std::string header(const Column& c, bool latex) {
   if (latex)
     return (c.latex.empty() ? c.name : "$" + c.latex + "$") +
@@ -70,6 +79,7 @@ std::string header(const Column& c, bool latex) {
 } // namespace
 
 void write_table(std::ostream& os, const Table& t, TableFormat f) {
+  const bool labels = !t.label_header.empty() && t.row_labels.size() == t.rows.size();
   const auto cell = [&](std::size_t r, std::size_t c) {
     return format_number(t.rows[r][c], t.columns[c].precision);
   };
@@ -78,10 +88,12 @@ void write_table(std::ostream& os, const Table& t, TableFormat f) {
     if (!t.title.empty()) os << "# " << t.title << "\n";
     for (const auto& n : t.notes)
       os << "# " << n << "\n";
+    if (labels) os << t.label_header << ",";
     for (std::size_t c = 0; c < t.columns.size(); ++c)
       os << (c ? "," : "") << t.columns[c].name;
     os << "\n";
     for (std::size_t r = 0; r < t.rows.size(); ++r) {
+      if (labels) os << t.row_labels[r] << ",";
       for (std::size_t c = 0; c < t.columns.size(); ++c)
         os << (c ? "," : "") << cell(r, c);
       os << "\n";
@@ -90,14 +102,17 @@ void write_table(std::ostream& os, const Table& t, TableFormat f) {
   case TableFormat::markdown:
     if (!t.title.empty()) os << "**" << t.title << "**\n\n";
     os << "|";
+    if (labels) os << " " << t.label_header << " |";
     for (const auto& c : t.columns)
       os << " " << header(c, false) << " |";
     os << "\n|";
+    if (labels) os << ":---|";
     for (std::size_t c = 0; c < t.columns.size(); ++c)
       os << "---:|";
     os << "\n";
     for (std::size_t r = 0; r < t.rows.size(); ++r) {
       os << "|";
+      if (labels) os << " " << t.row_labels[r] << " |";
       for (std::size_t c = 0; c < t.columns.size(); ++c)
         os << " " << cell(r, c) << " |";
       os << "\n";
@@ -107,12 +122,14 @@ void write_table(std::ostream& os, const Table& t, TableFormat f) {
       os << n << "\n";
     break;
   case TableFormat::latex:
-    os << "% " << t.title << "\n\\begin{tabular}{" << std::string(t.columns.size(), 'r')
-       << "}\n\\toprule\n";
+    os << "% " << t.title << "\n\\begin{tabular}{" << (labels ? "l" : "")
+       << std::string(t.columns.size(), 'r') << "}\n\\toprule\n";
+    if (labels) os << t.label_header << " & ";
     for (std::size_t c = 0; c < t.columns.size(); ++c)
       os << (c ? " & " : "") << header(t.columns[c], true);
     os << " \\\\\n\\midrule\n";
     for (std::size_t r = 0; r < t.rows.size(); ++r) {
+      if (labels) os << latex_text(t.row_labels[r]) << " & ";
       for (std::size_t c = 0; c < t.columns.size(); ++c)
         os << (c ? " & " : "") << "$" << latex_number(cell(r, c)) << "$";
       os << " \\\\\n";

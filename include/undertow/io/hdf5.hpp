@@ -73,6 +73,9 @@ std::vector<std::uint64_t> read_u64(const File& f, hid_t parent, const std::stri
 std::vector<std::uint32_t> read_u32(const File& f, hid_t parent, const std::string& name);
 std::string dataset_units(const File& f, hid_t parent, const std::string& name);
 
+void write_strings(const File& f, hid_t parent, const std::string& name,
+                   const std::vector<std::string>& data, const std::string& description);
+
 // Turns HDF5's own error printing off for this process (we report errors ourselves).
 void quiet();
 

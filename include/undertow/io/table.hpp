@@ -19,6 +19,8 @@ struct Table {
   std::string title;
   std::vector<Column> columns;
   std::vector<std::vector<double>> rows;
+  std::string label_header;            // when set, a first text column ("name", "group")
+  std::vector<std::string> row_labels; // one per row
   std::vector<std::string> notes; // printed under the table (Markdown, LaTeX) or as # lines (CSV)
 
   void add_row(std::vector<double> row);
