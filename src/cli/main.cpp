@@ -10,9 +10,11 @@
 #include "undertow/dynamics/resonances.hpp"
 #include "undertow/error.hpp"
 #include "undertow/io/atomic_file.hpp"
+#include "undertow/observe/observation_file.hpp"
 #include "undertow/potential/model_file.hpp"
 #include "undertow/residuals/report.hpp"
 #include "undertow/run/ensemble.hpp"
+#include "undertow/scenario/provenance_model.hpp"
 #include "undertow/scenario/scenario.hpp"
 
 #include <csignal>
@@ -161,8 +163,9 @@ int run_residuals(const ResidualArgs& a) {
   } else {
     throw InputError("give a rotation curve: --model FILE or --flat THETA0_KMS");
   }
-  s.distance = a.distance == "edsd" ? residuals::ResidualSettings::Distance::edsd
-                                    : residuals::ResidualSettings::Distance::inverse;
+  s.distance = a.distance == "edsd-median" ? residuals::ResidualSettings::Distance::edsd_median
+               : a.distance == "edsd-mode" ? residuals::ResidualSettings::Distance::edsd
+                                           : residuals::ResidualSettings::Distance::inverse;
   s.edsd_length_kpc = a.edsd_length;
   s.min_parallax_snr = a.min_snr;
   s.lsr = a.lsr == "components" ? sky::LsrForm::components : sky::LsrForm::apex;
@@ -194,6 +197,61 @@ int run_residuals(const ResidualArgs& a) {
   for (const auto& f : files)
     std::cout << " " << f;
   std::cout << "\n";
+  return 0;
+}
+
+struct ObserveArgs {
+  std::string snapshot, observation, output;
+};
+
+int run_observe(const ObserveArgs& a) {
+  using namespace undertow;
+  const io::SnapshotReader rd(a.snapshot);
+  const auto model = scenario::model_of(rd.provenance(), a.snapshot);
+  const auto spec = observe::load_observation_file(a.observation, model);
+  const auto times = rd.times_myr();
+  std::size_t k = times.size() - 1;
+  if (spec.time_myr) {
+    k = times.size();
+    for (std::size_t i = 0; i < times.size(); ++i)
+      if (std::fabs(times[i] - *spec.time_myr) < 1e-9 * (1 + std::fabs(times[i]))) k = i;
+    if (k == times.size()) {
+      std::string list;
+      for (double t : times)
+        list += (list.empty() ? "" : ", ") + undertow::detail::num(t);
+      throw InputError(SourcePlace{a.observation, 0, 0, "time_myr"},
+                       "no snapshot at " + undertow::detail::num(*spec.time_myr) + " Myr in " +
+                           a.snapshot + " (times: " + list + ")");
+    }
+  }
+  std::vector<io::Snapshot> window;
+  std::vector<double> weights;
+  if (spec.settings.young) {
+    for (std::size_t i = 0; i <= k; ++i)
+      if (times[i] >= times[k] - spec.settings.young->age_window_myr - 1e-9)
+        window.push_back(rd.read(i));
+    weights = observe::young_weights(model, window, *spec.settings.young);
+  } else {
+    window.push_back(rd.read(k));
+  }
+  const auto mock = observe::observe(window.back(), weights, spec.settings);
+  if (mock.catalog.sources.empty())
+    throw InputError(SourcePlace{a.observation, 0, 0, "selection"},
+                     "no tracer passes the selection (" + std::to_string(mock.candidates) +
+                         " inside the volume, " + std::to_string(mock.rejected_snr) +
+                         " below the parallax signal-to-noise limit); nothing written");
+  const std::string out =
+      a.output.empty() ? std::filesystem::path(a.snapshot).stem().string() + "-mock.csv" : a.output;
+  residuals::write_catalog(out, mock.catalog);
+  std::cout << "wrote " << out << ": " << mock.catalog.sources.size()
+            << " sources observed at t = " << times[k] << " Myr (" << mock.candidates
+            << " tracers inside the selection volume, " << mock.rejected_snr
+            << " below the parallax signal-to-noise limit"
+            << (spec.settings.young
+                    ? ", weighted as young sources over " +
+                          undertow::detail::num(spec.settings.young->age_window_myr) + " Myr"
+                    : std::string())
+            << ")\n";
   return 0;
 }
 
@@ -259,8 +317,9 @@ int main(int argc, char** argv) {
       ->delimiter(',')
       ->capture_default_str();
   rs->add_option("--distance", ra.distance,
-                 "inverse (1/parallax) or edsd (Bailer-Jones 2015 prior)")
-      ->check(CLI::IsMember({"inverse", "edsd"}))
+                 "inverse (1/parallax), edsd-median or edsd-mode (exponentially decreasing "
+                 "space density prior, Bailer-Jones 2015)")
+      ->check(CLI::IsMember({"inverse", "edsd-median", "edsd-mode"}))
       ->capture_default_str();
   rs->add_option("--edsd-length", ra.edsd_length, "Length scale of the edsd prior, kpc")
       ->capture_default_str();
@@ -279,11 +338,22 @@ int main(int argc, char** argv) {
   rs->add_option("--seed", ra.seed, "Random seed")->capture_default_str();
   rs->add_option("-o,--output", ra.prefix, "Output prefix (default: <catalog>-residuals)");
 
+  ObserveArgs ob;
+  auto* os = app.add_subcommand("observe", "Observe a snapshot from the Sun as a survey would: "
+                                           "select (young) sources, add measurement errors, and "
+                                           "write a mock catalog in the measured-catalog format");
+  os->add_option("snapshot", ob.snapshot, "Snapshot file written by 'undertow integrate'")
+      ->required();
+  os->add_option("observation", ob.observation, "Observation file (TOML, docs/observation.md)")
+      ->required();
+  os->add_option("-o,--output", ob.output, "Mock catalog to write (default: <snapshot>-mock.csv)");
+
   CLI11_PARSE(app, argc, argv);
   try {
     if (t->parsed()) return run_tabulate(tab);
     if (ig->parsed()) return run_integrate(integ);
     if (rs->parsed()) return run_residuals(ra);
+    if (os->parsed()) return run_observe(ob);
   } catch (const undertow::InputError& e) {
     std::cerr << "undertow: error: " << e.what() << "\n";
     return 2;

@@ -204,6 +204,8 @@ Provenance SnapshotReader::provenance() const {
   p.scenario_text = h5::get_attr_string(f, f.id(), "scenario");
   p.scenario_file = h5::get_attr_string(f, f.id(), "scenario_file");
   p.seed = std::uint64_t(h5::get_attr_int(f, f.id(), "seed"));
+  const auto g = h5::open_group(f, "model");
+  if (h5::has_attr(g.id(), "model_file")) p.model_text = h5::get_attr_string(f, g.id(), "model_file");
   return p;
 }
 

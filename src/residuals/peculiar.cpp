@@ -11,9 +11,15 @@ namespace undertow::residuals {
 namespace {
 
 double distance_of(double w, double sw, const ResidualSettings& s) {
-  return s.distance == ResidualSettings::Distance::edsd
-             ? sky::edsd_mode_kpc(w, sw, s.edsd_length_kpc)
-             : sky::inverse_parallax_kpc(w);
+  switch (s.distance) {
+  case ResidualSettings::Distance::edsd:
+    return sky::edsd_mode_kpc(w, sw, s.edsd_length_kpc);
+  case ResidualSettings::Distance::edsd_median:
+    return sky::edsd_median_kpc(w, sw, s.edsd_length_kpc);
+  case ResidualSettings::Distance::inverse:
+    break;
+  }
+  return sky::inverse_parallax_kpc(w);
 }
 
 struct Inputs {

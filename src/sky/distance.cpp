@@ -35,4 +35,29 @@ double edsd_mode_kpc(double w, double s, double L) {
   return best;
 }
 
+double edsd_median_kpc(double w, double s, double L) {
+  const double mode = edsd_mode_kpc(w, s, L);
+  const auto logp = [&](double r) {
+    return 2 * std::log(r) - r / L - (w - 1 / r) * (w - 1 / r) / (2 * s * s);
+  };
+  const double lp0 = logp(mode);
+  constexpr int n = 2000;
+  const double lo = std::log(mode / 50), hi = std::log(mode * 50);
+  std::vector<double> r(n), cdf(n);
+  double prev = 0;
+  for (int i = 0; i < n; ++i) {
+    r[i] = std::exp(lo + (hi - lo) * i / (n - 1));
+    const double p = std::exp(logp(r[i]) - lp0) * r[i]; // density in ln r
+    cdf[i] = i == 0 ? 0 : cdf[i - 1] + 0.5 * (p + prev) * (hi - lo) / (n - 1);
+    prev = p;
+  }
+  const double half = 0.5 * cdf[n - 1];
+  for (int i = 1; i < n; ++i)
+    if (cdf[i] >= half) {
+      const double f = (half - cdf[i - 1]) / (cdf[i] - cdf[i - 1]);
+      return std::exp(std::log(r[i - 1]) + f * (std::log(r[i]) - std::log(r[i - 1])));
+    }
+  return mode;
+}
+
 } // namespace undertow::sky

@@ -119,3 +119,25 @@ TEST_CASE("Exponentially-decreasing-space-density distance: the mode maximises t
   }
   CHECK(edsd_mode_kpc(2.0, 0.002, L) == Approx(0.5).epsilon(1e-5));
 }
+
+TEST_CASE("Exponentially-decreasing-space-density posterior median: half the posterior mass on "
+          "each side (checked by direct integration on a fine linear grid)",
+          "[sky]") {
+  const double L = 2.0;
+  for (double w : {0.1, 0.3, 1.0}) {
+    for (double frac : {0.05, 0.2, 0.5}) {
+      const double s = w * frac, med = edsd_median_kpc(w, s, L);
+      const auto p = [&](double r) {
+        return r * r * std::exp(-r / L - (w - 1 / r) * (w - 1 / r) / (2 * s * s));
+      };
+      double below = 0, total = 0;
+      const double h = 1e-4;
+      for (double r = h / 2; r < 60; r += h) {
+        total += p(r);
+        if (r < med) below += p(r);
+      }
+      INFO("parallax " << w << " mas, sigma " << s << " mas, median " << med << " kpc");
+      CHECK(below / total == Approx(0.5).margin(2e-3));
+    }
+  }
+}

@@ -27,7 +27,7 @@ struct ResidualSettings {
   sky::SolarFrame sun;
   RotationCurve rotation;
   sky::LsrForm lsr = sky::LsrForm::apex;
-  enum class Distance { inverse, edsd } distance = Distance::inverse;
+  enum class Distance { inverse, edsd, edsd_median } distance = Distance::inverse;
   double edsd_length_kpc = 1.35;
   double min_parallax_snr = 0; // sources below are left out (listed in the result)
   int draws = 1000;            // Monte Carlo draws per source

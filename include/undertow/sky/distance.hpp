@@ -10,5 +10,8 @@ inline double inverse_parallax_kpc(double parallax_mas) {
   return 1.0 / parallax_mas;
 }
 double edsd_mode_kpc(double parallax_mas, double sigma_mas, double length_scale_kpc);
+// The posterior median with the same prior (Bailer-Jones et al. 2018, AJ 156, 58 use the median):
+// the numerical CDF on a logarithmic grid around the mode.
+double edsd_median_kpc(double parallax_mas, double sigma_mas, double length_scale_kpc);
 
 } // namespace undertow::sky

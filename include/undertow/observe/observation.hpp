@@ -1,0 +1,70 @@
+#pragma once
+// Mock observation of a simulation from the Sun: a selection model (distance range, Galactic
+// latitude and declination limits, a parallax signal-to-noise limit, a maximum number, and
+// optionally young-source weights), an error model (fixed, fractional, or copied per source
+// from a measured catalog by nearest position on the sky), and a mock catalog written in
+// exactly the measured-catalog format (docs/observation.md).
+#include <cstdint>
+#include <optional>
+#include <string>
+#include <vector>
+
+#include "undertow/io/snapshot.hpp"
+#include "undertow/potential/model.hpp"
+#include "undertow/residuals/catalog.hpp"
+#include "undertow/sky/lsr.hpp"
+#include "undertow/sky/solar_frame.hpp"
+
+namespace undertow::observe {
+
+struct Selection {
+  double distance_min_kpc = 0.0, distance_max_kpc = 1e9; // true heliocentric distance
+  double latitude_max_deg = 90;                          // |b| at most this
+  double dec_min_deg = -90, dec_max_deg = 90;
+  double parallax_snr_min = 0; // on the observed parallax, as a survey would
+  std::size_t max_sources = 0; // 0: no limit
+};
+
+// Young sources: a tracer's weight is the mean over the snapshots within the age window before
+// the observed time of max(rho, 0)^n, rho the model's density (patterns included) at the
+// tracer's position then: a Schmidt-type law, so tracers that recently passed through dense
+// gas (a spiral arm) are the likely young ones.
+struct YoungWeights {
+  double exponent = 1.4;      // n (common practice: the Kennicutt-Schmidt slope)
+  double age_window_myr = 30; // how far back star formation is counted
+};
+
+struct ErrorModel {
+  enum class Kind { fixed, fractional, catalog } kind = Kind::fixed;
+  double parallax_mas = 0.02;     // fixed: sigma_parallax
+  double parallax_fraction = 0.1; // fractional: sigma_parallax / parallax
+  double pm_masyr = 0.1;          // proper-motion errors (fixed and fractional)
+  double vlsr_kms = 5.0;          // LSR velocity error (fixed and fractional)
+  residuals::Catalog reference;   // catalog: errors copied from the nearest of its sources
+};
+
+struct ObservationSettings {
+  sky::SolarFrame sun;
+  sky::LsrForm lsr = sky::LsrForm::apex;
+  Selection selection;
+  std::optional<YoungWeights> young;
+  ErrorModel errors;
+  std::uint64_t seed = 1;
+};
+
+struct MockResult {
+  residuals::Catalog catalog;
+  std::size_t candidates = 0; // tracers inside the geometric selection
+  std::size_t rejected_snr = 0;
+  std::vector<std::uint64_t> tracer_ids; // of the mock sources, in catalog order
+};
+
+// Weights per tracer of snaps.back() (the observed snapshot) from the snapshots before it.
+std::vector<double> young_weights(const potential::Model& m, const std::vector<io::Snapshot>& snaps,
+                                  const YoungWeights& y);
+
+// Observes `observed` (inertial frame); weights may be empty (all tracers equal).
+MockResult observe(const io::Snapshot& observed, const std::vector<double>& weights,
+                   const ObservationSettings& s);
+
+} // namespace undertow::observe

@@ -1,0 +1,137 @@
+#include "undertow/observe/observation.hpp"
+
+#include <algorithm>
+#include <cmath>
+#include <map>
+
+#include "undertow/error.hpp"
+#include "undertow/tracers/random.hpp"
+#include "undertow/units.hpp"
+
+namespace undertow::observe {
+namespace {
+
+double angular_distance(double ra1, double dec1, double ra2, double dec2) {
+  const auto a = sky::unit_vector(ra1 * units::deg, dec1 * units::deg);
+  const auto b = sky::unit_vector(ra2 * units::deg, dec2 * units::deg);
+  return std::acos(std::clamp(a[0] * b[0] + a[1] * b[1] + a[2] * b[2], -1.0, 1.0));
+}
+
+} // namespace
+
+std::vector<double> young_weights(const potential::Model& m, const std::vector<io::Snapshot>& snaps,
+                                  const YoungWeights& y) {
+  if (snaps.empty()) throw InputError("young-source weights need at least one snapshot");
+  if (!(y.exponent > 0) || !(y.age_window_myr >= 0))
+    throw InputError(
+        "young-source weights: exponent must be positive and the age window not negative");
+  const io::Snapshot& obs = snaps.back();
+  const std::size_t n = obs.tracers.size();
+  std::map<std::uint64_t, std::size_t> index;
+  for (std::size_t i = 0; i < n; ++i)
+    index[obs.tracers.id[i]] = i;
+  std::vector<double> w(n, 0.0);
+  int used = 0;
+  for (const auto& s : snaps) {
+    if (s.time_myr < obs.time_myr - y.age_window_myr - 1e-9 || s.time_myr > obs.time_myr) continue;
+    if (s.frame != "inertial")
+      throw InputError("young-source weights need inertial-frame snapshots");
+    for (std::size_t k = 0; k < s.tracers.size(); ++k) {
+      const auto it = index.find(s.tracers.id[k]);
+      if (it == index.end()) continue;
+      const double rho = m.density({s.tracers.x[k], s.tracers.y[k], s.tracers.z[k]}, s.time_myr);
+      w[it->second] += std::pow(std::fmax(rho, 0.0), y.exponent);
+    }
+    ++used;
+  }
+  for (double& x : w)
+    x /= used;
+  return w;
+}
+
+MockResult observe(const io::Snapshot& snap, const std::vector<double>& weights,
+                   const ObservationSettings& s) {
+  s.sun.validate();
+  if (snap.frame != "inertial")
+    throw InputError("observe: the snapshot must be in the inertial frame");
+  const auto& t = snap.tracers;
+  if (!weights.empty() && weights.size() != t.size())
+    throw InputError("observe: one weight per tracer is needed");
+  const auto& sel = s.selection;
+  MockResult out;
+  // Candidates inside the survey's volume and sky, each with its true observables.
+  struct Candidate {
+    std::size_t i;
+    sky::Observed o;
+    double d, key;
+  };
+  std::vector<Candidate> cand;
+  for (std::size_t i = 0; i < t.size(); ++i) {
+    sky::Observed o;
+    const double d =
+        sky::from_galactocentric({{t.x[i], t.y[i], t.z[i]}, {t.vx[i], t.vy[i], t.vz[i]}}, s.sun, o);
+    if (d < sel.distance_min_kpc || d > sel.distance_max_kpc) continue;
+    if (o.dec_deg < sel.dec_min_deg || o.dec_deg > sel.dec_max_deg) continue;
+    double l, b;
+    sky::icrs_to_galactic(o.ra_deg * units::deg, o.dec_deg * units::deg, l, b);
+    if (std::fabs(b) / units::deg > sel.latitude_max_deg) continue;
+    const double w = weights.empty() ? 1.0 : weights[i];
+    if (!(w > 0)) continue;
+    // Weighted order without replacement: key = u^(1/w), largest first (Efraimidis & Spirakis
+    // 2006, Inf. Proc. Lett. 97, 181), with u from the tracer's own stream.
+    tracers::TracerStream rng(s.seed, t.id[i], 0x0b5e);
+    cand.push_back({i, o, d, std::log(rng.uniform()) / w});
+  }
+  out.candidates = cand.size();
+  std::sort(cand.begin(), cand.end(), [](const Candidate& a, const Candidate& b) {
+    return a.key != b.key ? a.key > b.key : a.i < b.i;
+  });
+  for (const auto& c : cand) {
+    if (sel.max_sources > 0 && out.catalog.sources.size() >= sel.max_sources) break;
+    tracers::TracerStream rng(s.seed, t.id[c.i], 0xe770);
+    residuals::Source src;
+    src.name = "T" + std::to_string(t.id[c.i]);
+    src.ra_deg = c.o.ra_deg;
+    src.dec_deg = c.o.dec_deg;
+    const double w_true = 1 / c.d;
+    const double vlsr_true = sky::helio_to_lsr(c.o.vhelio_kms, c.o.ra_deg, c.o.dec_deg, s.lsr);
+    const auto& e = s.errors;
+    switch (e.kind) {
+    case ErrorModel::Kind::fixed:
+      src.parallax_err_mas = e.parallax_mas, src.pmra_err_masyr = src.pmdec_err_masyr = e.pm_masyr;
+      src.vlsr_err_kms = e.vlsr_kms;
+      break;
+    case ErrorModel::Kind::fractional:
+      src.parallax_err_mas = e.parallax_fraction * w_true,
+      src.pmra_err_masyr = src.pmdec_err_masyr = e.pm_masyr;
+      src.vlsr_err_kms = e.vlsr_kms;
+      break;
+    case ErrorModel::Kind::catalog: {
+      if (e.reference.sources.empty())
+        throw InputError("observe: the error catalog has no sources");
+      const residuals::Source* best = nullptr;
+      double bd = INFINITY;
+      for (const auto& r : e.reference.sources) {
+        const double a = angular_distance(r.ra_deg, r.dec_deg, c.o.ra_deg, c.o.dec_deg);
+        if (a < bd) bd = a, best = &r;
+      }
+      src.parallax_err_mas = best->parallax_err_mas, src.pmra_err_masyr = best->pmra_err_masyr;
+      src.pmdec_err_masyr = best->pmdec_err_masyr, src.vlsr_err_kms = best->vlsr_err_kms;
+      break;
+    }
+    }
+    src.parallax_mas = w_true + src.parallax_err_mas * rng.normal();
+    src.pmra_masyr = c.o.pmra_masyr + src.pmra_err_masyr * rng.normal();
+    src.pmdec_masyr = c.o.pmdec_masyr + src.pmdec_err_masyr * rng.normal();
+    src.vlsr_kms = vlsr_true + src.vlsr_err_kms * rng.normal();
+    if (src.parallax_mas / src.parallax_err_mas < sel.parallax_snr_min) {
+      ++out.rejected_snr;
+      continue;
+    }
+    out.catalog.sources.push_back(src);
+    out.tracer_ids.push_back(t.id[c.i]);
+  }
+  return out;
+}
+
+} // namespace undertow::observe

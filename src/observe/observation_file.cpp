@@ -1,0 +1,123 @@
+#include "undertow/observe/observation_file.hpp"
+
+#include <cmath>
+#include <filesystem>
+
+#include "undertow/dynamics/frequencies.hpp"
+#include "undertow/io/toml_table.hpp"
+
+namespace undertow::observe {
+namespace {
+
+using io::TableReader;
+std::string sub(const std::string& ctx, const char* name) {
+  return ctx.empty() ? name : ctx + "." + name;
+}
+
+} // namespace
+
+ObservationSpec observation_from_table(const toml::table& t, const std::string& file,
+                                       const std::string& ctx, const potential::Model& m) {
+  ObservationSpec spec;
+  auto& s = spec.settings;
+  TableReader r(t, file, ctx);
+  r.check_keys({"seed", "lsr", "time_myr", "sun", "selection", "young", "errors"});
+  const double seed = r.number_or("seed", 1);
+  if (!(seed >= 0 && std::floor(seed) == seed)) r.fail("seed", "must be a whole number");
+  s.seed = std::uint64_t(seed);
+  const std::string lsr = r.string_or("lsr", "apex");
+  if (lsr == "components")
+    s.lsr = sky::LsrForm::components;
+  else if (lsr != "apex")
+    r.fail("lsr", "must be \"apex\" or \"components\"");
+  spec.time_myr = r.optional_number("time_myr");
+
+  const toml::table* sun = r.table("sun");
+  if (!sun) r.fail("", "missing [" + sub(ctx, "sun") + "] table");
+  {
+    TableReader q(*sun, file, sub(ctx, "sun"));
+    q.check_keys({"r0_kpc", "z_sun_kpc", "theta0_kms", "solar_motion_kms"});
+    s.sun.r0_kpc = q.number("r0_kpc");
+    s.sun.z_sun_kpc = q.number_or("z_sun_kpc", 0.0);
+    if (q.has("solar_motion_kms")) {
+      const auto v = q.numbers("solar_motion_kms");
+      if (v.size() != 3) q.fail("solar_motion_kms", "must hold three numbers: U, V, W");
+      s.sun.u_sun_kms = v[0], s.sun.v_sun_kms = v[1], s.sun.w_sun_kms = v[2];
+    }
+    s.sun.theta0_kms = q.number_or("theta0_kms", dynamics::circular_speed(m, s.sun.r0_kpc));
+    try {
+      s.sun.validate();
+    } catch (const InputError& e) {
+      q.fail(e.place().field, e.what());
+    }
+  }
+  if (const toml::table* sel = r.table("selection")) {
+    TableReader q(*sel, file, sub(ctx, "selection"));
+    q.check_keys({"distance_min_kpc", "distance_max_kpc", "latitude_max_deg", "dec_min_deg",
+                  "dec_max_deg", "parallax_snr_min", "max_sources"});
+    auto& x = s.selection;
+    x.distance_min_kpc = q.number_or("distance_min_kpc", 0.0);
+    x.distance_max_kpc = q.number_or("distance_max_kpc", 1e9);
+    if (!(x.distance_max_kpc > x.distance_min_kpc))
+      q.fail("distance_max_kpc", "must exceed distance_min_kpc");
+    x.latitude_max_deg = q.number_or("latitude_max_deg", 90.0);
+    x.dec_min_deg = q.number_or("dec_min_deg", -90.0);
+    x.dec_max_deg = q.number_or("dec_max_deg", 90.0);
+    if (!(x.dec_max_deg > x.dec_min_deg)) q.fail("dec_max_deg", "must exceed dec_min_deg");
+    x.parallax_snr_min = q.number_or("parallax_snr_min", 0.0);
+    const double n = q.number_or("max_sources", 0.0);
+    if (!(n >= 0 && std::floor(n) == n))
+      q.fail("max_sources", "must be a whole number (0: no limit)");
+    x.max_sources = std::size_t(n);
+  }
+  if (const toml::table* y = r.table("young")) {
+    TableReader q(*y, file, sub(ctx, "young"));
+    q.check_keys({"exponent", "age_window_myr"});
+    YoungWeights w;
+    w.exponent = q.number_or("exponent", 1.4);
+    if (!(w.exponent > 0)) q.fail("exponent", "must be positive");
+    w.age_window_myr = q.number("age_window_myr");
+    if (!(w.age_window_myr >= 0)) q.fail("age_window_myr", "must not be negative");
+    s.young = w;
+  }
+  const toml::table* er = r.table("errors");
+  if (!er) r.fail("", "missing [" + sub(ctx, "errors") + "] table");
+  {
+    TableReader q(*er, file, sub(ctx, "errors"));
+    const std::string kind = q.string("kind");
+    auto& e = s.errors;
+    const auto pos = [&](const char* k, double d) {
+      const double v = q.number_or(k, d);
+      if (!(v > 0)) q.fail(k, "must be positive");
+      return v;
+    };
+    if (kind == "fixed") {
+      q.check_keys({"kind", "parallax_mas", "pm_masyr", "vlsr_kms"});
+      e.kind = ErrorModel::Kind::fixed;
+      e.parallax_mas = pos("parallax_mas", 0.02);
+    } else if (kind == "fractional") {
+      q.check_keys({"kind", "parallax_fraction", "pm_masyr", "vlsr_kms"});
+      e.kind = ErrorModel::Kind::fractional;
+      e.parallax_fraction = pos("parallax_fraction", 0.1);
+    } else if (kind == "catalog") {
+      q.check_keys({"kind", "catalog"});
+      e.kind = ErrorModel::Kind::catalog;
+      std::filesystem::path p(q.string("catalog"));
+      if (p.is_relative()) p = std::filesystem::path(file).parent_path() / p;
+      e.reference = residuals::read_catalog(p.lexically_normal().string());
+    } else {
+      q.fail("kind", "must be \"fixed\", \"fractional\" or \"catalog\", got \"" + kind + "\"");
+    }
+    if (e.kind != ErrorModel::Kind::catalog) {
+      e.pm_masyr = pos("pm_masyr", 0.1);
+      e.vlsr_kms = pos("vlsr_kms", 5.0);
+    }
+  }
+  return spec;
+}
+
+ObservationSpec load_observation_file(const std::string& path, const potential::Model& m) {
+  return observation_from_table(io::parse_toml_file(path), path, "", m);
+}
+
+} // namespace undertow::observe
