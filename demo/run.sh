@@ -13,3 +13,8 @@ mkdir -p demo/out
 cat demo/out/kestrel-profile.md
 echo
 ./build/undertow integrate demo/kestrel-orbits.toml -o demo/out/kestrel-orbits.h5 --restart
+echo
+./build/undertow observe demo/out/kestrel-orbits.h5 demo/kestrel-survey.toml -o demo/out/kestrel-mock.csv
+echo
+./build/undertow residuals demo/out/kestrel-mock.csv --model potentials/kestrel.toml --r0 8.1 \
+  -o demo/out/kestrel-mock-residuals

@@ -191,8 +191,11 @@ int run_residuals(const ResidualArgs& a) {
   io::write_table(std::cout, residuals::summary_table(sum), io::TableFormat::markdown);
   for (const auto& e : res.excluded)
     std::cout << "left out: " << e << "\n";
-  for (const auto& w : res.warnings)
-    std::cerr << "warning: " << w << "\n";
+  for (std::size_t i = 0; i < res.warnings.size() && i < 5; ++i)
+    std::cerr << "warning: " << res.warnings[i] << "\n";
+  if (res.warnings.size() > 5)
+    std::cerr << "warning: ... and " << res.warnings.size() - 5 << " more, all listed in " << prefix
+              << "-summary.md\n";
   std::cout << "wrote";
   for (const auto& f : files)
     std::cout << " " << f;
