@@ -8,8 +8,28 @@ undertow=$1 src=$2 work=$3
 rm -rf "$work"; mkdir -p "$work"; cd "$work"
 fail() { echo "FAIL: $*" >&2; exit 1; }
 
-sed 's/^count = 20000/count = 6000/; s/^end_myr = 1000.0/end_myr = 200.0/; s/^every_myr = 100.0/every_myr = 20.0/' \
-  "$src/demo/kestrel-orbits.toml" | sed "s|\.\./potentials/|$src/potentials/|" > run.toml
+cat > run.toml <<TOML
+[run]
+name = "residual-checks"
+seed = 9
+[galaxy]
+model_file = "$src/potentials/kestrel.toml"
+[tracers]
+source = "disk"
+count = 6000
+scale_length_kpc = 3.0
+r_min_kpc = 3.0
+r_max_kpc = 15.0
+scale_height_kpc = 0.05
+sigma_r_kms = 6.0
+sigma_z_kms = 3.0
+[integration]
+method = "leapfrog"
+end_myr = 200.0
+step_myr = 0.2
+[output]
+every_myr = 20.0
+TOML
 "$undertow" integrate run.toml -o run.h5 > /dev/null
 
 cat > obs.toml <<'TOML'
