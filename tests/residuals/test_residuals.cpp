@@ -179,3 +179,24 @@ TEST_CASE("A written catalog reads back", "[residuals]") {
   CHECK(r.sources[0].ra_deg == Approx(123.25));
   CHECK(r.sources[0].corr_pm == Approx(-0.2));
 }
+
+TEST_CASE("A source next to the Sun moving on the local circular orbit (the Sun's velocity minus "
+          "the solar motion) has zero peculiar motion",
+          "[residuals]") {
+  for (int i = 0; i < 3; ++i) {
+    const auto s = settings(i);
+    const auto sun = sky::sun(s.sun);
+    Catalog c;
+    for (int k = 0; k < 6; ++k) {
+      const double a = k * 1.0472;
+      // 20 pc from the Sun in the plane, moving with Theta0 in the direction of rotation there
+      const double x = sun.r[0] + 0.02 * std::cos(a), y = sun.r[1] + 0.02 * std::sin(a);
+      const double R = std::hypot(x, y), vc = s.rotation.at(R);
+      c.sources.push_back(
+          observe({{x, y, sun.r[2]}, {vc * y / R, -vc * x / R, 0}}, s, "n" + std::to_string(k)));
+    }
+    for (const auto& r : compute_residuals(c, s).sources)
+      for (int a = 0; a < 3; ++a)
+        CHECK(std::fabs(r.uvw[a]) < 1e-9);
+  }
+}
