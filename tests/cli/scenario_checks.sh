@@ -16,7 +16,7 @@ seed = 5
 model_file = "$src/potentials/kestrel.toml"
 [tracers]
 source = "disk"
-count = 20000
+count = 40000
 scale_length_kpc = 3.0
 r_min_kpc = 4
 r_max_kpc = 12
@@ -90,7 +90,7 @@ echo "   $(cat typo.log)"
 
 echo "-- h5py reads the snapshot file"
 if /usr/bin/python3 -c "import h5py" 2>/dev/null; then
-  /usr/bin/python3 "$src/tests/io/check_snapshot.py" whole.h5 20000 11
+  /usr/bin/python3 "$src/tests/io/check_snapshot.py" whole.h5 40000 11
 else
   fail "python3-h5py is not installed (tests/run.sh installs it)"
 fi
