@@ -1,0 +1,42 @@
+#pragma once
+// Global comparison of measured and simulated peculiar motions, component by component and
+// over subsets (all sources, radius bins, azimuth bins, the catalog's groups): location and
+// scale on both sides, their difference with its significance, and KS and AD p-values.
+#include <array>
+#include <cstdint>
+#include <string>
+#include <vector>
+
+#include "undertow/io/table.hpp"
+#include "undertow/residuals/peculiar.hpp"
+
+namespace undertow::compare {
+
+struct SampleStats {
+  std::size_t n = 0;
+  double mean = 0, mean_err = 0, median = 0, dispersion = 0, robust_dispersion = 0;
+};
+
+struct ComponentComparison {
+  SampleStats measured, simulated;
+  double difference = 0, difference_err = 0, significance = 0; // measured - simulated
+  double ks_p = 1, ad_p = 1;
+};
+
+ComponentComparison compare_samples(const std::vector<double>& measured,
+                                    const std::vector<double>& simulated, int resamples,
+                                    std::uint64_t seed, std::uint64_t stream);
+
+struct Binning {
+  std::vector<double> radius_edges_kpc; // empty: no radius bins
+  std::vector<double> azimuth_edges_deg;
+};
+
+// One row per (subset, component). Groups compare the group's measured sources with the
+// simulated sources of the same label, or with all simulated ones when none carry it. Subsets with
+// fewer than 3 sources on either side are left out, with a note.
+io::Table global_table(const residuals::ResidualResult& measured,
+                       const residuals::ResidualResult& simulated, const Binning& bins,
+                       int resamples, std::uint64_t seed);
+
+} // namespace undertow::compare
