@@ -14,6 +14,7 @@
 #include "undertow/potential/model_file.hpp"
 #include "undertow/residuals/report.hpp"
 #include "undertow/run/ensemble.hpp"
+#include "undertow/run/whole_run.hpp"
 #include "undertow/scenario/provenance_model.hpp"
 #include "undertow/scenario/scenario.hpp"
 
@@ -258,6 +259,34 @@ int run_observe(const ObserveArgs& a) {
   return 0;
 }
 
+struct RunArgs {
+  std::string scenario, folder;
+  bool force = false;
+  int threads = 0;
+};
+
+int run_whole(const RunArgs& a) {
+  using namespace undertow;
+  const auto sc = scenario::load_scenario(a.scenario);
+  run::WholeRunOptions o;
+  o.folder = a.folder.empty() ? std::filesystem::path(a.scenario).stem().string() : a.folder;
+  o.force = a.force;
+  o.progress = ::isatty(2) && !std::getenv("CI");
+  o.stop = &g_stop;
+  o.log = &std::cerr;
+  if (a.threads > 0) omp_set_num_threads(a.threads);
+  std::signal(SIGINT, on_signal);
+  std::signal(SIGTERM, on_signal);
+  const auto r = run::run_all(sc, o);
+  if (!r.complete) {
+    std::cerr << "undertow: interrupted; run the same command again to resume\n";
+    return 130;
+  }
+  std::cout << r.summary << "wrote " << o.folder
+            << "/ (summary.txt, comparison-*, *-residuals-*, mock-catalog.csv, orbits.h5)\n";
+  return 0;
+}
+
 } // namespace
 
 int main(int argc, char** argv) {
@@ -351,12 +380,37 @@ int main(int argc, char** argv) {
       ->required();
   os->add_option("-o,--output", ob.output, "Mock catalog to write (default: <snapshot>-mock.csv)");
 
+  RunArgs wr;
+  auto* rn = app.add_subcommand("run", "The whole job from one scenario: orbits, mock observation, "
+                                       "residuals of the measured and mock catalogs, comparison "
+                                       "tables, into one folder (finished stages are reused)");
+  rn->add_option("scenario", wr.scenario,
+                 "Scenario file (TOML) with [observation] and [comparison]")
+      ->required();
+  rn->add_option("-o,--output", wr.folder, "Output folder (default: the scenario's name)");
+  rn->add_flag("--force", wr.force, "Redo every stage");
+  rn->add_option("--threads", wr.threads, "OpenMP threads")->check(CLI::Range(1, 4096));
+
+  std::vector<std::string> versus;
+  auto* vs =
+      app.add_subcommand("versus", "Set finished runs of several models against one catalog "
+                                   "side by side: ln L, chi^2 and mean V_s, with differences "
+                                   "against the first");
+  vs->add_option("folders", versus, "Run folders written by 'undertow run'")
+      ->required()
+      ->expected(2, 1000);
+
   CLI11_PARSE(app, argc, argv);
   try {
     if (t->parsed()) return run_tabulate(tab);
     if (ig->parsed()) return run_integrate(integ);
     if (rs->parsed()) return run_residuals(ra);
     if (os->parsed()) return run_observe(ob);
+    if (rn->parsed()) return run_whole(wr);
+    if (vs->parsed()) {
+      std::cout << undertow::run::compare_runs(versus);
+      return 0;
+    }
   } catch (const undertow::InputError& e) {
     std::cerr << "undertow: error: " << e.what() << "\n";
     return 2;

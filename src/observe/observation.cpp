@@ -36,10 +36,28 @@ std::vector<double> young_weights(const potential::Model& m, const std::vector<i
     if (s.time_myr < obs.time_myr - y.age_window_myr - 1e-9 || s.time_myr > obs.time_myr) continue;
     if (s.frame != "inertial")
       throw InputError("young-source weights need inertial-frame snapshots");
+    std::vector<double> sigma; // surface density of the tracers, per cell (tracer density)
+    const double h = y.cell_kpc, half = 30.0;
+    const long nc = long(2 * half / h) + 1;
+    const auto cell = [&](double x, double yy) -> long {
+      const long i = long(std::floor((x + half) / h)), j = long(std::floor((yy + half) / h));
+      return (i < 0 || j < 0 || i >= nc || j >= nc) ? -1 : i * nc + j;
+    };
+    if (y.density == YoungWeights::Density::tracers) {
+      sigma.assign(std::size_t(nc * nc), 0.0);
+      for (std::size_t k = 0; k < s.tracers.size(); ++k)
+        if (const long c = cell(s.tracers.x[k], s.tracers.y[k]); c >= 0) sigma[std::size_t(c)] += 1;
+    }
     for (std::size_t k = 0; k < s.tracers.size(); ++k) {
       const auto it = index.find(s.tracers.id[k]);
       if (it == index.end()) continue;
-      const double rho = m.density({s.tracers.x[k], s.tracers.y[k], s.tracers.z[k]}, s.time_myr);
+      double rho;
+      if (y.density == YoungWeights::Density::tracers) {
+        const long c = cell(s.tracers.x[k], s.tracers.y[k]);
+        rho = c >= 0 ? sigma[std::size_t(c)] / (h * h) : 0.0; // tracers per kpc^2
+      } else {
+        rho = m.density({s.tracers.x[k], s.tracers.y[k], s.tracers.z[k]}, s.time_myr);
+      }
       w[it->second] += std::pow(std::fmax(rho, 0.0), y.exponent);
     }
     ++used;

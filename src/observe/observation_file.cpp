@@ -72,8 +72,15 @@ ObservationSpec observation_from_table(const toml::table& t, const std::string& 
   }
   if (const toml::table* y = r.table("young")) {
     TableReader q(*y, file, sub(ctx, "young"));
-    q.check_keys({"exponent", "age_window_myr"});
+    q.check_keys({"exponent", "age_window_myr", "density", "cell_kpc"});
     YoungWeights w;
+    const std::string d = q.string_or("density", "model");
+    if (d == "tracers")
+      w.density = YoungWeights::Density::tracers;
+    else if (d != "model")
+      q.fail("density", "must be \"model\" or \"tracers\"");
+    w.cell_kpc = q.number_or("cell_kpc", 0.25);
+    if (!(w.cell_kpc > 0)) q.fail("cell_kpc", "must be positive");
     w.exponent = q.number_or("exponent", 1.4);
     if (!(w.exponent > 0)) q.fail("exponent", "must be positive");
     w.age_window_myr = q.number("age_window_myr");

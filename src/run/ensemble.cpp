@@ -147,8 +147,8 @@ EnsembleResult run_ensemble(const scenario::Scenario& s, const EnsembleOptions& 
   } else {
     p = io::read_snapshot_part(part_name(dir, have - 1)).tracers;
     if (o.log && have < times.size())
-      *o.log << "resuming from t = " << times[have - 1] << " Myr (" << have << " of " << times.size()
-             << " snapshots on disk)\n";
+      *o.log << "resuming from t = " << times[have - 1] << " Myr (" << have << " of "
+             << times.size() << " snapshots on disk)\n";
   }
   res.tracers = p.size();
   Progress prog(o.progress, p.size(), times.size() - 1);

@@ -5,6 +5,7 @@
 #include <fstream>
 #include <sstream>
 
+#include "undertow/detail/kernel.hpp"
 #include "undertow/io/toml_table.hpp"
 #include "undertow/potential/model_file.hpp"
 
@@ -168,7 +169,7 @@ Scenario parse_scenario(const std::string& text, const std::string& path) {
   s.text = text;
   const toml::table root = io::parse_toml_text(text, path);
   TableReader r(root, path, "");
-  r.check_keys({"run", "galaxy", "tracers", "integration", "output"});
+  r.check_keys({"run", "galaxy", "tracers", "integration", "output", "observation", "comparison"});
   const auto section = [&](const char* name) {
     const toml::table* t = r.table(name);
     if (!t) r.fail("", std::string("missing [") + name + "] table");
@@ -200,6 +201,57 @@ Scenario parse_scenario(const std::string& text, const std::string& path) {
   read_tracers(s, section("tracers"));
   read_integration(s, section("integration"));
   read_output(s, section("output"));
+  const auto canon = [&](std::initializer_list<const char*> keys) {
+    std::ostringstream o;
+    for (const char* k : keys)
+      if (const auto* t = root[k].as_table()) o << "[" << k << "]\n" << *t << "\n";
+    return o.str() + s.model_text;
+  };
+  s.orbit_key = canon({"run", "galaxy", "tracers", "integration", "output"});
+  if (const toml::table* ob = r.table("observation")) {
+    s.observation = observe::observation_from_table(*ob, path, "observation", s.model);
+    s.observation_key = s.orbit_key + canon({"observation"});
+  }
+  if (const toml::table* cm = r.table("comparison")) {
+    TableReader q(*cm, path, "comparison");
+    q.check_keys({"catalog", "distance", "edsd_length_kpc", "min_parallax_snr", "draws",
+                  "bootstrap", "seed", "neighbourhood", "neighbours", "min_neighbours",
+                  "radius_kpc", "prediction_sources", "radius_bins_kpc", "azimuth_bins_deg"});
+    Comparison c;
+    c.catalog = resolve(path, q.string("catalog"));
+    c.distance = q.string_or("distance", "inverse");
+    if (c.distance != "inverse" && c.distance != "edsd-median" && c.distance != "edsd-mode")
+      q.fail("distance", "must be \"inverse\", \"edsd-median\" or \"edsd-mode\"");
+    c.edsd_length_kpc = q.number_or("edsd_length_kpc", 1.35);
+    c.min_parallax_snr = q.number_or("min_parallax_snr", 0.0);
+    const auto whole = [&](const char* k, double d, double lo) {
+      const double v = q.number_or(k, d);
+      if (!(v >= lo && std::floor(v) == v && v < 1e9))
+        q.fail(k, "must be a whole number of at least " + detail::num(lo));
+      return v;
+    };
+    c.draws = int(whole("draws", 200, 2));
+    c.bootstrap = int(whole("bootstrap", 500, 2));
+    c.seed = std::uint64_t(whole("seed", 1, 0));
+    const std::string nb = q.string_or("neighbourhood", "nearest");
+    if (nb != "nearest" && nb != "radius")
+      q.fail("neighbourhood", "must be \"nearest\" or \"radius\"");
+    c.nearest = nb == "nearest";
+    c.neighbours = std::size_t(whole("neighbours", 30, 2));
+    c.min_neighbours = std::size_t(whole("min_neighbours", 5, 2));
+    c.prediction_sources = std::size_t(whole("prediction_sources", 5000, 10));
+    c.radius_kpc = q.number_or("radius_kpc", 1.0);
+    if (!(c.radius_kpc > 0)) q.fail("radius_kpc", "must be positive");
+    if (q.has("radius_bins_kpc")) c.radius_bins_kpc = q.numbers("radius_bins_kpc");
+    if (q.has("azimuth_bins_deg")) c.azimuth_bins_deg = q.numbers("azimuth_bins_deg");
+    for (const auto* e : {&c.radius_bins_kpc, &c.azimuth_bins_deg})
+      for (std::size_t i = 1; i < e->size(); ++i)
+        if (!((*e)[i] > (*e)[i - 1]))
+          q.fail(e == &c.radius_bins_kpc ? "radius_bins_kpc" : "azimuth_bins_deg",
+                 "bin edges must increase");
+    s.comparison = c;
+    s.comparison_key = s.observation_key + canon({"comparison"});
+  }
   return s;
 }
 

@@ -191,3 +191,25 @@ TEST_CASE("Weighted selection picks tracers in proportion to their weights (Efra
   // sampling 2.5% without replacement: the share of the heavy half is 3/4 up to O(2.5%)
   CHECK(double(heavy) / 1000 == Approx(0.75).margin(0.04));
 }
+
+TEST_CASE("Young-source weights from the tracers' own surface density: the count in a tracer's "
+          "cell per kpc^2, to the power n",
+          "[observe]") {
+  const auto model =
+      potential::load_model_file(std::string(UNDERTOW_SOURCE_DIR) + "/potentials/kestrel.toml");
+  io::Snapshot s;
+  s.time_myr = 100;
+  s.tracers.resize(5);
+  const double xs[] = {-8.01, -8.02, -8.03, -8.04, -6.01}, ys[] = {0.01, 0.02, 0.03, 0.04, 0.01};
+  for (std::size_t i = 0; i < 5; ++i)
+    s.tracers.id[i] = i, s.tracers.x[i] = xs[i], s.tracers.y[i] = ys[i];
+  observe::YoungWeights y;
+  y.density = observe::YoungWeights::Density::tracers;
+  y.cell_kpc = 0.25;
+  y.exponent = 1.5;
+  y.age_window_myr = 0;
+  const auto w = observe::young_weights(model, {s}, y);
+  CHECK(w[0] == Approx(std::pow(4 / 0.0625, 1.5)));
+  CHECK(w[4] == Approx(std::pow(1 / 0.0625, 1.5)));
+  CHECK(w[0] / w[4] == Approx(8.0));
+}

@@ -32,6 +32,11 @@ struct Selection {
 struct YoungWeights {
   double exponent = 1.4;      // n (common practice: the Kennicutt-Schmidt slope)
   double age_window_myr = 30; // how far back star formation is counted
+  // What density: "model" (the potential's density, patterns included) or "tracers" (the
+  // tracers' own surface density on a grid of cell_kpc: cold tracers crowd into the arms
+  // much as gas does, so they stand in for the gas).
+  enum class Density { model, tracers } density = Density::model;
+  double cell_kpc = 0.25;
 };
 
 struct ErrorModel {

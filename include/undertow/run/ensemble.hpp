@@ -6,7 +6,6 @@
 // whole part and gives the same bits as a run that never stopped.
 #include <atomic>
 #include <functional>
-#include <functional>
 #include <ostream>
 #include <string>
 

@@ -7,6 +7,7 @@
 #include <string>
 #include <vector>
 
+#include "undertow/observe/observation_file.hpp"
 #include "undertow/orbit/integrator.hpp"
 #include "undertow/potential/model.hpp"
 #include "undertow/tracers/disk_population.hpp"
@@ -26,6 +27,20 @@ struct Output {
   std::string frame_pattern;      // label of the pattern the frame turns with
 };
 
+// [comparison]: the measured catalog and how it is compared with the simulation.
+struct Comparison {
+  std::string catalog;              // resolved path
+  std::string distance = "inverse"; // inverse, edsd-median, edsd-mode
+  double edsd_length_kpc = 1.35;
+  double min_parallax_snr = 0;
+  int draws = 200, bootstrap = 500;
+  std::uint64_t seed = 1;
+  bool nearest = true;
+  std::size_t neighbours = 30, min_neighbours = 5, prediction_sources = 5000;
+  double radius_kpc = 1.0;
+  std::vector<double> radius_bins_kpc, azimuth_bins_deg;
+};
+
 struct Scenario {
   std::string path; // as given
   std::string text; // verbatim, recorded in every output
@@ -40,6 +55,10 @@ struct Scenario {
   double start_myr = 0, end_myr = 0;
   double max_radius_kpc = 500; // tracers outside are refused at the start and flagged later
   Output output;
+  std::optional<observe::ObservationSpec> observation;
+  std::optional<Comparison> comparison;
+  // Canonical text of the tables each stage of a whole run depends on (for reusing stages).
+  std::string orbit_key, observation_key, comparison_key;
 };
 
 Scenario load_scenario(const std::string& path);

@@ -1,0 +1,37 @@
+#pragma once
+// The whole job from one scenario into one folder: orbits (HDF5 snapshots), the mock
+// observation (a catalog in the measured format), the residuals of the measured and the mock
+// catalogs, the global and local comparison tables, a short text summary and a copy of the
+// scenario. Stages whose inputs have not changed since the last run are reused (orbits and the
+// mock catalog); --force redoes everything.
+#include <atomic>
+#include <ostream>
+#include <string>
+#include <vector>
+
+#include "undertow/scenario/scenario.hpp"
+
+namespace undertow::run {
+
+struct WholeRunOptions {
+  std::string folder;
+  bool force = false;
+  bool progress = false;
+  const std::atomic<bool>* stop = nullptr;
+  std::ostream* log = nullptr;
+};
+
+struct WholeRunResult {
+  bool complete = false;
+  std::vector<std::string> reused; // stage names
+  double log_likelihood = 0, chi2 = 0;
+  std::size_t measured_sources = 0;
+  std::string summary; // the text of summary.txt
+};
+
+WholeRunResult run_all(const scenario::Scenario& s, const WholeRunOptions& o);
+
+// Model-vs-model: one row per run folder, differences against the first.
+std::string compare_runs(const std::vector<std::string>& folders);
+
+} // namespace undertow::run

@@ -1,0 +1,328 @@
+#include "undertow/run/whole_run.hpp"
+
+#include <cmath>
+#include <cstdio>
+#include <filesystem>
+#include <fstream>
+#include <map>
+#include <sstream>
+
+#include "undertow/compare/global.hpp"
+#include "undertow/compare/local.hpp"
+#include "undertow/dynamics/frequencies.hpp"
+#include "undertow/error.hpp"
+#include "undertow/io/atomic_file.hpp"
+#include "undertow/io/table_hdf5.hpp"
+#include "undertow/residuals/report.hpp"
+#include "undertow/run/ensemble.hpp"
+
+namespace undertow::run {
+namespace {
+
+namespace fs = std::filesystem;
+
+std::string read_all(const fs::path& p) {
+  std::ifstream in(p, std::ios::binary);
+  std::stringstream ss;
+  ss << in.rdbuf();
+  return ss.str();
+}
+
+void write_text(const fs::path& p, const std::string& text) {
+  io::AtomicFile f(p.string());
+  f.stream() << text;
+  f.commit();
+}
+
+bool reusable(const fs::path& key_file, const std::string& key, const fs::path& output,
+              bool force) {
+  return !force && fs::exists(output) && fs::exists(key_file) && read_all(key_file) == key;
+}
+
+residuals::ResidualSettings residual_settings(const scenario::Scenario& s) {
+  const auto& c = *s.comparison;
+  residuals::ResidualSettings r;
+  r.sun = s.observation->settings.sun;
+  r.lsr = s.observation->settings.lsr;
+  r.rotation.kind = residuals::RotationCurve::Kind::model;
+  const potential::Model* m = &s.model;
+  r.rotation.model = [m](double R) { return dynamics::circular_speed(*m, R); };
+  r.distance = c.distance == "edsd-median" ? residuals::ResidualSettings::Distance::edsd_median
+               : c.distance == "edsd-mode" ? residuals::ResidualSettings::Distance::edsd
+                                           : residuals::ResidualSettings::Distance::inverse;
+  r.edsd_length_kpc = c.edsd_length_kpc;
+  r.min_parallax_snr = c.min_parallax_snr;
+  r.draws = c.draws;
+  r.seed = c.seed;
+  return r;
+}
+
+// The young tracers that predict the local distributions: the observation's weighted selection
+// (no signal-to-noise cut, no errors), with their true peculiar motions.
+std::vector<compare::PlanePoint> predictions(const scenario::Scenario& s,
+                                             const std::vector<double>& weights,
+                                             const std::vector<io::Snapshot>& window) {
+  auto settings = s.observation->settings;
+  settings.selection.max_sources = s.comparison->prediction_sources;
+  settings.selection.parallax_snr_min = 0;
+  const auto mock = observe::observe(window.back(), weights, settings);
+  const auto rs = residual_settings(s);
+  const auto& t = window.back().tracers;
+  std::map<std::uint64_t, std::size_t> index;
+  for (std::size_t i = 0; i < t.size(); ++i)
+    index[t.id[i]] = i;
+  std::vector<compare::PlanePoint> out;
+  for (auto id : mock.tracer_ids) {
+    const std::size_t i = index.at(id);
+    sky::Observed o;
+    const double d = sky::from_galactocentric(
+        {{t.x[i], t.y[i], t.z[i]}, {t.vx[i], t.vy[i], t.vz[i]}}, rs.sun, o);
+    compare::PlanePoint p;
+    p.x = t.x[i], p.y = t.y[i];
+    p.uvw = residuals::peculiar_motion(o, d, rs);
+    p.name = "T" + std::to_string(id);
+    out.push_back(p);
+  }
+  return out;
+}
+
+std::vector<compare::PlanePoint> plane_points(const residuals::ResidualResult& r) {
+  std::vector<compare::PlanePoint> out;
+  for (const auto& s : r.sources) {
+    compare::PlanePoint p;
+    const double psi = s.psi_deg * units::deg;
+    p.x = -s.R_kpc * std::cos(psi), p.y = s.R_kpc * std::sin(psi);
+    p.uvw = s.uvw;
+    p.cov = s.mc_cov;
+    p.name = s.name;
+    out.push_back(p);
+  }
+  return out;
+}
+
+io::Table local_table(const compare::LocalResult& l) {
+  io::Table t;
+  t.title = "Measured sources against the simulated young sources near them";
+  t.label_header = "name";
+  t.columns = {{"neighbours", "N", "N", "", 5},
+               {"U_pred_kms", "U_{\\rm pred}", "U_pred", "km/s", 4},
+               {"V_pred_kms", "V_{\\rm pred}", "V_pred", "km/s", 4},
+               {"W_pred_kms", "W_{\\rm pred}", "W_pred", "km/s", 4},
+               {"pull_U", "p_U", "pull_U", "", 3},
+               {"pull_V", "p_V", "pull_V", "", 3},
+               {"pull_W", "p_W", "pull_W", "", 3},
+               {"chi2", "\\chi^2", "χ²", "", 4},
+               {"log_likelihood", "\\ln L", "ln L", "", 5}};
+  for (const auto& s : l.sources) {
+    t.row_labels.push_back(s.name);
+    t.add_row({double(s.neighbours), s.predicted[0], s.predicted[1], s.predicted[2], s.pull[0],
+               s.pull[1], s.pull[2], s.chi2, s.log_likelihood});
+  }
+  for (const auto& o : l.outliers)
+    t.notes.push_back("beyond 3 sigma: " + o);
+  return t;
+}
+
+void write_tables(const fs::path& dir, const std::string& stem, const io::Table& t) {
+  const std::pair<const char*, io::TableFormat> f[] = {{".csv", io::TableFormat::csv},
+                                                       {".md", io::TableFormat::markdown},
+                                                       {".tex", io::TableFormat::latex}};
+  for (const auto& [ext, fmt] : f) {
+    io::AtomicFile out((dir / (stem + ext)).string());
+    io::write_table(out.stream(), t, fmt);
+    out.commit();
+  }
+}
+
+} // namespace
+
+WholeRunResult run_all(const scenario::Scenario& s, const WholeRunOptions& o) {
+  if (!s.observation)
+    throw InputError(SourcePlace{s.path, 0, 0, "observation"},
+                     "a whole run needs an [observation] table");
+  if (!s.comparison)
+    throw InputError(SourcePlace{s.path, 0, 0, "comparison"},
+                     "a whole run needs a [comparison] table");
+  const auto measured = residuals::read_catalog(s.comparison->catalog); // check the inputs first
+  const fs::path dir(o.folder);
+  std::error_code ec;
+  fs::create_directories(dir / ".keys", ec);
+  if (ec)
+    throw InputError(SourcePlace{o.folder, 0, 0, {}}, "cannot create folder: " + ec.message());
+  WholeRunResult res;
+  const auto note = [&](const std::string& t) {
+    if (o.log) *o.log << t << "\n";
+  };
+
+  // 1. orbits
+  const fs::path orbits = dir / "orbits.h5";
+  if (reusable(dir / ".keys/orbits", s.orbit_key, orbits, o.force)) {
+    res.reused.push_back("orbits");
+    note("orbits: reused " + orbits.string());
+  } else {
+    EnsembleOptions eo;
+    eo.output = orbits.string();
+    eo.restart = o.force || (fs::exists(dir / ".keys/orbits") &&
+                             read_all(dir / ".keys/orbits") != s.orbit_key);
+    eo.progress = o.progress;
+    eo.stop = o.stop;
+    eo.log = o.log;
+    fs::remove(dir / ".keys/orbits", ec);
+    const auto r = run_ensemble(s, eo);
+    if (!r.complete) return res;
+    write_text(dir / ".keys/orbits", s.orbit_key);
+    note("orbits: " + std::to_string(r.tracers) + " tracers to t = " + detail::num(s.end_myr) +
+         " Myr");
+  }
+
+  // 2. the mock observation
+  const io::SnapshotReader rd(orbits.string());
+  const auto times = rd.times_myr();
+  std::size_t k = times.size() - 1;
+  if (s.observation->time_myr) {
+    k = times.size();
+    for (std::size_t i = 0; i < times.size(); ++i)
+      if (std::fabs(times[i] - *s.observation->time_myr) < 1e-9 * (1 + std::fabs(times[i]))) k = i;
+    if (k == times.size())
+      throw InputError(SourcePlace{s.path, 0, 0, "observation.time_myr"},
+                       "no snapshot at that time");
+  }
+  std::vector<io::Snapshot> window;
+  std::vector<double> weights;
+  const auto& ob = s.observation->settings;
+  if (ob.young) {
+    for (std::size_t i = 0; i <= k; ++i)
+      if (times[i] >= times[k] - ob.young->age_window_myr - 1e-9) window.push_back(rd.read(i));
+    weights = observe::young_weights(s.model, window, *ob.young);
+  } else {
+    window.push_back(rd.read(k));
+  }
+  const fs::path mock_path = dir / "mock-catalog.csv";
+  if (reusable(dir / ".keys/mock", s.observation_key, mock_path, o.force)) {
+    res.reused.push_back("mock");
+    note("mock catalog: reused " + mock_path.string());
+  } else {
+    const auto mock = observe::observe(window.back(), weights, ob);
+    if (mock.catalog.sources.empty())
+      throw InputError(SourcePlace{s.path, 0, 0, "observation.selection"},
+                       "no simulated tracer passes the selection; nothing compared");
+    residuals::write_catalog(mock_path.string(), mock.catalog);
+    write_text(dir / ".keys/mock", s.observation_key);
+    note("mock catalog: " + std::to_string(mock.catalog.sources.size()) + " sources");
+  }
+
+  // 3. residuals of both catalogs through the same code
+  const auto rs = residual_settings(s);
+  const auto meas_res = residuals::compute_residuals(measured, rs);
+  if (meas_res.sources.size() < 3)
+    throw InputError(
+        SourcePlace{s.comparison->catalog, 0, 0, {}},
+        std::to_string(meas_res.sources.size()) +
+            " measured sources are left after the selection (3 or more needed); nothing compared");
+  const auto mock_res =
+      residuals::compute_residuals(residuals::read_catalog(mock_path.string()), rs);
+  if (mock_res.sources.size() < 3)
+    throw InputError(SourcePlace{s.path, 0, 0, "observation"},
+                     "fewer than 3 mock sources are left; nothing compared");
+  const std::string settings = "scenario " + s.path;
+  residuals::write_report(
+      (dir / "measured-residuals").string(), meas_res,
+      residuals::summarise(meas_res, s.comparison->bootstrap, s.comparison->seed), settings);
+  residuals::write_report(
+      (dir / "mock-residuals").string(), mock_res,
+      residuals::summarise(mock_res, s.comparison->bootstrap, s.comparison->seed), settings);
+
+  // 4. comparison
+  const auto global = compare::global_table(
+      meas_res, mock_res, {s.comparison->radius_bins_kpc, s.comparison->azimuth_bins_deg},
+      s.comparison->bootstrap, s.comparison->seed);
+  compare::Neighbourhood nb;
+  nb.kind = s.comparison->nearest ? compare::Neighbourhood::Kind::nearest
+                                  : compare::Neighbourhood::Kind::radius;
+  nb.k = s.comparison->neighbours;
+  nb.radius_kpc = s.comparison->radius_kpc;
+  nb.min_count = s.comparison->min_neighbours;
+  const auto local =
+      compare::compare_locally(plane_points(meas_res), predictions(s, weights, window), nb);
+  const auto ltab = local_table(local);
+  write_tables(dir, "comparison-global", global);
+  write_tables(dir, "comparison-local", ltab);
+  {
+    std::vector<char> bytes;
+    {
+      const auto f = io::h5::File::create_in_memory((dir / "comparison.h5").string());
+      io::h5::set_attr(f, f.id(), "undertow_format", std::string("comparison"));
+      io::h5::set_attr(f, f.id(), "scenario", s.text);
+      io::h5::set_attr(f, f.id(), "log_likelihood", local.log_likelihood);
+      io::h5::set_attr(f, f.id(), "chi2", local.chi2);
+      io::h5::set_attr(f, f.id(), "measured_sources", std::int64_t(meas_res.sources.size()));
+      io::h5::set_attr(f, f.id(), "mean_V_measured_kms", global.rows[1][2]);
+      io::h5::set_attr(f, f.id(), "mean_V_simulated_kms", global.rows[1][4]);
+      io::h5::set_attr(f, f.id(), "mean_V_significance", global.rows[1][7]);
+      io::write_table_group(f, "global", global);
+      io::write_table_group(f, "local", ltab);
+      bytes = f.image();
+    }
+    io::AtomicFile h((dir / "comparison.h5").string());
+    h.stream().write(bytes.data(), std::streamsize(bytes.size()));
+    h.commit();
+  }
+  char b[1024];
+  std::snprintf(
+      b, sizeof b,
+      "scenario %s (%s)\n"
+      "measured catalog: %s, %zu sources used\n"
+      "mock catalog: %zu sources observed at t = %g Myr\n"
+      "mean V_s: measured %.2f +- %.2f km/s, simulated %.2f +- %.2f km/s, difference %.1f sigma\n"
+      "mean U_s: measured %.2f +- %.2f km/s, simulated %.2f +- %.2f km/s\n"
+      "local comparison: sum ln L = %.2f, sum chi^2 = %.1f for %zu sources (%zu beyond 3 sigma)\n",
+      s.name.c_str(), s.path.c_str(), s.comparison->catalog.c_str(), meas_res.sources.size(),
+      mock_res.sources.size(), times[k], global.rows[1][2], global.rows[1][3], global.rows[1][4],
+      global.rows[1][5], global.rows[1][7], global.rows[0][2], global.rows[0][3], global.rows[0][4],
+      global.rows[0][5], local.log_likelihood, local.chi2, local.sources.size(),
+      local.outliers.size());
+  res.summary = b;
+  write_text(dir / "summary.txt", res.summary);
+  write_text(dir / "scenario.toml", s.text);
+  res.complete = true;
+  res.log_likelihood = local.log_likelihood;
+  res.chi2 = local.chi2;
+  res.measured_sources = meas_res.sources.size();
+  return res;
+}
+
+std::string compare_runs(const std::vector<std::string>& folders) {
+  if (folders.size() < 2) throw InputError("give two or more run folders to compare");
+  io::Table t;
+  t.title = "Models against one catalog (differences against the first)";
+  t.label_header = "run";
+  t.columns = {{"n", "N", "N", "", 5},
+               {"log_likelihood", "\\ln L", "ln L", "", 6},
+               {"delta_log_likelihood", "\\Delta\\ln L", "Δ ln L", "", 5},
+               {"chi2", "\\chi^2", "χ²", "", 6},
+               {"delta_chi2", "\\Delta\\chi^2", "Δχ²", "", 5},
+               {"mean_V_measured_kms", "\\langle V_s\\rangle_{\\rm obs}", "⟨V_s⟩_obs", "km/s", 4},
+               {"mean_V_simulated_kms", "\\langle V_s\\rangle_{\\rm sim}", "⟨V_s⟩_sim", "km/s", 4},
+               {"mean_V_significance", "\\Delta/\\sigma", "Δ/σ", "", 3}};
+  double l0 = 0, c0 = 0;
+  for (std::size_t i = 0; i < folders.size(); ++i) {
+    const fs::path p = fs::path(folders[i]) / "comparison.h5";
+    const auto f = io::h5::File::open_read(p.string());
+    const double l = io::h5::get_attr_double(f, f.id(), "log_likelihood");
+    const double c = io::h5::get_attr_double(f, f.id(), "chi2");
+    if (i == 0) l0 = l, c0 = c;
+    t.row_labels.push_back(folders[i]);
+    t.add_row({double(io::h5::get_attr_int(f, f.id(), "measured_sources")), l, l - l0, c, c - c0,
+               io::h5::get_attr_double(f, f.id(), "mean_V_measured_kms"),
+               io::h5::get_attr_double(f, f.id(), "mean_V_simulated_kms"),
+               io::h5::get_attr_double(f, f.id(), "mean_V_significance")});
+  }
+  t.notes.push_back(
+      "Δ ln L > 0: the run explains the catalog better than the first; a difference of "
+      "a few units is not significant.");
+  std::ostringstream os;
+  io::write_table(os, t, io::TableFormat::markdown);
+  return os.str();
+}
+
+} // namespace undertow::run

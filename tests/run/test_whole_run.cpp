@@ -1,0 +1,133 @@
+// The whole job from one scenario: stages, reuse, outputs and the model-vs-model table.
+#include <catch2/catch.hpp>
+#include <filesystem>
+#include <fstream>
+
+#include "undertow/error.hpp"
+#include "undertow/run/whole_run.hpp"
+
+using namespace undertow;
+namespace fs = std::filesystem;
+
+namespace {
+std::string scenario_text(const std::string& model, const std::string& catalog, int obs_seed) {
+  return std::string(R"(
+[run]
+name = "whole"
+seed = 21
+[galaxy]
+model_file = ")") +
+         UNDERTOW_SOURCE_DIR + "/potentials/" + model + R"("
+[tracers]
+source = "disk"
+count = 4000
+scale_length_kpc = 3.0
+r_min_kpc = 4
+r_max_kpc = 12
+scale_height_kpc = 0.05
+sigma_r_kms = 8
+sigma_z_kms = 4
+[integration]
+method = "leapfrog"
+end_myr = 150
+step_myr = 0.5
+[output]
+times_myr = [100, 140, 150]
+[observation]
+seed = )" +
+         std::to_string(obs_seed) + R"(
+[observation.sun]
+r0_kpc = 8.1
+[observation.selection]
+distance_max_kpc = 6
+max_sources = 120
+[observation.young]
+age_window_myr = 20
+[observation.errors]
+kind = "fixed"
+parallax_mas = 0.01
+pm_masyr = 0.02
+vlsr_kms = 2
+[comparison]
+catalog = ")" +
+         catalog + R"("
+draws = 20
+bootstrap = 100
+neighbours = 20
+radius_bins_kpc = [4, 8, 12]
+)";
+}
+} // namespace
+
+TEST_CASE("A whole run writes every stage into one folder, reuses finished stages on a rerun and "
+          "redoes them when forced; runs of two models are set side by side",
+          "[run]") {
+  const fs::path d = fs::temp_directory_path() / "undertow-whole-run";
+  fs::remove_all(d);
+  fs::create_directories(d);
+  // A "measured" catalog: this very scenario's mock observation with another seed.
+  const auto truth = scenario::parse_scenario(
+      scenario_text("kestrel.toml", (d / "none.csv").string(), 99), (d / "truth.toml").string());
+  {
+    std::ofstream((d / "none.csv").string())
+        << "name,ra_deg,dec_deg,parallax_mas,parallax_err_mas,pmra_masyr,"
+           "pmra_err_masyr,pmdec_masyr,pmdec_err_masyr,vlsr_kms,vlsr_err_kms\n"
+           "X,10,10,0.5,0.05,1,0.1,1,0.1,10,5\n"
+           "Y,40,10,0.4,0.05,1,0.1,1,0.1,10,5\n"
+           "Z,70,10,0.3,0.05,1,0.1,1,0.1,10,5\n";
+  }
+  run::WholeRunOptions o;
+  o.folder = (d / "truth").string();
+  REQUIRE(run::run_all(truth, o).complete);
+  const std::string measured = (d / "truth" / "mock-catalog.csv").string();
+  REQUIRE(fs::exists(measured));
+
+  const auto spiral =
+      scenario::parse_scenario(scenario_text("kestrel.toml", measured, 7), (d / "s.toml").string());
+  o.folder = (d / "spiral").string();
+  const auto r1 = run::run_all(spiral, o);
+  REQUIRE(r1.complete);
+  CHECK(r1.reused.empty());
+  CHECK(r1.measured_sources == 120);
+  for (const char* f : {"orbits.h5", "mock-catalog.csv", "measured-residuals-summary.md",
+                        "mock-residuals.h5", "comparison-global.csv", "comparison-local.tex",
+                        "comparison.h5", "summary.txt", "scenario.toml"})
+    CHECK(fs::exists(d / "spiral" / f));
+  const auto r2 = run::run_all(spiral, o);
+  CHECK(r2.reused == std::vector<std::string>{"orbits", "mock"});
+  CHECK(r2.log_likelihood == r1.log_likelihood);
+  o.force = true;
+  CHECK(run::run_all(spiral, o).reused.empty());
+  o.force = false;
+
+  const auto axi = scenario::parse_scenario(scenario_text("kestrel-axisymmetric.toml", measured, 7),
+                                            (d / "a.toml").string());
+  o.folder = (d / "axi").string();
+  REQUIRE(run::run_all(axi, o).complete);
+  const auto table = run::compare_runs({(d / "spiral").string(), (d / "axi").string()});
+  CHECK_THAT(table, Catch::Contains("Δ ln L"));
+  CHECK_THAT(table, Catch::Contains((d / "axi").string()));
+}
+
+TEST_CASE("A whole run refuses a scenario without [observation] or [comparison], and a catalog "
+          "with fewer than 3 usable sources",
+          "[run]") {
+  const std::string text = scenario_text("kestrel.toml", "/nonexistent.csv", 1);
+  const auto cut = text.substr(0, text.find("[observation]"));
+  const auto s = scenario::parse_scenario(cut, "/tmp/cut.toml");
+  run::WholeRunOptions o;
+  o.folder = "/tmp/undertow-never";
+  CHECK_THROWS_WITH(run::run_all(s, o), Catch::Contains("needs an [observation] table"));
+  CHECK_FALSE(fs::exists("/tmp/undertow-never"));
+  {
+    std::ofstream("/tmp/undertow-one.csv")
+        << "name,ra_deg,dec_deg,parallax_mas,parallax_err_mas,pmra_masyr,"
+           "pmra_err_masyr,pmdec_masyr,pmdec_err_masyr,vlsr_kms,vlsr_err_kms\n"
+           "X,10,10,0.5,0.05,1,0.1,1,0.1,10,5\n";
+  }
+  const auto one = scenario::parse_scenario(
+      scenario_text("kestrel.toml", "/tmp/undertow-one.csv", 1), "/tmp/one.toml");
+  o.folder = (fs::temp_directory_path() / "undertow-one").string();
+  CHECK_THROWS_WITH(run::run_all(one, o),
+                    Catch::Contains("1 measured sources are left after the selection"));
+}
