@@ -11,6 +11,7 @@
 #include "undertow/error.hpp"
 #include "undertow/io/atomic_file.hpp"
 #include "undertow/observe/observation_file.hpp"
+#include "undertow/observe/prepare.hpp"
 #include "undertow/potential/model_file.hpp"
 #include "undertow/residuals/report.hpp"
 #include "undertow/run/ensemble.hpp"
@@ -213,32 +214,8 @@ int run_observe(const ObserveArgs& a) {
   const io::SnapshotReader rd(a.snapshot);
   const auto model = scenario::model_of(rd.provenance(), a.snapshot);
   const auto spec = observe::load_observation_file(a.observation, model);
-  const auto times = rd.times_myr();
-  std::size_t k = times.size() - 1;
-  if (spec.time_myr) {
-    k = times.size();
-    for (std::size_t i = 0; i < times.size(); ++i)
-      if (std::fabs(times[i] - *spec.time_myr) < 1e-9 * (1 + std::fabs(times[i]))) k = i;
-    if (k == times.size()) {
-      std::string list;
-      for (double t : times)
-        list += (list.empty() ? "" : ", ") + undertow::detail::num(t);
-      throw InputError(SourcePlace{a.observation, 0, 0, "time_myr"},
-                       "no snapshot at " + undertow::detail::num(*spec.time_myr) + " Myr in " +
-                           a.snapshot + " (times: " + list + ")");
-    }
-  }
-  std::vector<io::Snapshot> window;
-  std::vector<double> weights;
-  if (spec.settings.young) {
-    for (std::size_t i = 0; i <= k; ++i)
-      if (times[i] >= times[k] - spec.settings.young->age_window_myr - 1e-9)
-        window.push_back(rd.read(i));
-    weights = observe::young_weights(model, window, *spec.settings.young);
-  } else {
-    window.push_back(rd.read(k));
-  }
-  const auto mock = observe::observe(window.back(), weights, spec.settings);
+  const auto prep = observe::prepare(rd, spec, model, SourcePlace{a.observation, 0, 0, "time_myr"});
+  const auto mock = observe::observe(prep.window.back(), prep.weights, spec.settings);
   if (mock.catalog.sources.empty())
     throw InputError(SourcePlace{a.observation, 0, 0, "selection"},
                      "no tracer passes the selection (" + std::to_string(mock.candidates) +
@@ -248,7 +225,7 @@ int run_observe(const ObserveArgs& a) {
       a.output.empty() ? std::filesystem::path(a.snapshot).stem().string() + "-mock.csv" : a.output;
   residuals::write_catalog(out, mock.catalog);
   std::cout << "wrote " << out << ": " << mock.catalog.sources.size()
-            << " sources observed at t = " << times[k] << " Myr (" << mock.candidates
+            << " sources observed at t = " << prep.time_myr << " Myr (" << mock.candidates
             << " tracers inside the selection volume, " << mock.rejected_snr
             << " below the parallax signal-to-noise limit"
             << (spec.settings.young

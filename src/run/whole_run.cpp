@@ -13,6 +13,7 @@
 #include "undertow/error.hpp"
 #include "undertow/io/atomic_file.hpp"
 #include "undertow/io/table_hdf5.hpp"
+#include "undertow/observe/prepare.hpp"
 #include "undertow/residuals/report.hpp"
 #include "undertow/run/ensemble.hpp"
 
@@ -177,26 +178,11 @@ WholeRunResult run_all(const scenario::Scenario& s, const WholeRunOptions& o) {
 
   // 2. the mock observation
   const io::SnapshotReader rd(orbits.string());
-  const auto times = rd.times_myr();
-  std::size_t k = times.size() - 1;
-  if (s.observation->time_myr) {
-    k = times.size();
-    for (std::size_t i = 0; i < times.size(); ++i)
-      if (std::fabs(times[i] - *s.observation->time_myr) < 1e-9 * (1 + std::fabs(times[i]))) k = i;
-    if (k == times.size())
-      throw InputError(SourcePlace{s.path, 0, 0, "observation.time_myr"},
-                       "no snapshot at that time");
-  }
-  std::vector<io::Snapshot> window;
-  std::vector<double> weights;
+  const auto prep = observe::prepare(rd, *s.observation, s.model,
+                                     SourcePlace{s.path, 0, 0, "observation.time_myr"});
+  const auto& window = prep.window;
+  const auto& weights = prep.weights;
   const auto& ob = s.observation->settings;
-  if (ob.young) {
-    for (std::size_t i = 0; i <= k; ++i)
-      if (times[i] >= times[k] - ob.young->age_window_myr - 1e-9) window.push_back(rd.read(i));
-    weights = observe::young_weights(s.model, window, *ob.young);
-  } else {
-    window.push_back(rd.read(k));
-  }
   const fs::path mock_path = dir / "mock-catalog.csv";
   if (reusable(dir / ".keys/mock", s.observation_key, mock_path, o.force)) {
     res.reused.push_back("mock");
@@ -277,9 +263,9 @@ WholeRunResult run_all(const scenario::Scenario& s, const WholeRunOptions& o) {
       "mean U_s: measured %.2f +- %.2f km/s, simulated %.2f +- %.2f km/s\n"
       "local comparison: sum ln L = %.2f, sum chi^2 = %.1f for %zu sources (%zu beyond 3 sigma)\n",
       s.name.c_str(), s.path.c_str(), s.comparison->catalog.c_str(), meas_res.sources.size(),
-      mock_res.sources.size(), times[k], global.rows[1][2], global.rows[1][3], global.rows[1][4],
-      global.rows[1][5], global.rows[1][7], global.rows[0][2], global.rows[0][3], global.rows[0][4],
-      global.rows[0][5], local.log_likelihood, local.chi2, local.sources.size(),
+      mock_res.sources.size(), prep.time_myr, global.rows[1][2], global.rows[1][3],
+      global.rows[1][4], global.rows[1][5], global.rows[1][7], global.rows[0][2], global.rows[0][3],
+      global.rows[0][4], global.rows[0][5], local.log_likelihood, local.chi2, local.sources.size(),
       local.outliers.size());
   res.summary = b;
   write_text(dir / "summary.txt", res.summary);
