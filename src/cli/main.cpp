@@ -78,6 +78,17 @@ extern "C" void on_signal(int) {
   g_stop.store(true);
 }
 
+// Long runs: progress lines only on a terminal (and never in CI), Ctrl-C and SIGTERM stop them
+// between batches, and --threads sets the OpenMP threads.
+template <class Options> void prepare_long_run(Options& o, int threads) {
+  o.progress = ::isatty(2) && !std::getenv("CI");
+  o.stop = &g_stop;
+  o.log = &std::cerr;
+  if (threads > 0) omp_set_num_threads(threads);
+  std::signal(SIGINT, on_signal);
+  std::signal(SIGTERM, on_signal);
+}
+
 struct IntegrateArgs {
   std::string scenario;
   std::string output;
@@ -92,12 +103,7 @@ int run_integrate(const IntegrateArgs& a) {
   o.output =
       a.output.empty() ? std::filesystem::path(a.scenario).stem().string() + ".h5" : a.output;
   o.restart = a.restart;
-  o.progress = ::isatty(2) && !std::getenv("CI");
-  o.stop = &g_stop;
-  o.log = &std::cerr;
-  if (a.threads > 0) omp_set_num_threads(a.threads);
-  std::signal(SIGINT, on_signal);
-  std::signal(SIGTERM, on_signal);
+  prepare_long_run(o, a.threads);
   const auto r = run::run_ensemble(sc, o);
   if (!r.complete) {
     std::cerr << "undertow: interrupted; snapshots up to t = " << r.reached_myr
@@ -165,9 +171,7 @@ int run_residuals(const ResidualArgs& a) {
   } else {
     throw InputError("give a rotation curve: --model FILE or --flat THETA0_KMS");
   }
-  s.distance = a.distance == "edsd-median" ? residuals::ResidualSettings::Distance::edsd_median
-               : a.distance == "edsd-mode" ? residuals::ResidualSettings::Distance::edsd
-                                           : residuals::ResidualSettings::Distance::inverse;
+  s.distance = residuals::distance_from_name(a.distance);
   s.edsd_length_kpc = a.edsd_length;
   s.min_parallax_snr = a.min_snr;
   s.lsr = a.lsr == "components" ? sky::LsrForm::components : sky::LsrForm::apex;
@@ -248,12 +252,7 @@ int run_whole(const RunArgs& a) {
   run::WholeRunOptions o;
   o.folder = a.folder.empty() ? std::filesystem::path(a.scenario).stem().string() : a.folder;
   o.force = a.force;
-  o.progress = ::isatty(2) && !std::getenv("CI");
-  o.stop = &g_stop;
-  o.log = &std::cerr;
-  if (a.threads > 0) omp_set_num_threads(a.threads);
-  std::signal(SIGINT, on_signal);
-  std::signal(SIGTERM, on_signal);
+  prepare_long_run(o, a.threads);
   const auto r = run::run_all(sc, o);
   if (!r.complete) {
     std::cerr << "undertow: interrupted; run the same command again to resume\n";

@@ -3,6 +3,7 @@
 #include <algorithm>
 
 #include "undertow/error.hpp"
+#include "undertow/io/atomic_file.hpp"
 
 namespace undertow::io::h5 {
 namespace {
@@ -125,6 +126,12 @@ std::vector<char> File::image() const {
   if (H5Fget_file_image(h_.id(), buf.data(), buf.size()) < 0)
     fail(*this, "cannot get the file image");
   return buf;
+}
+
+void write_bytes_atomically(const std::string& path, const std::vector<char>& bytes) {
+  AtomicFile out(path);
+  out.stream().write(bytes.data(), std::streamsize(bytes.size()));
+  out.commit();
 }
 
 File File::open_read(const std::string& path) {

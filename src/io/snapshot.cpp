@@ -7,7 +7,6 @@
 #include <unistd.h>
 
 #include "undertow/error.hpp"
-#include "undertow/io/atomic_file.hpp"
 #include "undertow/io/hdf5.hpp"
 #include "undertow/potential/describe.hpp"
 
@@ -16,20 +15,6 @@ namespace {
 
 namespace fs = std::filesystem;
 constexpr std::int64_t kFormatVersion = 1;
-
-// Builds the file in memory with write(file), then writes its bytes under a temporary name and
-// renames it into place (io::AtomicFile): a full disk or a write error leaves nothing behind.
-template <class F> void write_atomically(const std::string& path, F&& write) {
-  std::vector<char> bytes;
-  {
-    const auto f = h5::File::create_in_memory(path);
-    write(f);
-    bytes = f.image();
-  }
-  AtomicFile out(path);
-  out.stream().write(bytes.data(), std::streamsize(bytes.size()));
-  out.commit();
-}
 
 void write_tracers(const h5::File& f, hid_t g, const Snapshot& s) {
   const auto& t = s.tracers;
@@ -97,7 +82,7 @@ Provenance make_provenance(const std::string& text, const std::string& file,
 }
 
 void write_snapshot_part(const std::string& path, const Snapshot& s) {
-  write_atomically(path, [&](const h5::File& f) {
+  h5::File::write_atomically(path, [&](const h5::File& f) {
     h5::set_attr(f, f.id(), "undertow_part", std::int64_t(1));
     write_tracers(f, f.id(), s);
   });
@@ -111,7 +96,7 @@ Snapshot read_snapshot_part(const std::string& path) {
 void assemble(const std::string& out, const Provenance& p, const potential::Model& m,
               const std::string& method, const std::vector<std::string>& parts,
               const Diagnostics& d, const std::function<void(std::size_t, Snapshot&)>& transform) {
-  write_atomically(out, [&](const h5::File& f) {
+  h5::File::write_atomically(out, [&](const h5::File& f) {
     const hid_t root = f.id();
     h5::set_attr(f, root, "undertow_format", std::string("snapshots"));
     h5::set_attr(f, root, "format_version", kFormatVersion);
@@ -205,7 +190,8 @@ Provenance SnapshotReader::provenance() const {
   p.scenario_file = h5::get_attr_string(f, f.id(), "scenario_file");
   p.seed = std::uint64_t(h5::get_attr_int(f, f.id(), "seed"));
   const auto g = h5::open_group(f, "model");
-  if (h5::has_attr(g.id(), "model_file")) p.model_text = h5::get_attr_string(f, g.id(), "model_file");
+  if (h5::has_attr(g.id(), "model_file"))
+    p.model_text = h5::get_attr_string(f, g.id(), "model_file");
   return p;
 }
 

@@ -6,6 +6,7 @@
 #include <stdexcept>
 
 #include "undertow/error.hpp"
+#include "undertow/io/atomic_file.hpp"
 
 namespace undertow::io {
 
@@ -21,6 +22,19 @@ TableFormat table_format_from_name(const std::string& name) {
   if (name == "markdown" || name == "md") return TableFormat::markdown;
   if (name == "latex" || name == "tex") return TableFormat::latex;
   throw InputError("unknown table format '" + name + "' (csv, markdown, latex)");
+}
+
+std::vector<std::string> write_table_files(const std::string& stem, const Table& t) {
+  const std::pair<const char*, TableFormat> formats[] = {
+      {".csv", TableFormat::csv}, {".md", TableFormat::markdown}, {".tex", TableFormat::latex}};
+  std::vector<std::string> written;
+  for (const auto& [ext, fmt] : formats) {
+    AtomicFile f(stem + ext);
+    write_table(f.stream(), t, fmt);
+    f.commit();
+    written.push_back(stem + ext);
+  }
+  return written;
 }
 
 std::string format_number(double v, int precision) {

@@ -15,6 +15,7 @@
 namespace undertow::potential {
 namespace {
 
+using io::at_keys;
 using io::TableReader;
 constexpr double inf = std::numeric_limits<double>::infinity();
 
@@ -99,15 +100,6 @@ template <class Map> std::string kinds_of(const Map& m) {
   for (const auto& [k, v] : m)
     s += (s.empty() ? "" : ", ") + k;
   return s;
-}
-
-// Runs f, turning a parameter error from a component's validation into an error at its key.
-template <class F> auto at_keys(const TableReader& r, F&& f) {
-  try {
-    return f();
-  } catch (const detail::ParameterError& e) {
-    r.fail(e.key, e.what());
-  }
 }
 
 std::string context_for(const char* table, const std::string& label, std::size_t index) {

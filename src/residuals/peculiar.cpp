@@ -3,6 +3,7 @@
 #include <cmath>
 
 #include "undertow/detail/kernel.hpp"
+#include "undertow/error.hpp"
 #include "undertow/sky/distance.hpp"
 #include "undertow/tracers/random.hpp"
 #include "undertow/units.hpp"
@@ -37,6 +38,13 @@ std::array<double, 3> uvw_of(const Source& src, const Inputs& in, double sw,
 }
 
 } // namespace
+
+ResidualSettings::Distance distance_from_name(const std::string& n) {
+  if (n == "inverse") return ResidualSettings::Distance::inverse;
+  if (n == "edsd-median") return ResidualSettings::Distance::edsd_median;
+  if (n == "edsd-mode") return ResidualSettings::Distance::edsd;
+  throw InputError("unknown distance estimator '" + n + "' (inverse, edsd-median, edsd-mode)");
+}
 
 double RotationCurve::at(double R) const {
   switch (kind) {

@@ -48,9 +48,7 @@ residuals::ResidualSettings residual_settings(const scenario::Scenario& s) {
   r.rotation.kind = residuals::RotationCurve::Kind::model;
   const potential::Model* m = &s.model;
   r.rotation.model = [m](double R) { return dynamics::circular_speed(*m, R); };
-  r.distance = c.distance == "edsd-median" ? residuals::ResidualSettings::Distance::edsd_median
-               : c.distance == "edsd-mode" ? residuals::ResidualSettings::Distance::edsd
-                                           : residuals::ResidualSettings::Distance::inverse;
+  r.distance = residuals::distance_from_name(c.distance);
   r.edsd_length_kpc = c.edsd_length_kpc;
   r.min_parallax_snr = c.min_parallax_snr;
   r.draws = c.draws;
@@ -122,17 +120,6 @@ io::Table local_table(const compare::LocalResult& l) {
   for (const auto& o : l.outliers)
     t.notes.push_back("beyond 3 sigma: " + o);
   return t;
-}
-
-void write_tables(const fs::path& dir, const std::string& stem, const io::Table& t) {
-  const std::pair<const char*, io::TableFormat> f[] = {{".csv", io::TableFormat::csv},
-                                                       {".md", io::TableFormat::markdown},
-                                                       {".tex", io::TableFormat::latex}};
-  for (const auto& [ext, fmt] : f) {
-    io::AtomicFile out((dir / (stem + ext)).string());
-    io::write_table(out.stream(), t, fmt);
-    out.commit();
-  }
 }
 
 } // namespace
@@ -231,28 +218,20 @@ WholeRunResult run_all(const scenario::Scenario& s, const WholeRunOptions& o) {
   const auto local =
       compare::compare_locally(plane_points(meas_res), predictions(s, weights, window), nb);
   const auto ltab = local_table(local);
-  write_tables(dir, "comparison-global", global);
-  write_tables(dir, "comparison-local", ltab);
-  {
-    std::vector<char> bytes;
-    {
-      const auto f = io::h5::File::create_in_memory((dir / "comparison.h5").string());
-      io::h5::set_attr(f, f.id(), "undertow_format", std::string("comparison"));
-      io::h5::set_attr(f, f.id(), "scenario", s.text);
-      io::h5::set_attr(f, f.id(), "log_likelihood", local.log_likelihood);
-      io::h5::set_attr(f, f.id(), "chi2", local.chi2);
-      io::h5::set_attr(f, f.id(), "measured_sources", std::int64_t(meas_res.sources.size()));
-      io::h5::set_attr(f, f.id(), "mean_V_measured_kms", global.rows[1][2]);
-      io::h5::set_attr(f, f.id(), "mean_V_simulated_kms", global.rows[1][4]);
-      io::h5::set_attr(f, f.id(), "mean_V_significance", global.rows[1][7]);
-      io::write_table_group(f, "global", global);
-      io::write_table_group(f, "local", ltab);
-      bytes = f.image();
-    }
-    io::AtomicFile h((dir / "comparison.h5").string());
-    h.stream().write(bytes.data(), std::streamsize(bytes.size()));
-    h.commit();
-  }
+  io::write_table_files((dir / "comparison-global").string(), global);
+  io::write_table_files((dir / "comparison-local").string(), ltab);
+  io::h5::File::write_atomically((dir / "comparison.h5").string(), [&](const io::h5::File& f) {
+    io::h5::set_attr(f, f.id(), "undertow_format", std::string("comparison"));
+    io::h5::set_attr(f, f.id(), "scenario", s.text);
+    io::h5::set_attr(f, f.id(), "log_likelihood", local.log_likelihood);
+    io::h5::set_attr(f, f.id(), "chi2", local.chi2);
+    io::h5::set_attr(f, f.id(), "measured_sources", std::int64_t(meas_res.sources.size()));
+    io::h5::set_attr(f, f.id(), "mean_V_measured_kms", global.rows[1][2]);
+    io::h5::set_attr(f, f.id(), "mean_V_simulated_kms", global.rows[1][4]);
+    io::h5::set_attr(f, f.id(), "mean_V_significance", global.rows[1][7]);
+    io::write_table_group(f, "global", global);
+    io::write_table_group(f, "local", ltab);
+  });
   char b[1024];
   std::snprintf(
       b, sizeof b,

@@ -8,10 +8,12 @@
 #include "undertow/detail/kernel.hpp"
 #include "undertow/io/toml_table.hpp"
 #include "undertow/potential/model_file.hpp"
+#include "undertow/residuals/peculiar.hpp"
 
 namespace undertow::scenario {
 namespace {
 
+using io::at_keys;
 using io::TableReader;
 namespace fs = std::filesystem;
 
@@ -28,14 +30,6 @@ std::string resolve(const std::string& scenario_path, const std::string& p) {
   const fs::path q(p);
   if (q.is_absolute()) return p;
   return (fs::path(scenario_path).parent_path() / q).lexically_normal().string();
-}
-
-template <class F> auto at_keys(const TableReader& r, F&& f) {
-  try {
-    return f();
-  } catch (const detail::ParameterError& e) {
-    r.fail(e.key, e.what());
-  }
 }
 
 void read_tracers(Scenario& s, const TableReader& r) {
@@ -220,8 +214,11 @@ Scenario parse_scenario(const std::string& text, const std::string& path) {
     Comparison c;
     c.catalog = resolve(path, q.string("catalog"));
     c.distance = q.string_or("distance", "inverse");
-    if (c.distance != "inverse" && c.distance != "edsd-median" && c.distance != "edsd-mode")
-      q.fail("distance", "must be \"inverse\", \"edsd-median\" or \"edsd-mode\"");
+    try {
+      (void)residuals::distance_from_name(c.distance);
+    } catch (const InputError& e) {
+      q.fail("distance", e.what());
+    }
     c.edsd_length_kpc = q.number_or("edsd_length_kpc", 1.35);
     c.min_parallax_snr = q.number_or("min_parallax_snr", 0.0);
     const auto whole = [&](const char* k, double d, double lo) {

@@ -34,6 +34,9 @@ public:
   // writes with checked I/O. A full disk then never leaves HDF5 with a file it cannot close.
   static File create_in_memory(const std::string& name);
   std::vector<char> image() const;
+  // Builds a file in memory with build(file) and writes its bytes to path atomically
+  // (io::AtomicFile): a full disk or a write error leaves nothing behind.
+  template <class F> static void write_atomically(const std::string& path, F&& build);
   static File open_read(const std::string& path);
   const std::string& path() const { return path_; }
   hid_t id() const { return h_.id(); }
@@ -75,6 +78,18 @@ std::string dataset_units(const File& f, hid_t parent, const std::string& name);
 
 void write_strings(const File& f, hid_t parent, const std::string& name,
                    const std::vector<std::string>& data, const std::string& description);
+
+void write_bytes_atomically(const std::string& path, const std::vector<char>& bytes);
+
+template <class F> void File::write_atomically(const std::string& path, F&& build) {
+  std::vector<char> bytes;
+  {
+    const auto f = create_in_memory(path);
+    build(f);
+    bytes = f.image();
+  }
+  write_bytes_atomically(path, bytes);
+}
 
 // Turns HDF5's own error printing off for this process (we report errors ourselves).
 void quiet();

@@ -30,6 +30,8 @@ enum class TableFormat { csv, markdown, latex };
 TableFormat table_format_from_name(const std::string& name); // throws InputError
 
 void write_table(std::ostream& os, const Table& t, TableFormat f);
+// Writes <stem>.csv, <stem>.md and <stem>.tex, each atomically; returns their paths.
+std::vector<std::string> write_table_files(const std::string& stem, const Table& t);
 std::string format_number(double v, int precision);
 
 } // namespace undertow::io

@@ -9,6 +9,7 @@
 
 #include <toml++/toml.h>
 
+#include "undertow/detail/kernel.hpp"
 #include "undertow/error.hpp"
 
 namespace undertow::io {
@@ -48,6 +49,16 @@ private:
   std::string file_, context_;
   mutable std::set<std::string, std::less<>> used_;
 };
+
+// Runs f, turning a parameter check's error (detail::ParameterError, which names a key) into an
+// InputError at that key of table r.
+template <class F> auto at_keys(const TableReader& r, F&& f) {
+  try {
+    return f();
+  } catch (const detail::ParameterError& e) {
+    r.fail(e.key, e.what());
+  }
+}
 
 // Parses a TOML document; a syntax error becomes an InputError at its line and column.
 toml::table parse_toml_file(const std::string& path);

@@ -55,6 +55,9 @@ std::array<double, 3> peculiar_motion(const sky::Observed& o, double distance_kp
                                       const ResidualSettings& s, double* R_out = nullptr,
                                       double* psi_out = nullptr, double* z_out = nullptr);
 
+// "inverse", "edsd-median", "edsd-mode"; throws InputError for any other name.
+ResidualSettings::Distance distance_from_name(const std::string& name);
+
 ResidualResult compute_residuals(const Catalog& c, const ResidualSettings& s);
 
 } // namespace undertow::residuals
