@@ -9,6 +9,7 @@
 #include <sstream>
 
 #include "undertow/error.hpp"
+#include "undertow/gas/sticky_clouds.hpp"
 #include "undertow/io/atomic_file.hpp"
 #include "undertow/orbit/conserved.hpp"
 #include "undertow/orbit/frame.hpp"
@@ -96,6 +97,42 @@ private:
   clock::time_point t0_;
 };
 
+// Collision intervals of a segment: the segment split evenly into intervals no longer than
+// the scenario's, so collision times are fixed by the output times alone.
+std::size_t collision_intervals(const scenario::Scenario& s, double ta, double tb) {
+  return s.gas ? orbit::steps_for(ta, tb, s.gas->interval_myr) : 1;
+}
+
+// Start of collision interval j of n in [ta, tb]; j = n gives tb exactly.
+double interval_start(double ta, double tb, std::size_t j, std::size_t n) {
+  return j == n ? tb : ta + (tb - ta) * double(j) / double(n);
+}
+
+std::size_t fixed_steps(const scenario::Scenario& s, double ta, double tb) {
+  const std::size_t n = collision_intervals(s, ta, tb);
+  std::size_t steps = 0;
+  for (std::size_t j = 0; j < n; ++j)
+    steps += orbit::steps_for(interval_start(ta, tb, j, n), interval_start(ta, tb, j + 1, n),
+                              s.integration.step_myr);
+  return steps;
+}
+
+// Advances one segment between output times; with [gas], in collision intervals each ended by
+// a collision pass.
+bool advance_segment(const scenario::Scenario& s, const gas::CircularFlow& flow,
+                     orbit::PhaseSpace& p, double ta, double tb, const orbit::ProgressFn& report,
+                     const std::atomic<bool>* stop) {
+  if (!s.gas) return orbit::advance(s.model, p, ta, tb, s.integration, report, stop);
+  const std::size_t n = collision_intervals(s, ta, tb);
+  for (std::size_t j = 0; j < n; ++j) {
+    const double t0 = interval_start(ta, tb, j, n), t1 = interval_start(ta, tb, j + 1, n);
+    const auto sub = [&](std::size_t done) { report((j * p.size() + done) / n); };
+    if (!orbit::advance(s.model, p, t0, t1, s.integration, sub, stop)) return false;
+    (void)gas::collide(p, flow, *s.gas);
+  }
+  return true;
+}
+
 } // namespace
 
 EnsembleResult run_ensemble(const scenario::Scenario& s, const EnsembleOptions& o) {
@@ -151,22 +188,22 @@ EnsembleResult run_ensemble(const scenario::Scenario& s, const EnsembleOptions& 
              << times.size() << " snapshots on disk)\n";
   }
   res.tracers = p.size();
+  const gas::CircularFlow flow =
+      s.gas ? gas::CircularFlow(s.model, 1.5 * s.gas->extent_kpc) : gas::CircularFlow();
   Progress prog(o.progress, p.size(), times.size() - 1);
   for (std::size_t k = have; k < times.size(); ++k) {
     const double ta = times[k - 1], tb = times[k];
-    const std::size_t steps = orbit::is_symplectic(s.integration.method)
-                                  ? orbit::steps_for(ta, tb, s.integration.step_myr)
-                                  : 0;
+    const std::size_t steps =
+        orbit::is_symplectic(s.integration.method) ? fixed_steps(s, ta, tb) : 0;
     const auto report = [&](std::size_t done) { prog.update(k - 1, done, ta, tb, steps); };
-    if (!orbit::advance(s.model, p, ta, tb, s.integration, report, o.stop)) {
+    if (!advance_segment(s, flow, p, ta, tb, report, o.stop)) {
       prog.finish();
       res.reached_myr = ta;
       res.seconds = prog.seconds();
       return res; // interrupted: the parts on disk are whole; rerun to resume
     }
     if (orbit::is_symplectic(s.integration.method))
-      res.orbit_steps +=
-          double(p.size()) * double(orbit::steps_for(ta, tb, s.integration.step_myr));
+      res.orbit_steps += double(p.size()) * double(fixed_steps(s, ta, tb));
     io::write_snapshot_part(part_name(dir, k), snapshot_of(p, tb, birth, s.max_radius_kpc));
     if (o.on_snapshot) o.on_snapshot(tb);
   }
@@ -176,7 +213,10 @@ EnsembleResult run_ensemble(const scenario::Scenario& s, const EnsembleOptions& 
   const auto inv = orbit::conserved_quantity(s.model, s.start_myr, s.end_myr);
   io::Diagnostics d;
   const auto first = io::read_snapshot_part(part_name(dir, 0)).tracers;
-  if (inv.kind == orbit::Invariant::Kind::none) {
+  if (s.gas) {
+    d.invariant = "none";
+    d.note = "the tracers are gas clouds that collide inelastically ([gas]): energy is not kept";
+  } else if (inv.kind == orbit::Invariant::Kind::none) {
     d.invariant = "none";
     d.note = inv.why_none;
   } else {

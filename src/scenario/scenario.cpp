@@ -163,7 +163,8 @@ Scenario parse_scenario(const std::string& text, const std::string& path) {
   s.text = text;
   const toml::table root = io::parse_toml_text(text, path);
   TableReader r(root, path, "");
-  r.check_keys({"run", "galaxy", "tracers", "integration", "output", "observation", "comparison"});
+  r.check_keys(
+      {"run", "galaxy", "tracers", "gas", "integration", "output", "observation", "comparison"});
   const auto section = [&](const char* name) {
     const toml::table* t = r.table(name);
     if (!t) r.fail("", std::string("missing [") + name + "] table");
@@ -194,6 +195,22 @@ Scenario parse_scenario(const std::string& text, const std::string& path) {
   }
   read_tracers(s, section("tracers"));
   read_integration(s, section("integration"));
+  if (const toml::table* g = r.table("gas")) {
+    TableReader gr(*g, path, "gas");
+    gr.check_keys({"cell_kpc", "interval_myr", "restitution", "extent_kpc"});
+    gas::StickyClouds c;
+    c.cell_kpc = gr.number_or("cell_kpc", c.cell_kpc);
+    c.interval_myr = gr.number_or("interval_myr", c.interval_myr);
+    c.restitution = gr.number_or("restitution", c.restitution);
+    c.extent_kpc = gr.number_or("extent_kpc", c.extent_kpc);
+    at_keys(gr, [&] {
+      c.validate();
+      return 0;
+    });
+    if (!orbit::is_symplectic(s.integration.method))
+      r.fail("gas", "colliding clouds need a fixed-step method (leapfrog or mclachlan4)");
+    s.gas = c;
+  }
   read_output(s, section("output"));
   const auto canon = [&](std::initializer_list<const char*> keys) {
     std::ostringstream o;
@@ -201,7 +218,7 @@ Scenario parse_scenario(const std::string& text, const std::string& path) {
       if (const auto* t = root[k].as_table()) o << "[" << k << "]\n" << *t << "\n";
     return o.str() + s.model_text;
   };
-  s.orbit_key = canon({"run", "galaxy", "tracers", "integration", "output"});
+  s.orbit_key = canon({"run", "galaxy", "tracers", "gas", "integration", "output"});
   if (const toml::table* ob = r.table("observation")) {
     s.observation = observe::observation_from_table(*ob, path, "observation", s.model);
     s.observation_key = s.orbit_key + canon({"observation"});
