@@ -1,21 +1,37 @@
 #!/usr/bin/env bash
-# The main job on the bundled demo scenario: installs what is missing, builds, tabulates
-# the demo galaxy (Kestrel) with its resonances, integrates its young tracers, observes them
-# as an invented survey and computes their peculiar motions, all into demo/out/.
+# The main job on the bundled demo scenario: installs what is missing, builds, and asks of the
+# invented survey demo/kestrel-measured.csv whether Kestrel's spiral arms or a smooth galaxy
+# explain the young sources' non-circular motions. Everything goes to demo/out/.
+#   bash demo/run.sh                      install, build, run
+#   bash demo/run.sh --undertow PATH      run with an undertow already built (the tests do)
 set -euo pipefail
 here=$(cd "$(dirname "$0")/.." && pwd)
 cd "$here"
-bash cmake/install-deps.sh
-cmake -S . -B build-demo -G Ninja -DCMAKE_BUILD_TYPE=Release -DUNDERTOW_TESTS=OFF -DUNDERTOW_BENCHMARKS=OFF >/dev/null
-cmake --build build-demo --target undertow
-mkdir -p demo/out
-./build-demo/undertow tabulate potentials/kestrel.toml --from 0.5 --to 20 --step 0.5 --format csv -o demo/out/kestrel-profile.csv
-./build-demo/undertow tabulate potentials/kestrel.toml --from 1 --to 16 --step 1 --format markdown -o demo/out/kestrel-profile.md
-cat demo/out/kestrel-profile.md
+undertow=
+out=demo/out
+while [ $# -gt 0 ]; do
+  case $1 in
+    --undertow) undertow=$2; shift 2 ;;
+    --output) out=$2; shift 2 ;;
+    *) echo "demo/run.sh: unknown option $1" >&2; exit 2 ;;
+  esac
+done
+if [ -z "$undertow" ]; then
+  bash cmake/install-deps.sh
+  cmake -S . -B build-demo -G Ninja -DCMAKE_BUILD_TYPE=Release -DUNDERTOW_TESTS=OFF -DUNDERTOW_BENCHMARKS=OFF >/dev/null
+  cmake --build build-demo --target undertow
+  undertow=./build-demo/undertow
+fi
+undertow=$(realpath "$undertow")
+mkdir -p "$out"
+echo "== The truth galaxy: Kestrel with strong arms (demo/truth/galaxy.toml)"
+"$undertow" tabulate demo/truth/galaxy.toml --from 2 --to 14 --step 2 --format markdown -o "$out/galaxy-profile.md"
 echo
-./build-demo/undertow integrate demo/kestrel-orbits.toml -o demo/out/kestrel-orbits.h5 --restart
+echo "== Model 1: the smooth galaxy"
+"$undertow" run demo/axisymmetric.toml -o "$out/axisymmetric"
 echo
-./build-demo/undertow observe demo/out/kestrel-orbits.h5 demo/kestrel-survey.toml -o demo/out/kestrel-mock.csv
+echo "== Model 2: the spiral galaxy"
+"$undertow" run demo/spiral.toml -o "$out/spiral"
 echo
-./build-demo/undertow residuals demo/out/kestrel-mock.csv --model potentials/kestrel.toml --r0 8.1 \
-  -o demo/out/kestrel-mock-residuals
+echo "== The two models against the survey"
+(cd "$out" && "$undertow" versus axisymmetric spiral) | tee "$out/versus.md"

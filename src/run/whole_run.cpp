@@ -252,6 +252,8 @@ WholeRunResult run_all(const scenario::Scenario& s, const WholeRunOptions& o) {
   res.complete = true;
   res.log_likelihood = local.log_likelihood;
   res.chi2 = local.chi2;
+  for (const auto& src : local.sources)
+    res.pulls.push_back(src.pull);
   res.measured_sources = meas_res.sources.size();
   return res;
 }

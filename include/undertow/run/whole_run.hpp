@@ -4,6 +4,7 @@
 // catalogs, the global and local comparison tables, a short text summary and a copy of the
 // scenario. Stages whose inputs have not changed since the last run are reused (orbits and the
 // mock catalog); --force redoes everything.
+#include <array>
 #include <atomic>
 #include <ostream>
 #include <string>
@@ -26,7 +27,8 @@ struct WholeRunResult {
   std::vector<std::string> reused; // stage names
   double log_likelihood = 0, chi2 = 0;
   std::size_t measured_sources = 0;
-  std::string summary; // the text of summary.txt
+  std::vector<std::array<double, 3>> pulls; // (U, V, W) per measured source, local comparison
+  std::string summary;                      // the text of summary.txt
 };
 
 WholeRunResult run_all(const scenario::Scenario& s, const WholeRunOptions& o);
