@@ -4,6 +4,7 @@
 # explain the young sources' non-circular motions. Everything goes to demo/out/.
 #   bash demo/run.sh                      install, build, run
 #   bash demo/run.sh --undertow PATH      run with an undertow already built (the tests do)
+#   --output DIR                          write there instead of demo/out/
 set -euo pipefail
 here=$(cd "$(dirname "$0")/.." && pwd)
 cd "$here"

@@ -5,11 +5,11 @@
 set -euo pipefail
 undertow=$1
 here=$(cd "$(dirname "$0")" && pwd)
-out=${2:-$here/../kestrel-measured.csv}
+out=$(realpath -m "${2:-$here/../kestrel-measured.csv}")
 work=$(mktemp -d)
 trap 'rm -rf "$work"' EXIT
 "$undertow" integrate "$here/orbits.toml" -o "$work/truth.h5" --restart
-"$undertow" observe "$work/truth.h5" "$here/survey.toml" -o "$work/measured.csv"
+"$undertow" observe "$work/truth.h5" "$here/survey.toml" -o "$work/measured.csv" | sed "s|$work/||"
 {
   echo "# Invented catalog of the undertow demo: young sources of the truth scenario demo/truth/"
   echo "# (no real survey); regenerate with demo/truth/make-catalog.sh"

@@ -174,7 +174,7 @@ int run_residuals(const ResidualArgs& a) {
   s.distance = residuals::distance_from_name(a.distance);
   s.edsd_length_kpc = a.edsd_length;
   s.min_parallax_snr = a.min_snr;
-  s.lsr = a.lsr == "components" ? sky::LsrForm::components : sky::LsrForm::apex;
+  s.lsr = sky::lsr_form_from_name(a.lsr);
   s.draws = a.draws;
   s.seed = a.seed;
   const auto cat = residuals::read_catalog(a.catalog);

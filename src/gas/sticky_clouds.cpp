@@ -53,26 +53,38 @@ PassSummary collide(orbit::PhaseSpace& p, const CircularFlow& flow, const Sticky
     double wx = 0, wy = 0, wz = 0;
     std::uint32_t count = 0;
   };
-  // One grid, reused by every pass of this thread; only the touched cells are cleared.
+  // Buffers reused by every pass of this (calling) thread; only the touched cells are cleared.
+  // The OpenMP workers reach them through plain pointers: thread_local names are per thread.
   thread_local std::vector<Sum> grid;
   thread_local std::vector<std::size_t> touched;
+  thread_local std::vector<std::int64_t> cell_of;
+  thread_local std::vector<double> flow_x, flow_y;
   const std::size_t cells = std::size_t(nxy * nxy * nz);
   if (grid.size() != cells) grid.assign(cells, Sum{});
   touched.clear();
+  cell_of.resize(n);
+  flow_x.resize(n);
+  flow_y.resize(n);
+  std::int64_t* cell = cell_of.data();
+  double *fx = flow_x.data(), *fy = flow_y.data();
 
-  std::vector<std::int64_t> cell(n, -1);
-  std::vector<double> fx(n), fy(n);
+  // Each cloud's cell and circular flow: independent, so in parallel.
+#pragma omp parallel for schedule(static)
   for (std::size_t i = 0; i < n; ++i) {
-    flow.at(p.x[i], p.y[i], fx[i], fy[i]);
+    cell[i] = -1;
     const double ux = (p.x[i] + s.extent_kpc) / s.cell_kpc;
     const double uy = (p.y[i] + s.extent_kpc) / s.cell_kpc;
     const double uz = p.z[i] / s.cell_kpc + double(nz / 2);
     if (!(ux >= 0 && ux < double(nxy) && uy >= 0 && uy < double(nxy) && uz >= 0 && uz < double(nz)))
       continue;
-    const std::int64_t c = (std::int64_t(uz) * nxy + std::int64_t(uy)) * nxy + std::int64_t(ux);
-    cell[i] = c;
-    Sum& g = grid[std::size_t(c)];
-    if (g.count == 0) touched.push_back(std::size_t(c));
+    cell[i] = (std::int64_t(uz) * nxy + std::int64_t(uy)) * nxy + std::int64_t(ux);
+    flow.at(p.x[i], p.y[i], fx[i], fy[i]);
+  }
+  // The cell sums, in id order (serial, so the sums do not depend on the thread count).
+  for (std::size_t i = 0; i < n; ++i) {
+    if (cell[i] < 0) continue;
+    Sum& g = grid[std::size_t(cell[i])];
+    if (g.count == 0) touched.push_back(std::size_t(cell[i]));
     g.wx += p.vx[i] - fx[i];
     g.wy += p.vy[i] - fy[i];
     g.wz += p.vz[i];

@@ -1,9 +1,10 @@
 #include "undertow/io/csv.hpp"
 
+#include "undertow/io/text_file.hpp"
+
 #include <cerrno>
 #include <cmath>
 #include <cstdlib>
-#include <fstream>
 #include <sstream>
 
 namespace undertow::io {
@@ -36,11 +37,7 @@ std::vector<std::string> split(const std::string& line) {
 } // namespace
 
 CsvTable CsvTable::read_file(const std::string& path) {
-  std::ifstream in(path, std::ios::binary);
-  if (!in) throw InputError(SourcePlace{path, 0, 0, {}}, "cannot open file");
-  std::stringstream ss;
-  ss << in.rdbuf();
-  return parse(ss.str(), path);
+  return parse(read_text_file(path), path);
 }
 
 CsvTable CsvTable::parse(const std::string& text, const std::string& source) {

@@ -96,16 +96,6 @@ void quiet() {
   H5Eset_auto2(H5E_DEFAULT, nullptr, nullptr);
 }
 
-File File::create(const std::string& path) {
-  quiet();
-  File f;
-  f.path_ = path;
-  f.h_ = Handle(check(H5Fcreate(path.c_str(), H5F_ACC_TRUNC, H5P_DEFAULT, H5P_DEFAULT), f,
-                      "cannot create HDF5 file"),
-                H5Fclose);
-  return f;
-}
-
 File File::create_in_memory(const std::string& name) {
   quiet();
   File f;

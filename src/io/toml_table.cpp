@@ -1,9 +1,9 @@
 #include "undertow/io/toml_table.hpp"
 
+#include "undertow/io/text_file.hpp"
+
 #include <algorithm>
 #include <cmath>
-#include <fstream>
-#include <sstream>
 
 namespace undertow::io {
 
@@ -168,11 +168,7 @@ InputError from_parse_error(const toml::parse_error& e, const std::string& file)
 } // namespace
 
 toml::table parse_toml_file(const std::string& path) {
-  std::ifstream in(path, std::ios::binary);
-  if (!in) throw InputError(SourcePlace{path, 0, 0, {}}, "cannot open file");
-  std::stringstream ss;
-  ss << in.rdbuf();
-  return parse_toml_text(ss.str(), path);
+  return parse_toml_text(read_text_file(path), path);
 }
 
 toml::table parse_toml_text(std::string_view text, const std::string& source_name) {

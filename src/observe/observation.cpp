@@ -11,9 +11,12 @@
 namespace undertow::observe {
 namespace {
 
-double angular_distance(double ra1, double dec1, double ra2, double dec2) {
-  const auto a = sky::unit_vector(ra1 * units::deg, dec1 * units::deg);
-  const auto b = sky::unit_vector(ra2 * units::deg, dec2 * units::deg);
+// The unit vector of a catalog position given in degrees.
+sky::Vec3 direction(double ra_deg, double dec_deg) {
+  return sky::unit_vector(ra_deg * units::deg, dec_deg * units::deg);
+}
+
+double angle_between(const sky::Vec3& a, const sky::Vec3& b) {
   return std::acos(std::clamp(a[0] * b[0] + a[1] * b[1] + a[2] * b[2], -1.0, 1.0));
 }
 
@@ -101,6 +104,12 @@ MockResult observe(const io::Snapshot& snap, const std::vector<double>& weights,
     cand.push_back({i, o, d, std::log(rng.uniform()) / w});
   }
   out.candidates = cand.size();
+  // Error catalog: the directions of its sources, once.
+  const auto& e = s.errors;
+  std::vector<sky::Vec3> ref_dir;
+  if (e.kind == ErrorModel::Kind::catalog)
+    for (const auto& r : e.reference.sources)
+      ref_dir.push_back(direction(r.ra_deg, r.dec_deg));
   std::sort(cand.begin(), cand.end(), [](const Candidate& a, const Candidate& b) {
     return a.key != b.key ? a.key > b.key : a.i < b.i;
   });
@@ -113,7 +122,6 @@ MockResult observe(const io::Snapshot& snap, const std::vector<double>& weights,
     src.dec_deg = c.o.dec_deg;
     const double w_true = 1 / c.d;
     const double vlsr_true = sky::helio_to_lsr(c.o.vhelio_kms, c.o.ra_deg, c.o.dec_deg, s.lsr);
-    const auto& e = s.errors;
     switch (e.kind) {
     case ErrorModel::Kind::fixed:
       src.parallax_err_mas = e.parallax_mas, src.pmra_err_masyr = src.pmdec_err_masyr = e.pm_masyr;
@@ -125,13 +133,13 @@ MockResult observe(const io::Snapshot& snap, const std::vector<double>& weights,
       src.vlsr_err_kms = e.vlsr_kms;
       break;
     case ErrorModel::Kind::catalog: {
-      if (e.reference.sources.empty())
-        throw InputError("observe: the error catalog has no sources");
+      if (ref_dir.empty()) throw InputError("observe: the error catalog has no sources");
+      const sky::Vec3 here = direction(c.o.ra_deg, c.o.dec_deg);
       const residuals::Source* best = nullptr;
       double bd = INFINITY;
-      for (const auto& r : e.reference.sources) {
-        const double a = angular_distance(r.ra_deg, r.dec_deg, c.o.ra_deg, c.o.dec_deg);
-        if (a < bd) bd = a, best = &r;
+      for (std::size_t k = 0; k < ref_dir.size(); ++k) {
+        const double a = angle_between(ref_dir[k], here);
+        if (a < bd) bd = a, best = &e.reference.sources[k];
       }
       src.parallax_err_mas = best->parallax_err_mas, src.pmra_err_masyr = best->pmra_err_masyr;
       src.pmdec_err_masyr = best->pmdec_err_masyr, src.vlsr_err_kms = best->vlsr_err_kms;

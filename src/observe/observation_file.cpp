@@ -25,11 +25,11 @@ ObservationSpec observation_from_table(const toml::table& t, const std::string& 
   const double seed = r.number_or("seed", 1);
   if (!(seed >= 0 && std::floor(seed) == seed)) r.fail("seed", "must be a whole number");
   s.seed = std::uint64_t(seed);
-  const std::string lsr = r.string_or("lsr", "apex");
-  if (lsr == "components")
-    s.lsr = sky::LsrForm::components;
-  else if (lsr != "apex")
-    r.fail("lsr", "must be \"apex\" or \"components\"");
+  try {
+    s.lsr = sky::lsr_form_from_name(r.string_or("lsr", "apex"));
+  } catch (const InputError& e) {
+    r.fail("lsr", e.what());
+  }
   spec.time_myr = r.optional_number("time_myr");
 
   const toml::table* sun = r.table("sun");

@@ -129,15 +129,14 @@ void advance_orbit_adaptive(const Model& m, PhaseSpace& p, std::size_t i, double
   State6 st{one.x[0], one.y[0], one.z[0], one.vx[0], one.vy[0], one.vz[0]};
   const double w = frame.pattern_speed;
   const auto rhs = [&](const State6& y, State6& d, double t) {
-    double x = y[0], yy = y[1];
+    double x = y[0], yy = y[1], c = 1, sn = 0;
     if (rotating) { // inertial position of the rotating-frame point
-      const double th = w * t, c = std::cos(th), sn = std::sin(th);
+      c = std::cos(w * t), sn = std::sin(w * t);
       x = c * y[0] + sn * y[1];
       yy = -sn * y[0] + c * y[1];
     }
     auto a = m.acceleration({x, yy, y[2]}, t * kMyr);
     if (rotating) {
-      const double th = w * t, c = std::cos(th), sn = std::sin(th);
       const double ax = c * a[0] - sn * a[1], ay = sn * a[0] + c * a[1];
       a[0] = ax - 2 * w * y[4] + w * w * y[0]; // Coriolis and centrifugal terms
       a[1] = ay + 2 * w * y[3] + w * w * y[1];

@@ -4,13 +4,11 @@
 #include <cmath>
 #include <cstdio>
 #include <filesystem>
-#include <fstream>
 #include <iostream>
-#include <sstream>
 
 #include "undertow/error.hpp"
 #include "undertow/gas/sticky_clouds.hpp"
-#include "undertow/io/atomic_file.hpp"
+#include "undertow/io/text_file.hpp"
 #include "undertow/orbit/conserved.hpp"
 #include "undertow/orbit/frame.hpp"
 #include "undertow/tracers/disk_population.hpp"
@@ -25,13 +23,6 @@ std::string part_name(const std::string& dir, std::size_t k) {
   char b[32];
   std::snprintf(b, sizeof b, "part_%05zu.h5", k);
   return (fs::path(dir) / b).string();
-}
-
-std::string read_all(const std::string& path) {
-  std::ifstream in(path, std::ios::binary);
-  std::stringstream ss;
-  ss << in.rdbuf();
-  return ss.str();
 }
 
 // What identifies a run: the scenario text and the text of its model file.
@@ -148,7 +139,7 @@ EnsembleResult run_ensemble(const scenario::Scenario& s, const EnsembleOptions& 
   orbit::PhaseSpace p;
   const double birth = s.start_myr;
   if (fs::exists(dir)) {
-    if (!fs::exists(id_file) || read_all(id_file) != identity(s))
+    if (!fs::exists(id_file) || io::read_text_file(id_file) != identity(s))
       throw InputError(SourcePlace{dir, 0, 0, {}},
                        "holds an unfinished run of a different scenario (or model file); remove it "
                        "or run again with --restart");
@@ -156,7 +147,7 @@ EnsembleResult run_ensemble(const scenario::Scenario& s, const EnsembleOptions& 
       if (e.path().filename().string().rfind(".part_", 0) == 0) fs::remove(e.path());
     while (have < times.size() && fs::exists(part_name(dir, have))) {
       try {
-        (void)io::read_snapshot_part(part_name(dir, have)); // a damaged part is redone
+        p = io::read_snapshot_part(part_name(dir, have)).tracers; // a damaged part is redone
       } catch (const InputError&) {
         fs::remove(part_name(dir, have));
         break;
@@ -171,9 +162,7 @@ EnsembleResult run_ensemble(const scenario::Scenario& s, const EnsembleOptions& 
       std::error_code ec;
       fs::create_directories(dir, ec);
       if (ec) throw InputError(SourcePlace{dir, 0, 0, {}}, "cannot create folder: " + ec.message());
-      io::AtomicFile f(id_file);
-      f.stream() << identity(s);
-      f.commit();
+      io::write_text_file(id_file, identity(s));
       io::write_snapshot_part(part_name(dir, 0), snapshot_of(p, times[0], birth, s.max_radius_kpc));
     } catch (...) {
       std::error_code ec;
@@ -182,7 +171,7 @@ EnsembleResult run_ensemble(const scenario::Scenario& s, const EnsembleOptions& 
     }
     have = 1;
   } else {
-    p = io::read_snapshot_part(part_name(dir, have - 1)).tracers;
+    // p holds the last whole part, read while checking the parts
     if (o.log && have < times.size())
       *o.log << "resuming from t = " << times[have - 1] << " Myr (" << have << " of "
              << times.size() << " snapshots on disk)\n";
@@ -202,8 +191,7 @@ EnsembleResult run_ensemble(const scenario::Scenario& s, const EnsembleOptions& 
       res.seconds = prog.seconds();
       return res; // interrupted: the parts on disk are whole; rerun to resume
     }
-    if (orbit::is_symplectic(s.integration.method))
-      res.orbit_steps += double(p.size()) * double(fixed_steps(s, ta, tb));
+    res.orbit_steps += double(p.size()) * double(steps);
     io::write_snapshot_part(part_name(dir, k), snapshot_of(p, tb, birth, s.max_radius_kpc));
     if (o.on_snapshot) o.on_snapshot(tb);
   }
@@ -212,7 +200,6 @@ EnsembleResult run_ensemble(const scenario::Scenario& s, const EnsembleOptions& 
   // Diagnostics: the invariant at the end against the start.
   const auto inv = orbit::conserved_quantity(s.model, s.start_myr, s.end_myr);
   io::Diagnostics d;
-  const auto first = io::read_snapshot_part(part_name(dir, 0)).tracers;
   if (s.gas) {
     d.invariant = "none";
     d.note = "the tracers are gas clouds that collide inelastically ([gas]): energy is not kept";
@@ -221,6 +208,7 @@ EnsembleResult run_ensemble(const scenario::Scenario& s, const EnsembleOptions& 
     d.note = inv.why_none;
   } else {
     d.invariant = inv.kind == orbit::Invariant::Kind::energy ? "energy" : "jacobi";
+    const auto first = io::read_snapshot_part(part_name(dir, 0)).tracers;
     const auto rel = orbit::relative_errors(orbit::evaluate(inv, s.model, first, s.start_myr),
                                             orbit::evaluate(inv, s.model, p, s.end_myr));
     const auto sum = orbit::summarise(rel, 5);

@@ -3,16 +3,16 @@
 #include <cmath>
 #include <cstdio>
 #include <filesystem>
-#include <fstream>
 #include <map>
+#include <optional>
 #include <sstream>
 
 #include "undertow/compare/global.hpp"
 #include "undertow/compare/local.hpp"
 #include "undertow/dynamics/frequencies.hpp"
 #include "undertow/error.hpp"
-#include "undertow/io/atomic_file.hpp"
 #include "undertow/io/table_hdf5.hpp"
+#include "undertow/io/text_file.hpp"
 #include "undertow/observe/prepare.hpp"
 #include "undertow/residuals/report.hpp"
 #include "undertow/run/ensemble.hpp"
@@ -22,22 +22,19 @@ namespace {
 
 namespace fs = std::filesystem;
 
-std::string read_all(const fs::path& p) {
-  std::ifstream in(p, std::ios::binary);
-  std::stringstream ss;
-  ss << in.rdbuf();
-  return ss.str();
+// The key a finished stage left beside its output, if any.
+std::optional<std::string> stored_key(const fs::path& key_file) {
+  if (!fs::exists(key_file)) return std::nullopt;
+  return io::read_text_file(key_file.string());
 }
 
 void write_text(const fs::path& p, const std::string& text) {
-  io::AtomicFile f(p.string());
-  f.stream() << text;
-  f.commit();
+  io::write_text_file(p.string(), text);
 }
 
-bool reusable(const fs::path& key_file, const std::string& key, const fs::path& output,
-              bool force) {
-  return !force && fs::exists(output) && fs::exists(key_file) && read_all(key_file) == key;
+bool reusable(const std::optional<std::string>& stored, const std::string& key,
+              const fs::path& output, bool force) {
+  return !force && fs::exists(output) && stored && *stored == key;
 }
 
 residuals::ResidualSettings residual_settings(const scenario::Scenario& s) {
@@ -48,7 +45,7 @@ residuals::ResidualSettings residual_settings(const scenario::Scenario& s) {
   r.rotation.kind = residuals::RotationCurve::Kind::model;
   const potential::Model* m = &s.model;
   r.rotation.model = [m](double R) { return dynamics::circular_speed(*m, R); };
-  r.distance = residuals::distance_from_name(c.distance);
+  r.distance = c.distance;
   r.edsd_length_kpc = c.edsd_length_kpc;
   r.min_parallax_snr = c.min_parallax_snr;
   r.draws = c.draws;
@@ -144,14 +141,14 @@ WholeRunResult run_all(const scenario::Scenario& s, const WholeRunOptions& o) {
 
   // 1. orbits
   const fs::path orbits = dir / "orbits.h5";
-  if (reusable(dir / ".keys/orbits", s.orbit_key, orbits, o.force)) {
+  const auto orbits_key = stored_key(dir / ".keys/orbits");
+  if (reusable(orbits_key, s.orbit_key, orbits, o.force)) {
     res.reused.push_back("orbits");
     note("orbits: reused " + orbits.string());
   } else {
     EnsembleOptions eo;
     eo.output = orbits.string();
-    eo.restart = o.force || (fs::exists(dir / ".keys/orbits") &&
-                             read_all(dir / ".keys/orbits") != s.orbit_key);
+    eo.restart = o.force || (orbits_key && *orbits_key != s.orbit_key);
     eo.progress = o.progress;
     eo.stop = o.stop;
     eo.log = o.log;
@@ -171,7 +168,7 @@ WholeRunResult run_all(const scenario::Scenario& s, const WholeRunOptions& o) {
   const auto& weights = prep.weights;
   const auto& ob = s.observation->settings;
   const fs::path mock_path = dir / "mock-catalog.csv";
-  if (reusable(dir / ".keys/mock", s.observation_key, mock_path, o.force)) {
+  if (reusable(stored_key(dir / ".keys/mock"), s.observation_key, mock_path, o.force)) {
     res.reused.push_back("mock");
     note("mock catalog: reused " + mock_path.string());
   } else {

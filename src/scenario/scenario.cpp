@@ -2,10 +2,11 @@
 
 #include <cmath>
 #include <filesystem>
-#include <fstream>
+#include <optional>
 #include <sstream>
 
 #include "undertow/detail/kernel.hpp"
+#include "undertow/io/text_file.hpp"
 #include "undertow/io/toml_table.hpp"
 #include "undertow/potential/model_file.hpp"
 #include "undertow/residuals/peculiar.hpp"
@@ -16,14 +17,6 @@ namespace {
 using io::at_keys;
 using io::TableReader;
 namespace fs = std::filesystem;
-
-std::string read_text(const std::string& path) {
-  std::ifstream in(path, std::ios::binary);
-  if (!in) throw InputError(SourcePlace{path, 0, 0, {}}, "cannot open file");
-  std::stringstream ss;
-  ss << in.rdbuf();
-  return ss.str();
-}
 
 // Paths in a scenario are relative to the scenario's own folder.
 std::string resolve(const std::string& scenario_path, const std::string& p) {
@@ -73,6 +66,21 @@ void read_tracers(Scenario& s, const TableReader& r) {
   }
 }
 
+// "frame" (inertial or rotating) and, for a rotating frame, "frame_pattern": the pattern speed
+// the frame turns with (km/s/kpc), or nothing for the inertial frame.
+std::optional<double> read_frame(const Scenario& s, const TableReader& r) {
+  const std::string frame = r.string_or("frame", "inertial");
+  if (frame == "inertial") return std::nullopt;
+  if (frame != "rotating")
+    r.fail("frame", "must be \"inertial\" or \"rotating\", got \"" + frame + "\"");
+  const std::string label = r.string("frame_pattern");
+  std::optional<double> speed;
+  for (const auto& p : s.model.patterns)
+    if (p.label == label) speed = p.pattern_speed;
+  if (!speed) r.fail("frame_pattern", "no pattern labelled '" + label + "'");
+  return speed;
+}
+
 void read_integration(Scenario& s, const TableReader& r) {
   r.check_keys({"method", "start_myr", "end_myr", "step_myr", "tolerance", "batch_size", "frame",
                 "frame_pattern", "max_radius_kpc"});
@@ -95,21 +103,28 @@ void read_integration(Scenario& s, const TableReader& r) {
   s.integration.batch = std::size_t(batch);
   s.max_radius_kpc = r.number_or("max_radius_kpc", 500.0);
   if (!(s.max_radius_kpc > 0)) r.fail("max_radius_kpc", "must be positive");
-  const std::string frame = r.string_or("frame", "inertial");
-  if (frame == "rotating") {
-    if (orbit::is_symplectic(s.integration.method))
-      r.fail("frame", "the " + orbit::method_name(s.integration.method) +
-                          " stepper integrates in the inertial frame (the rotating-frame "
-                          "equations are not separable); use an adaptive method, or ask for "
-                          "rotating-frame output in [output]");
-    const std::string label = r.string("frame_pattern");
-    for (const auto& p : s.model.patterns)
-      if (p.label == label) s.integration.rotating_frame_speed = p.pattern_speed;
-    if (!s.integration.rotating_frame_speed)
-      r.fail("frame_pattern", "no pattern labelled '" + label + "'");
-  } else if (frame != "inertial") {
-    r.fail("frame", "must be \"inertial\" or \"rotating\", got \"" + frame + "\"");
-  }
+  if (r.string_or("frame", "inertial") == "rotating" && orbit::is_symplectic(s.integration.method))
+    r.fail("frame", "the " + orbit::method_name(s.integration.method) +
+                        " stepper integrates in the inertial frame (the rotating-frame "
+                        "equations are not separable); use an adaptive method, or ask for "
+                        "rotating-frame output in [output]");
+  s.integration.rotating_frame_speed = read_frame(s, r);
+}
+
+void read_gas(Scenario& s, const TableReader& r) {
+  r.check_keys({"cell_kpc", "interval_myr", "restitution", "extent_kpc"});
+  gas::StickyClouds c;
+  c.cell_kpc = r.number_or("cell_kpc", c.cell_kpc);
+  c.interval_myr = r.number_or("interval_myr", c.interval_myr);
+  c.restitution = r.number_or("restitution", c.restitution);
+  c.extent_kpc = r.number_or("extent_kpc", c.extent_kpc);
+  at_keys(r, [&] {
+    c.validate();
+    return 0;
+  });
+  if (!orbit::is_symplectic(s.integration.method))
+    r.fail("", "colliding clouds need a fixed-step method (leapfrog or mclachlan4)");
+  s.gas = c;
 }
 
 void read_output(Scenario& s, const TableReader& r) {
@@ -142,16 +157,9 @@ void read_output(Scenario& s, const TableReader& r) {
       o.times_myr.push_back(s.end_myr > s.start_myr ? s.start_myr + k * e : s.start_myr - k * e);
   }
   if (o.times_myr.empty() || o.times_myr.back() != s.end_myr) o.times_myr.push_back(s.end_myr);
-  const std::string frame = r.string_or("frame", "inertial");
-  if (frame == "rotating") {
+  if (const auto speed = read_frame(s, r)) {
     o.frame = Output::Frame::rotating;
-    o.frame_pattern = r.string("frame_pattern");
-    bool found = false;
-    for (const auto& p : s.model.patterns)
-      if (p.label == o.frame_pattern) o.frame_pattern_speed = p.pattern_speed, found = true;
-    if (!found) r.fail("frame_pattern", "no pattern labelled '" + o.frame_pattern + "'");
-  } else if (frame != "inertial") {
-    r.fail("frame", "must be \"inertial\" or \"rotating\", got \"" + frame + "\"");
+    o.frame_pattern_speed = *speed;
   }
 }
 
@@ -187,7 +195,7 @@ Scenario parse_scenario(const std::string& text, const std::string& path) {
     if (gr.has("model_file")) {
       gr.check_keys({"model_file"});
       s.model_path = resolve(path, gr.string("model_file"));
-      s.model_text = read_text(s.model_path);
+      s.model_text = io::read_text_file(s.model_path);
       s.model = potential::parse_model_text(s.model_text, s.model_path);
     } else {
       s.model = potential::model_from_table(*g, path, "galaxy");
@@ -195,22 +203,7 @@ Scenario parse_scenario(const std::string& text, const std::string& path) {
   }
   read_tracers(s, section("tracers"));
   read_integration(s, section("integration"));
-  if (const toml::table* g = r.table("gas")) {
-    TableReader gr(*g, path, "gas");
-    gr.check_keys({"cell_kpc", "interval_myr", "restitution", "extent_kpc"});
-    gas::StickyClouds c;
-    c.cell_kpc = gr.number_or("cell_kpc", c.cell_kpc);
-    c.interval_myr = gr.number_or("interval_myr", c.interval_myr);
-    c.restitution = gr.number_or("restitution", c.restitution);
-    c.extent_kpc = gr.number_or("extent_kpc", c.extent_kpc);
-    at_keys(gr, [&] {
-      c.validate();
-      return 0;
-    });
-    if (!orbit::is_symplectic(s.integration.method))
-      r.fail("gas", "colliding clouds need a fixed-step method (leapfrog or mclachlan4)");
-    s.gas = c;
-  }
+  if (const toml::table* g = r.table("gas")) read_gas(s, TableReader(*g, path, "gas"));
   read_output(s, section("output"));
   const auto canon = [&](std::initializer_list<const char*> keys) {
     std::ostringstream o;
@@ -230,9 +223,8 @@ Scenario parse_scenario(const std::string& text, const std::string& path) {
                   "radius_kpc", "prediction_sources", "radius_bins_kpc", "azimuth_bins_deg"});
     Comparison c;
     c.catalog = resolve(path, q.string("catalog"));
-    c.distance = q.string_or("distance", "inverse");
     try {
-      (void)residuals::distance_from_name(c.distance);
+      c.distance = residuals::distance_from_name(q.string_or("distance", "inverse"));
     } catch (const InputError& e) {
       q.fail("distance", e.what());
     }
@@ -270,7 +262,7 @@ Scenario parse_scenario(const std::string& text, const std::string& path) {
 }
 
 Scenario load_scenario(const std::string& path) {
-  return parse_scenario(read_text(path), path);
+  return parse_scenario(io::read_text_file(path), path);
 }
 
 } // namespace undertow::scenario

@@ -5,24 +5,43 @@
 
 namespace undertow::sky {
 
+namespace {
+
+// Log posterior up to a constant: 2 ln r - r/L - (w - 1/r)^2 / (2 s^2).
+double log_posterior(double r, double w, double s, double L) {
+  return 2 * std::log(r) - r / L - (w - 1 / r) * (w - 1 / r) / (2 * s * s);
+}
+
+// The scan grid for the roots, 1e-6 to 1e6 kpc logarithmically: the same for every call.
+const std::vector<double>& scan_grid() {
+  static const std::vector<double> g = [] {
+    std::vector<double> v(4001);
+    for (int i = 1; i <= 4000; ++i)
+      v[std::size_t(i)] = 1e-6 * std::pow(1e12, i / 4000.0);
+    return v;
+  }();
+  return g;
+}
+
+} // namespace
+
 double edsd_mode_kpc(double w, double s, double L) {
-  // log posterior up to a constant: 2 ln r - r/L - (w - 1/r)^2 / (2 s^2)
-  const auto logp = [&](double r) {
-    return 2 * std::log(r) - r / L - (w - 1 / r) * (w - 1 / r) / (2 * s * s);
-  };
+  const auto logp = [&](double r) { return log_posterior(r, w, s, L); };
   const auto f = [&](double r) {
     return r * r * r / L - 2 * r * r + w / (s * s) * r - 1 / (s * s);
   };
   // f(0) < 0 and f -> +inf: scan for sign changes on a logarithmic grid, refine by bisection
   std::vector<double> roots;
+  const auto& grid = scan_grid();
   double a = 1e-6, fa = f(a);
   for (int i = 1; i <= 4000; ++i) {
-    const double b = 1e-6 * std::pow(1e12, i / 4000.0), fb = f(b);
+    const double b = grid[std::size_t(i)], fb = f(b);
     if ((fa < 0) != (fb < 0)) {
       double lo = a, hi = b;
+      const bool lo_negative = fa < 0; // lo only moves to points of its own sign
       for (int k = 0; k < 200 && hi - lo > 1e-15 * hi; ++k) {
         const double m = 0.5 * (lo + hi);
-        ((f(m) < 0) == (f(lo) < 0) ? lo : hi) = m;
+        ((f(m) < 0) == lo_negative ? lo : hi) = m;
       }
       roots.push_back(0.5 * (lo + hi));
     }
@@ -37,9 +56,7 @@ double edsd_mode_kpc(double w, double s, double L) {
 
 double edsd_median_kpc(double w, double s, double L) {
   const double mode = edsd_mode_kpc(w, s, L);
-  const auto logp = [&](double r) {
-    return 2 * std::log(r) - r / L - (w - 1 / r) * (w - 1 / r) / (2 * s * s);
-  };
+  const auto logp = [&](double r) { return log_posterior(r, w, s, L); };
   const double lp0 = logp(mode);
   constexpr int n = 2000;
   const double lo = std::log(mode / 50), hi = std::log(mode * 50);

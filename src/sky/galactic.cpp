@@ -64,41 +64,49 @@ void galactic_to_icrs(double l, double b, double& ra, double& dec) {
   to_angles(mul_transposed(icrs_to_galactic_matrix(), unit_vector(l, b)), ra, dec);
 }
 
-namespace {
-// Tangent-plane basis (east, north) at (lon, lat).
-void basis(double lon, double lat, Vec3& e, Vec3& n) {
+void tangent_basis(double lon, double lat, Vec3& e, Vec3& n) {
   e = {-std::sin(lon), std::cos(lon), 0};
   n = {-std::sin(lat) * std::cos(lon), -std::sin(lat) * std::sin(lon), std::cos(lat)};
 }
+
 double dot(const Vec3& a, const Vec3& b) {
   return a[0] * b[0] + a[1] * b[1] + a[2] * b[2];
 }
-} // namespace
 
-void icrs_to_galactic_pm(double ra, double dec, double pa, double pd, double& pl, double& pb) {
+void icrs_to_galactic_with_pm(double ra, double dec, double pa, double pd, double& l, double& b,
+                              double& pl, double& pb) {
   Vec3 e, n;
-  basis(ra, dec, e, n);
+  tangent_basis(ra, dec, e, n);
   const Vec3 t{pa * e[0] + pd * n[0], pa * e[1] + pd * n[1], pa * e[2] + pd * n[2]};
   const Vec3 tg = mul(icrs_to_galactic_matrix(), t);
-  double l, b;
   icrs_to_galactic(ra, dec, l, b);
   Vec3 eg, ng;
-  basis(l, b, eg, ng);
+  tangent_basis(l, b, eg, ng);
   pl = dot(tg, eg);
   pb = dot(tg, ng);
 }
 
-void galactic_to_icrs_pm(double l, double b, double pl, double pb, double& pa, double& pd) {
+void galactic_to_icrs_with_pm(double l, double b, double pl, double pb, double& ra, double& dec,
+                              double& pa, double& pd) {
   Vec3 e, n;
-  basis(l, b, e, n);
+  tangent_basis(l, b, e, n);
   const Vec3 t{pl * e[0] + pb * n[0], pl * e[1] + pb * n[1], pl * e[2] + pb * n[2]};
   const Vec3 ti = mul_transposed(icrs_to_galactic_matrix(), t);
-  double ra, dec;
   galactic_to_icrs(l, b, ra, dec);
   Vec3 ei, ni;
-  basis(ra, dec, ei, ni);
+  tangent_basis(ra, dec, ei, ni);
   pa = dot(ti, ei);
   pd = dot(ti, ni);
+}
+
+void icrs_to_galactic_pm(double ra, double dec, double pa, double pd, double& pl, double& pb) {
+  double l, b;
+  icrs_to_galactic_with_pm(ra, dec, pa, pd, l, b, pl, pb);
+}
+
+void galactic_to_icrs_pm(double l, double b, double pl, double pb, double& pa, double& pd) {
+  double ra, dec;
+  galactic_to_icrs_with_pm(l, b, pl, pb, ra, dec, pa, pd);
 }
 
 } // namespace undertow::sky

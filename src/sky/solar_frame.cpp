@@ -38,11 +38,10 @@ Galactocentric sun(const SolarFrame& f) {
 Galactocentric to_galactocentric(const Observed& o, double d, const SolarFrame& f) {
   const double ra = o.ra_deg * units::deg, dec = o.dec_deg * units::deg;
   double l, b, pl, pb;
-  icrs_to_galactic(ra, dec, l, b);
-  icrs_to_galactic_pm(ra, dec, o.pmra_masyr, o.pmdec_masyr, pl, pb);
+  icrs_to_galactic_with_pm(ra, dec, o.pmra_masyr, o.pmdec_masyr, l, b, pl, pb);
   const Vec3 u = unit_vector(l, b);
-  const Vec3 el{-std::sin(l), std::cos(l), 0};
-  const Vec3 eb{-std::sin(b) * std::cos(l), -std::sin(b) * std::sin(l), std::cos(b)};
+  Vec3 el, eb;
+  tangent_basis(l, b, el, eb);
   Vec3 rh, vh;
   for (int k = 0; k < 3; ++k) {
     rh[k] = d * u[k];
@@ -67,16 +66,12 @@ double from_galactocentric(const Galactocentric& g, const SolarFrame& f, Observe
   double l, b;
   to_angles(rh, l, b);
   const Vec3 u = unit_vector(l, b);
-  const Vec3 el{-std::sin(l), std::cos(l), 0};
-  const Vec3 eb{-std::sin(b) * std::cos(l), -std::sin(b) * std::sin(l), std::cos(b)};
-  const auto dot = [](const Vec3& a, const Vec3& c) {
-    return a[0] * c[0] + a[1] * c[1] + a[2] * c[2];
-  };
+  Vec3 el, eb;
+  tangent_basis(l, b, el, eb);
   o.vhelio_kms = dot(vh, u);
   const double pl = dot(vh, el) / (kKappa * d), pb = dot(vh, eb) / (kKappa * d);
   double ra, dec;
-  galactic_to_icrs(l, b, ra, dec);
-  galactic_to_icrs_pm(l, b, pl, pb, o.pmra_masyr, o.pmdec_masyr);
+  galactic_to_icrs_with_pm(l, b, pl, pb, ra, dec, o.pmra_masyr, o.pmdec_masyr);
   o.ra_deg = ra / units::deg;
   o.dec_deg = dec / units::deg;
   return d;

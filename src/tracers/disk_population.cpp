@@ -46,11 +46,12 @@ void DiskPopulation::validate() const {
   if (!(dispersion_scale_kpc > 0)) throw ParameterError("dispersion_scale_kpc", "must be positive");
 }
 
-double mean_rotation(const potential::Model& m, const DiskPopulation& d, double R) {
-  const double vc = dynamics::circular_speed(m, R);
+namespace {
+
+// Mean rotation from the frequencies at R (computed once per tracer by the caller).
+double mean_rotation_at(const DiskPopulation& d, double R, double vc, double k, double om) {
   if (!d.asymmetric_drift) return vc;
   const double sr = sigma_at(d.sigma_r_kms, d, R);
-  const double k = dynamics::kappa(m, R), om = dynamics::omega(m, R);
   const double ratio = k * k / (4 * om * om); // sigma_phi^2 / sigma_R^2
   // B&T 2008 eq. 4.228 with nu sigma_R^2 ~ exp(-R/R_d - 2R/R_sigma) and no tilt term:
   // v_c^2 - vbar^2 = sigma_R^2 [sigma_phi^2/sigma_R^2 - 1 + R/R_d + 2R/R_sigma]
@@ -58,6 +59,14 @@ double mean_rotation(const potential::Model& m, const DiskPopulation& d, double 
       sr * sr * (ratio - 1 + R / d.scale_length_kpc + 2 * R / d.dispersion_scale_kpc);
   const double v2 = vc * vc - drift;
   return v2 > 0 ? std::sqrt(v2) : 0.0;
+}
+
+} // namespace
+
+double mean_rotation(const potential::Model& m, const DiskPopulation& d, double R) {
+  const double vc = dynamics::circular_speed(m, R);
+  if (!d.asymmetric_drift) return vc;
+  return mean_rotation_at(d, R, vc, dynamics::kappa(m, R), dynamics::omega(m, R));
 }
 
 orbit::PhaseSpace sample(const potential::Model& m, const DiskPopulation& d, std::uint64_t seed,
@@ -76,9 +85,11 @@ orbit::PhaseSpace sample(const potential::Model& m, const DiskPopulation& d, std
             ? d.scale_height_kpc * std::atanh(2 * u - 1)
             : d.scale_height_kpc * std::copysign(std::log(1 / (1 - std::fabs(2 * u - 1))), u - 0.5);
     const double sr = sigma_at(d.sigma_r_kms, d, R), sz = sigma_at(d.sigma_z_kms, d, R);
-    const double sphi = sr * dynamics::kappa(m, R) / (2 * dynamics::omega(m, R));
+    const double kap = dynamics::kappa(m, R), om = dynamics::omega(m, R);
+    const double sphi = sr * kap / (2 * om);
     const double vR = sr * rng.normal();
-    const double vphi = mean_rotation(m, d, R) + sphi * rng.normal();
+    const double vphi =
+        mean_rotation_at(d, R, dynamics::circular_speed(m, R), kap, om) + sphi * rng.normal();
     const double vz = sz * rng.normal();
     // unit vectors: e_R = (-cos psi, sin psi), e_psi (sense of rotation) = (sin psi, cos psi)
     const double c = std::cos(psi), s = std::sin(psi);

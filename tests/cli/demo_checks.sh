@@ -45,7 +45,8 @@ grep -q "typo.toml:[0-9]*.*comparison.neighbors" typo.err || { cat typo.err; fai
 [ ! -e typo-out ] || fail "a refused scenario left an output folder"
 
 sed 's/^neighbors = 30/neighbours = 30/' typo.toml > none.toml
-# No measured source inside the selection: a catalog far beyond the survey volume.
+# No measured source left after the selection: four faint sources (parallax S/N 10) and a
+# signal-to-noise cut of 50.
 { echo "name,ra_deg,dec_deg,parallax_mas,parallax_err_mas,pmra_masyr,pmra_err_masyr,pmdec_masyr,pmdec_err_masyr,vlsr_kms,vlsr_err_kms"
   for k in 1 2 3 4; do echo "F$k,$((80 + k)),20,0.01,0.001,-1,0.05,-1,0.05,10,5"; done; } > far.csv
 sed -i "s|^catalog = \".*kestrel-measured.csv\"|catalog = \"$work/far.csv\"|" none.toml

@@ -14,7 +14,6 @@ public:
   AtomicFile& operator=(const AtomicFile&) = delete;
 
   std::ostream& stream() { return out_; }
-  const std::string& temporary_path() const { return tmp_; }
   void commit(); // flushes, checks for write errors, renames; throws InputError on failure
 
 private:

@@ -22,7 +22,6 @@ public:
   // A finite number; otherwise InputError at file:line, column name.
   double number(std::size_t row, std::size_t col) const;
   std::uint64_t whole(std::size_t row, std::size_t col) const;
-  const std::vector<std::string>& header() const { return header_; }
   SourcePlace place(std::size_t row, std::size_t col) const;
 
 private:

@@ -29,7 +29,6 @@ private:
 
 class File {
 public:
-  static File create(const std::string& path); // truncates
   // A file built in memory (HDF5 core driver); image() returns its bytes, which the caller
   // writes with checked I/O. A full disk then never leaves HDF5 with a file it cannot close.
   static File create_in_memory(const std::string& name);

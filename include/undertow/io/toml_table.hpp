@@ -40,9 +40,6 @@ public:
   // Throws for the first key that was never asked for, listing the valid ones.
   void finish(const std::vector<std::string>& valid) const;
 
-  const std::string& file() const { return file_; }
-  const std::string& context() const { return context_; }
-
 private:
   const toml::node* get(std::string_view key) const;
   const toml::table& t_;

@@ -11,6 +11,7 @@
 #include "undertow/observe/observation_file.hpp"
 #include "undertow/orbit/integrator.hpp"
 #include "undertow/potential/model.hpp"
+#include "undertow/residuals/peculiar.hpp"
 #include "undertow/tracers/disk_population.hpp"
 
 namespace undertow::scenario {
@@ -25,13 +26,12 @@ struct Output {
   std::vector<double> times_myr; // output times, ascending (or descending when integrating back)
   enum class Frame { inertial, rotating } frame = Frame::inertial;
   double frame_pattern_speed = 0; // km/s/kpc, for Frame::rotating
-  std::string frame_pattern;      // label of the pattern the frame turns with
 };
 
 // [comparison]: the measured catalog and how it is compared with the simulation.
 struct Comparison {
-  std::string catalog;              // resolved path
-  std::string distance = "inverse"; // inverse, edsd-median, edsd-mode
+  std::string catalog; // resolved path
+  residuals::ResidualSettings::Distance distance = residuals::ResidualSettings::Distance::inverse;
   double edsd_length_kpc = 1.35;
   double min_parallax_snr = 0;
   int draws = 200, bootstrap = 500;

@@ -26,6 +26,16 @@ void icrs_to_galactic_pm(double ra, double dec, double pmra_star, double pmdec, 
 void galactic_to_icrs_pm(double l, double b, double pml_star, double pmb, double& pmra_star,
                          double& pmdec);
 
+// Both at once, when the position is converted anyway.
+void icrs_to_galactic_with_pm(double ra, double dec, double pmra_star, double pmdec, double& l,
+                              double& b, double& pml_star, double& pmb);
+void galactic_to_icrs_with_pm(double l, double b, double pml_star, double pmb, double& ra,
+                              double& dec, double& pmra_star, double& pmdec);
+
+// Unit vectors toward increasing longitude (east) and latitude (north) at (lon, lat).
+void tangent_basis(double lon, double lat, Vec3& east, Vec3& north);
+double dot(const Vec3& a, const Vec3& b);
+
 Vec3 mul(const Mat3& m, const Vec3& v);
 Vec3 mul_transposed(const Mat3& m, const Vec3& v);
 

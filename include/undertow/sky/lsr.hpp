@@ -7,11 +7,16 @@
 //    form often quoted in papers. The two differ by up to about 0.06 km/s (the rounded
 //    components point 0.1 deg away from the apex and sum to 19.98 km/s).
 // v_LSR = v_helio + v_ssm . n, with n the unit vector toward the source.
+#include <string>
+
 #include "undertow/sky/galactic.hpp"
 
 namespace undertow::sky {
 
 enum class LsrForm { apex, components };
+
+// "apex" or "components"; throws InputError otherwise.
+LsrForm lsr_form_from_name(const std::string& name);
 
 double lsr_correction_kms(double ra_deg, double dec_deg, LsrForm form = LsrForm::apex);
 inline double helio_to_lsr(double vhelio, double ra, double dec, LsrForm f = LsrForm::apex) {
