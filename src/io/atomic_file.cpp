@@ -20,6 +20,16 @@ AtomicFile::AtomicFile(std::string path) : path_(std::move(path)) {
                      std::string("cannot write here: ") + std::strerror(errno));
 }
 
+bool AtomicFile::is_temporary(const std::string& filename) {
+  const auto at = filename.rfind(".tmp-");
+  if (filename.empty() || filename[0] != '.' || at == std::string::npos ||
+      at + 5 == filename.size())
+    return false;
+  for (std::size_t i = at + 5; i < filename.size(); ++i)
+    if (filename[i] < '0' || filename[i] > '9') return false;
+  return true;
+}
+
 AtomicFile::~AtomicFile() {
   if (!done_) {
     out_.close();

@@ -14,6 +14,9 @@ public:
   AtomicFile& operator=(const AtomicFile&) = delete;
 
   std::ostream& stream() { return out_; }
+  // Whether a file name is a temporary of this class (".<name>.tmp-<pid>"): one left by a
+  // killed process is garbage, never a result.
+  static bool is_temporary(const std::string& filename);
   void commit(); // flushes, checks for write errors, renames; throws InputError on failure
 
 private:
