@@ -8,6 +8,7 @@ packages=(
   libboost-dev libeigen3-dev libhdf5-dev hdf5-tools libcli11-dev catch2
   libtomlplusplus-dev liberfa-dev libgsl-dev libbenchmark-dev
   python3-numpy python3-h5py python3-astropy
+  slurm-wlm munge
 )
 
 missing=()

@@ -19,7 +19,9 @@
 #include "undertow/scenario/provenance_model.hpp"
 #include "undertow/scenario/scenario.hpp"
 
-#include <csignal>
+#include "long_run.hpp"
+#include "sweep_commands.hpp"
+
 #include <cstdlib>
 #include <filesystem>
 #include <omp.h>
@@ -73,20 +75,14 @@ int run_tabulate(const TabulateArgs& a) {
   return 0;
 }
 
-std::atomic<bool> g_stop{false};
-extern "C" void on_signal(int) {
-  g_stop.store(true);
-}
-
 // Long runs: progress lines only on a terminal (and never in CI), Ctrl-C and SIGTERM stop them
 // between batches, and --threads sets the OpenMP threads.
 template <class Options> void prepare_long_run(Options& o, int threads) {
-  o.progress = ::isatty(2) && !std::getenv("CI");
-  o.stop = &g_stop;
+  o.progress = undertow::cli::show_progress();
+  o.stop = &undertow::cli::stop_flag();
   o.log = &std::cerr;
   if (threads > 0) omp_set_num_threads(threads);
-  std::signal(SIGINT, on_signal);
-  std::signal(SIGTERM, on_signal);
+  undertow::cli::install_stop_handlers();
 }
 
 struct IntegrateArgs {
@@ -376,8 +372,12 @@ int main(int argc, char** argv) {
       ->required()
       ->expected(2, 1000);
 
+  undertow::cli::SweepArgs sweep;
+  undertow::cli::add_sweep_commands(app, sweep);
+
   CLI11_PARSE(app, argc, argv);
   try {
+    if (const auto code = undertow::cli::run_sweep_command(sweep)) return *code;
     if (t->parsed()) return run_tabulate(tab);
     if (ig->parsed()) return run_integrate(integ);
     if (rs->parsed()) return run_residuals(ra);

@@ -252,6 +252,8 @@ WholeRunResult run_all(const scenario::Scenario& s, const WholeRunOptions& o) {
   for (const auto& src : local.sources)
     res.pulls.push_back(src.pull);
   res.measured_sources = meas_res.sources.size();
+  res.outliers = local.outliers.size();
+  res.global = global;
   return res;
 }
 

@@ -10,6 +10,7 @@
 #include <string>
 #include <vector>
 
+#include "undertow/io/table.hpp"
 #include "undertow/scenario/scenario.hpp"
 
 namespace undertow::run {
@@ -28,6 +29,8 @@ struct WholeRunResult {
   double log_likelihood = 0, chi2 = 0;
   std::size_t measured_sources = 0;
   std::vector<std::array<double, 3>> pulls; // (U, V, W) per measured source, local comparison
+  std::size_t outliers = 0;                 // measured sources beyond 3 sigma
+  io::Table global;                         // the global comparison (comparison-global.csv)
   std::string summary;                      // the text of summary.txt
 };
 

@@ -1,0 +1,31 @@
+#pragma once
+// Gather: every finished point of a plan in one table (CSV, Markdown, LaTeX), sorted by a chosen
+// statistic, and one HDF5 file in plan order; missing and failed points listed. The outputs
+// depend only on the points' results, so gathering twice gives identical files.
+#include <string>
+#include <vector>
+
+#include "undertow/sweep/point_run.hpp"
+
+namespace undertow::sweep {
+
+struct GatherOptions {
+  std::string sort;     // a statistic's column name; empty: delta_log_likelihood if the plan
+                        // has a reference, else log_likelihood
+  std::string order;    // "ascending", "descending", or empty for the statistic's own default
+  bool partial = false; // write the tables even when points are missing or failed
+  std::string prefix;   // output files <prefix>.csv/.md/.tex/.h5; empty: <plan>/<name>-results
+};
+
+struct GatherReport {
+  std::size_t complete = 0;
+  std::vector<std::string> missing, failed; // "point N (id): detail"
+  std::vector<std::string> files;           // written; empty when nothing was written
+};
+
+// The statistics a table can be sorted by (column names).
+std::vector<std::string> sortable_statistics();
+
+GatherReport gather(const Plan& p, const GatherOptions& o);
+
+} // namespace undertow::sweep

@@ -1,0 +1,62 @@
+#pragma once
+// Running the points of a plan, each into its own folder, so that nothing is lost when a task
+// dies. A point runs in points/<id>.partial/ (the whole run's own stage reuse resumes it there)
+// and becomes points/<id>/ by one rename once finished.toml, which lists every file's size and
+// digest, is written. A finished point is skipped only if all of that still checks out; a
+// changed, truncated or half-written folder is redone. A point that fails leaves
+// points/<id>.failed with its error and the others go on. A lock file per point (flock, freed
+// by the kernel even on SIGKILL) keeps two tasks from running one point at once.
+#include <atomic>
+#include <map>
+#include <ostream>
+#include <string>
+#include <vector>
+
+#include "undertow/sweep/plan.hpp"
+
+namespace undertow::sweep {
+
+// What a finished point measured (from its whole run), as gathered.
+struct PointResult {
+  double log_likelihood = 0, chi2 = 0;
+  std::size_t measured_sources = 0, outliers = 0;
+  // (U, V, W): measured mean and error, simulated mean and error, difference / sigma
+  double mean_measured[3] = {}, mean_measured_err[3] = {}, mean_simulated[3] = {},
+         mean_simulated_err[3] = {}, significance[3] = {};
+};
+
+struct PointStatus {
+  enum class State { missing, partial, failed, complete, corrupt } state = State::missing;
+  std::string detail; // the error of a failed point, or what is wrong with a corrupt one
+  PointResult result; // for complete points
+};
+const char* state_name(PointStatus::State s);
+
+PointStatus point_status(const Plan& p, const Point& q);
+
+struct PointRunOptions {
+  bool progress = false;
+  const std::atomic<bool>* stop = nullptr;
+  std::ostream* log = nullptr; // one line per point, plus the whole run's stage notes
+};
+
+struct PointOutcome {
+  enum class Kind { ran, skipped, failed, interrupted, busy } kind = Kind::ran;
+  std::string message;        // the error of a failed point
+  double seconds = 0;         // wall time of run_point
+  double science_seconds = 0; // of that, the whole run itself
+};
+
+PointOutcome run_point(const Plan& p, const Point& q, const PointRunOptions& o);
+
+struct ShardReport {
+  std::size_t ran = 0, skipped = 0, failed = 0, busy = 0;
+  bool interrupted = false;
+  double science_seconds = 0, bookkeeping_seconds = 0;
+};
+
+// Runs the given points (by number) in order; stops between points when *o.stop turns true.
+ShardReport run_points(const Plan& p, const std::vector<std::size_t>& numbers,
+                       const PointRunOptions& o);
+
+} // namespace undertow::sweep

@@ -1,0 +1,287 @@
+#include "undertow/sweep/gather.hpp"
+
+#include <algorithm>
+#include <cmath>
+#include <filesystem>
+#include <numeric>
+
+#include "undertow/io/hdf5.hpp"
+#include "undertow/io/table.hpp"
+#include "undertow/io/toml_writer.hpp"
+#include "undertow/sweep/key_path.hpp"
+
+namespace undertow::sweep {
+namespace {
+
+namespace fs = std::filesystem;
+
+struct Stat {
+  const char* name;
+  const char* latex;
+  const char* plain;
+  const char* unit;
+  int precision;
+  bool descending; // larger is better
+};
+
+const Stat stats[] = {
+    {"delta_log_likelihood", "\\Delta\\ln L", "Δ ln L", "", 7, true},
+    {"log_likelihood", "\\ln L", "ln L", "", 8, true},
+    {"chi2", "\\chi^2", "χ²", "", 7, false},
+    {"measured_sources", "N", "N", "", 6, false},
+    {"outliers", "N_{>3\\sigma}", "N>3σ", "", 6, false},
+    {"mean_U_simulated_kms", "\\langle U_s\\rangle_{\\rm sim}", "⟨U_s⟩_sim", "km/s", 4, false},
+    {"mean_V_simulated_kms", "\\langle V_s\\rangle_{\\rm sim}", "⟨V_s⟩_sim", "km/s", 4, false},
+    {"mean_V_measured_kms", "\\langle V_s\\rangle_{\\rm obs}", "⟨V_s⟩_obs", "km/s", 4, false},
+    {"V_significance", "\\Delta V/\\sigma", "ΔV/σ", "", 3, false},
+};
+
+double stat_value(const std::string& name, const PointResult& r, double ref_log_l) {
+  if (name == "delta_log_likelihood") return r.log_likelihood - ref_log_l;
+  if (name == "log_likelihood") return r.log_likelihood;
+  if (name == "chi2") return r.chi2;
+  if (name == "measured_sources") return double(r.measured_sources);
+  if (name == "outliers") return double(r.outliers);
+  if (name == "mean_U_simulated_kms") return r.mean_simulated[0];
+  if (name == "mean_V_simulated_kms") return r.mean_simulated[1];
+  if (name == "mean_V_measured_kms") return r.mean_measured[1];
+  if (name == "V_significance") return r.significance[1];
+  return NAN;
+}
+
+// Units from the key's suffix, the naming rule of every undertow file (docs/conventions.md).
+std::string unit_of(const std::string& key) {
+  static const std::pair<const char*, const char*> suffixes[] = {
+      {"_kms_kpc", "km/s/kpc"}, {"_kms", "km/s"},  {"_kpc", "kpc"},       {"_deg", "deg"},
+      {"_myr", "Myr"},          {"_msun", "Msun"}, {"_mas_yr", "mas/yr"}, {"_mas", "mas"}};
+  for (const auto& [s, u] : suffixes) {
+    const std::string sf(s);
+    if (key.size() > sf.size() && key.compare(key.size() - sf.size(), sf.size(), sf) == 0) return u;
+  }
+  return "";
+}
+
+std::string latex_name(const std::string& s) {
+  std::string o = "\\mathrm{";
+  for (char c : s)
+    o += c == '_' ? std::string("\\_") : std::string(1, c);
+  return o + "}";
+}
+
+bool numeric_parameter(const Plan& p, std::size_t j) {
+  for (const auto& q : p.points)
+    if (!q.reference && !(q.values.get(j)->is_integer() || q.values.get(j)->is_floating_point()))
+      return false;
+  return true;
+}
+
+} // namespace
+
+std::vector<std::string> sortable_statistics() {
+  std::vector<std::string> v;
+  for (const auto& s : stats)
+    v.push_back(s.name);
+  return v;
+}
+
+GatherReport gather(const Plan& p, const GatherOptions& o) {
+  const bool has_ref = !p.reference.empty();
+  std::vector<std::string> columns; // statistics shown
+  for (const auto& s : stats)
+    if (has_ref || std::string(s.name) != "delta_log_likelihood") columns.push_back(s.name);
+
+  const std::string sort =
+      o.sort.empty() ? (has_ref ? "delta_log_likelihood" : "log_likelihood") : o.sort;
+  bool descending = false;
+  bool known = sort == "number";
+  for (const auto& s : stats)
+    if (sort == s.name) known = true, descending = s.descending;
+  for (const auto& k : p.parameters)
+    if (sort == k) known = true;
+  if (sort == "delta_log_likelihood" && !has_ref)
+    throw InputError(SourcePlace{"", 0, 0, "--sort"},
+                     "delta_log_likelihood needs a reference model in the sweep ([sweep] "
+                     "reference = ...)");
+  if (!known) {
+    std::string list = "number";
+    for (const auto& c : columns)
+      list += ", " + c;
+    for (const auto& k : p.parameters)
+      list += ", " + k;
+    throw InputError(SourcePlace{"", 0, 0, "--sort"},
+                     "unknown statistic '" + sort + "'; one of: " + list);
+  }
+  if (o.order == "ascending")
+    descending = false;
+  else if (o.order == "descending")
+    descending = true;
+  else if (!o.order.empty())
+    throw InputError(SourcePlace{"", 0, 0, "--order"}, "must be ascending or descending");
+
+  GatherReport rep;
+  std::vector<PointStatus> status;
+  for (const auto& q : p.points) {
+    status.push_back(point_status(p, q));
+    const auto& st = status.back();
+    const std::string label = "point " + std::to_string(q.number) + " (" + q.id + ")";
+    switch (st.state) {
+    case PointStatus::State::complete:
+      ++rep.complete;
+      break;
+    case PointStatus::State::failed:
+      rep.failed.push_back(label + ": " + st.detail);
+      break;
+    case PointStatus::State::corrupt:
+      rep.missing.push_back(label + ": " + st.detail + "; run the shard again");
+      break;
+    default:
+      rep.missing.push_back(label + ": " + state_name(st.state));
+      break;
+    }
+  }
+  const bool whole = rep.missing.empty() && rep.failed.empty();
+  if (!whole && !o.partial) return rep;
+  double ref_log_l = NAN;
+  std::string sort_by = sort;
+  if (has_ref && status[0].state == PointStatus::State::complete)
+    ref_log_l = status[0].result.log_likelihood;
+  else if (has_ref && sort == "delta_log_likelihood")
+    sort_by = "log_likelihood"; // a partial sweep without its reference: the next best order
+
+  // The table: complete points only, sorted.
+  io::Table t;
+  t.title = "Sweep " + p.name + ": " + std::to_string(rep.complete) + " of " +
+            std::to_string(p.points.size()) + " points";
+  t.label_header = "id";
+  t.columns.push_back({"number", "\\#", "#", "", 6});
+  std::vector<std::size_t> numeric;
+  for (std::size_t j = 0; j < p.parameters.size(); ++j) {
+    if (!numeric_parameter(p, j)) continue;
+    numeric.push_back(j);
+    const auto steps = parse_key_path(p.parameters[j]);
+    // The last key names the column, unless another parameter ends in the same key.
+    std::string shown = steps.back().key;
+    for (std::size_t k = 0; k < p.parameters.size(); ++k)
+      if (k != j && parse_key_path(p.parameters[k]).back().key == shown) shown = p.parameters[j];
+    t.columns.push_back({p.parameters[j], latex_name(shown), shown, unit_of(steps.back().key), 6});
+  }
+  if (p.replicates > 1) t.columns.push_back({"replicate", "r", "r", "", 6});
+  for (const auto& c : columns)
+    for (const auto& s : stats)
+      if (c == s.name) t.columns.push_back({s.name, s.latex, s.plain, s.unit, s.precision});
+
+  const auto sort_value = [&](std::size_t i) -> double {
+    const Point& q = p.points[i];
+    if (sort_by == "number") return double(i);
+    for (std::size_t j = 0; j < p.parameters.size(); ++j)
+      if (sort_by == p.parameters[j])
+        return q.reference ? NAN : q.values.get(j)->value<double>().value_or(NAN);
+    return stat_value(sort_by, status[i].result, ref_log_l);
+  };
+  std::vector<std::size_t> order;
+  for (std::size_t i = 0; i < p.points.size(); ++i)
+    if (status[i].state == PointStatus::State::complete) order.push_back(i);
+  std::stable_sort(order.begin(), order.end(), [&](std::size_t a, std::size_t b) {
+    const double x = sort_value(a), y = sort_value(b);
+    if (std::isnan(x) || std::isnan(y)) return !std::isnan(x) && std::isnan(y); // nan last
+    return descending ? x > y : x < y;
+  });
+  for (std::size_t i : order) {
+    const Point& q = p.points[i];
+    std::string label = q.id;
+    if (q.reference) label += " (reference)";
+    for (std::size_t j = 0; j < p.parameters.size(); ++j)
+      if (!q.reference && std::find(numeric.begin(), numeric.end(), j) == numeric.end())
+        label += " " + p.parameters[j] + "=" + io::toml_value_text(*q.values.get(j));
+    std::vector<double> row{double(q.number)};
+    for (std::size_t j : numeric)
+      row.push_back(q.reference ? NAN : q.values.get(j)->value<double>().value_or(NAN));
+    if (p.replicates > 1) row.push_back(double(q.replicate));
+    for (const auto& c : columns)
+      row.push_back(stat_value(c, status[i].result, ref_log_l));
+    t.row_labels.push_back(label);
+    t.add_row(row);
+  }
+  t.notes.push_back("sorted by " + sort_by +
+                    (descending ? " (largest first)" : " (smallest first)"));
+  if (sort_by != sort)
+    t.notes.push_back("the reference model (point 0) has not finished: no delta ln L, sorted by "
+                      "ln L instead");
+  if (has_ref)
+    t.notes.push_back("Δ ln L > 0: the point explains the measured catalog better than the "
+                      "reference model (point 0); a difference of a few units is not significant, "
+                      "and every point shares the base scenario's other settings.");
+  if (!whole) {
+    t.notes.push_back("PARTIAL SWEEP: " + std::to_string(rep.missing.size()) + " missing and " +
+                      std::to_string(rep.failed.size()) + " failed points are not in this table");
+    for (const auto& m : rep.missing)
+      t.notes.push_back("missing: " + m);
+    for (const auto& f : rep.failed)
+      t.notes.push_back("failed: " + f);
+  }
+  const std::string prefix =
+      o.prefix.empty() ? (fs::path(p.folder) / (p.name + "-results")).string() : o.prefix;
+  rep.files = io::write_table_files(prefix, t);
+
+  // HDF5: every point in plan order, with its status; NaN where a point has no result.
+  const std::string h5 = prefix + ".h5";
+  io::h5::File::write_atomically(h5, [&](const io::h5::File& f) {
+    namespace h = io::h5;
+    h::set_attr(f, f.id(), "undertow_format", std::string("sweep-results"));
+    h::set_attr(f, f.id(), "name", p.name);
+    h::set_attr(f, f.id(), "design", p.design);
+    h::set_attr(f, f.id(), "points", std::int64_t(p.points.size()));
+    h::set_attr(f, f.id(), "complete", std::int64_t(rep.complete));
+    h::set_attr(f, f.id(), "base_scenario", p.base);
+    if (has_ref) h::set_attr(f, f.id(), "reference_scenario", p.reference);
+    std::vector<std::uint64_t> num;
+    std::vector<std::string> ids, states, details;
+    for (std::size_t i = 0; i < p.points.size(); ++i) {
+      num.push_back(i);
+      ids.push_back(p.points[i].id);
+      states.push_back(state_name(status[i].state));
+      details.push_back(status[i].detail);
+    }
+    h::write_u64(f, f.id(), "number", num, "point number in the plan");
+    h::write_strings(f, f.id(), "id", ids, "point id (digest of its scenario)");
+    h::write_strings(f, f.id(), "status", states, "complete, missing, partial, failed, corrupt");
+    h::write_strings(f, f.id(), "detail", details, "error of a failed point");
+    const auto pg = h::create_group(f, "parameters");
+    for (std::size_t j = 0; j < p.parameters.size(); ++j) {
+      const std::string& k = p.parameters[j];
+      const auto steps = parse_key_path(k);
+      if (std::find(numeric.begin(), numeric.end(), j) != numeric.end()) {
+        std::vector<double> v;
+        for (const auto& q : p.points)
+          v.push_back(q.reference ? NAN : q.values.get(j)->value<double>().value_or(NAN));
+        h::write_doubles(f, pg.id(), k, v, 1, unit_of(steps.back().key),
+                         "swept value (NaN for the reference)");
+      } else {
+        std::vector<std::string> v;
+        for (const auto& q : p.points)
+          v.push_back(q.reference ? "" : io::toml_value_text(*q.values.get(j)));
+        h::write_strings(f, pg.id(), k, v, "swept value as TOML text");
+      }
+    }
+    if (p.replicates > 1) {
+      std::vector<std::uint64_t> r;
+      for (const auto& q : p.points)
+        r.push_back(q.replicate);
+      h::write_u64(f, pg.id(), "replicate", r, "replicate (seeds derived from it)");
+    }
+    const auto sg = h::create_group(f, "statistics");
+    for (const auto& c : columns) {
+      std::vector<double> v;
+      for (std::size_t i = 0; i < p.points.size(); ++i)
+        v.push_back(status[i].state == PointStatus::State::complete
+                        ? stat_value(c, status[i].result, ref_log_l)
+                        : NAN);
+      for (const auto& s : stats)
+        if (c == s.name) h::write_doubles(f, sg.id(), c, v, 1, s.unit, s.plain);
+    }
+  });
+  rep.files.push_back(h5);
+  return rep;
+}
+
+} // namespace undertow::sweep

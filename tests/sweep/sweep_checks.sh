@@ -1,0 +1,143 @@
+#!/usr/bin/env bash
+# The sweep commands as a user runs them, locally: a plan run in one process, by a pool of
+# workers killed with SIGKILL part-way and run again, and as 16 shards (more shards than points)
+# all give byte-identical point folders and gathered tables; a corrupted point is redone; bad
+# sweep files are refused with one line and plan nothing. Usage: sweep_checks.sh UNDERTOW SRC WORK
+set -euo pipefail
+U=$1
+SRC=$2
+W=$3
+rm -rf "$W"
+mkdir -p "$W"
+cd "$W"
+fail() { echo "FAIL: $*" >&2; exit 1; }
+sweep="$SRC/tests/sweep/ci-sweep.toml"
+finished() { find "$1/points" -mindepth 1 -maxdepth 1 -type d ! -name '*.partial' 2>/dev/null | wc -l; }
+
+start=$(date +%s.%N)
+"$U" sweep plan "$sweep" -o one >/dev/null
+n=$(grep -c '^\[\[point\]\]' one/plan.toml)
+[ "$n" = 7 ] || fail "expected 7 points, planned $n"
+
+# Planned from the sweep file's own folder with relative paths: the same ids.
+(cd "$SRC/tests/sweep" && "$U" sweep plan ci-sweep.toml -o "$W/rel" >/dev/null)
+diff <(grep '^id' one/plan.toml) <(grep '^id' rel/plan.toml) >/dev/null || fail "relative planning changed the ids"
+
+# 1. The reference: all points in one process.
+"$U" sweep run one 2>one.err | tee one.out
+grep -q "7 points ran" one.out || fail "one process did not run 7 points"
+"$U" sweep gather one >/dev/null
+one_done=$(date +%s.%N)
+
+# 2. A pool of 2 workers, killed with SIGKILL once two points have finished, then run again.
+"$U" sweep plan "$sweep" -o pool >/dev/null
+"$U" sweep run pool --workers 2 --threads 1 >pool-1.out 2>pool-1.err &
+pid=$!
+for _ in $(seq 400); do
+  [ "$(finished pool)" -ge 2 ] && break
+  sleep 0.02
+done
+kill -9 "$pid"
+wait "$pid" 2>/dev/null || true
+sleep 0.3 # the workers die with the pool (PR_SET_PDEATHSIG)
+k=$(finished pool)
+[ "$k" -lt 7 ] || fail "the pool finished before it was killed; nothing was resumed"
+echo "pool killed with $k of 7 points finished"
+"$U" sweep status pool | tail -n 1
+"$U" sweep run pool --workers 2 --threads 1 >pool-2.out 2>pool-2.err
+grep -q "were finished before" pool-2.out || fail "the rerun did not report skipped points"
+grep -q "$k were finished before" pool-2.out || fail "the rerun did not skip the $k finished points"
+
+# 3. In one process, killed in the middle of a point (its .partial folder exists), then resumed.
+"$U" sweep plan "$sweep" -o killed >/dev/null
+"$U" sweep run killed >killed-1.out 2>killed-1.err &
+pid=$!
+for _ in $(seq 400); do
+  compgen -G "killed/points/*.partial/.keys" >/dev/null && [ "$(finished killed)" -ge 1 ] && break
+  sleep 0.02
+done
+kill -9 "$pid"
+wait "$pid" 2>/dev/null || true
+compgen -G "killed/points/*.partial" >/dev/null || fail "no half-written point to resume"
+"$U" sweep status killed | grep -q "partial" || fail "status does not show the partial point"
+"$U" sweep run killed >killed-2.out 2>killed-2.err
+
+# 4. Sixteen shards, as a 16-task array would run them.
+"$U" sweep plan "$sweep" -o shards >/dev/null
+for k in $(seq 0 15); do
+  "$U" sweep run shards --shard "$k" --shards 16 >>shards.out 2>>shards.err
+done
+grep -c "0 of 7 points" shards.err | grep -q 9 || fail "shards 7-15 should have had no points"
+
+for d in pool killed shards; do
+  diff -r one/points "$d/points" >/dev/null || { diff -rq one/points "$d/points" | head; fail "$d differs from one process"; }
+  "$U" sweep gather "$d" >/dev/null
+  cmp one/ci-results.csv "$d/ci-results.csv" || fail "$d: gathered CSV differs"
+  cmp one/ci-results.h5 "$d/ci-results.h5" || fail "$d: gathered HDF5 differs"
+done
+echo "one process, a killed pool, a killed process and 16 shards: identical points and tables"
+
+# 5. Gathering twice gives identical files; a missing point makes gather fail unless --partial.
+cp one/ci-results.h5 first.h5
+"$U" sweep gather one >/dev/null
+cmp first.h5 one/ci-results.h5 || fail "gathering twice differs"
+victim=$(find one/points -mindepth 1 -maxdepth 1 -type d | sort | head -n 1)
+mv "$victim" "$W/set-aside"
+if "$U" sweep gather one >gather.out 2>gather.err; then fail "gather passed with a point missing"; fi
+grep -q "^missing: point" gather.out || fail "gather did not list the missing point"
+"$U" sweep gather one --partial >/dev/null || fail "gather --partial failed"
+grep -q "PARTIAL" one/ci-results.md || fail "partial table not marked"
+mv "$W/set-aside" "$victim"
+
+# 6. A corrupted point folder is detected and redone, to the same bytes.
+good=$(cat "$victim/comparison-global.csv")
+printf 'garbage' >"$victim/comparison-global.csv"
+"$U" sweep status one | grep -q "corrupt" || fail "status did not see the corrupted point"
+"$U" sweep run one >redo.out 2>redo.err
+grep -q "1 points ran" redo.out || fail "the corrupted point was not redone"
+[ "$(cat "$victim/comparison-global.csv")" = "$good" ] || fail "the redone point differs"
+
+# 7. Bad sweep files: one line naming the file and the problem, nothing planned.
+bad() { # name, expected message, sweep text
+  printf '%s\n' "$3" >"$W/$1.toml"
+  if "$U" sweep plan "$W/$1.toml" -o "$W/$1-plan" >"$1.out" 2>"$1.err"; then fail "$1 was planned"; fi
+  [ "$(wc -l <"$1.err")" = 1 ] || { cat "$1.err"; fail "$1: not one line"; }
+  grep -q "$2" "$1.err" || { cat "$1.err"; fail "$1: message lacks '$2'"; }
+  [ ! -e "$W/$1-plan" ] || fail "$1 left a plan folder"
+  echo "refused $1: $(cat "$1.err")"
+}
+head='[sweep]
+name = "bad"
+base = "'"$SRC"'/tests/sweep/small-spiral.toml"'
+bad empty-range "range is empty" "$head
+[[parameter]]
+key = \"galaxy.pattern[arms].force_ratio\"
+from = 0.08
+to = 0.02
+step = 0.01"
+bad negative-count "at least 1, got -4" "$head
+[[parameter]]
+key = \"galaxy.pattern[arms].force_ratio\"
+from = 0.02
+to = 0.08
+count = -4"
+bad duplicate "swept twice" "$head
+[[parameter]]
+key = \"galaxy.pattern[arms].force_ratio\"
+values = [0.02]
+[[parameter]]
+key = \"galaxy.pattern[arms].force_ratio\"
+values = [0.04]"
+bad missing-base "does not exist" '[sweep]
+name = "bad"
+base = "no-such-scenario.toml"
+[[parameter]]
+key = "run.seed"
+values = [1, 2]'
+bad unknown-key "pattern_sped_kms_kpc" "$head
+[[parameter]]
+key = \"galaxy.pattern[arms].pattern_sped_kms_kpc\"
+values = [20]"
+end=$(date +%s.%N)
+awk -v a="$start" -v b="$one_done" -v c="$end" 'BEGIN {
+  printf "wall time: 7-point sweep in one process %.1f s; whole check %.1f s\n", b - a, c - a }'
