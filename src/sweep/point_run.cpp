@@ -270,6 +270,13 @@ void record_failure(const Plan& p, const Point& q, const std::string& what, std:
 
 } // namespace
 
+bool record_failure_if_free(const Plan& p, const Point& q, const std::string& what) {
+  PointLock lock(p, q);
+  if (!lock.held()) return false;
+  record_failure(p, q, what, nullptr);
+  return true;
+}
+
 PointOutcome run_point(const Plan& p, const Point& q, const PointRunOptions& o) {
   const auto t0 = std::chrono::steady_clock::now();
   PointOutcome out;

@@ -14,7 +14,6 @@
 #include <unistd.h>
 
 #include "undertow/error.hpp"
-#include "undertow/io/text_file.hpp"
 
 namespace undertow::sweep {
 namespace {
@@ -119,7 +118,7 @@ ShardReport run_pool(const Plan& p, const std::vector<std::size_t>& numbers, con
       if (WIFSIGNALED(status)) {
         why = "the worker was killed by signal " + std::to_string(WTERMSIG(status)) +
               (WTERMSIG(status) == SIGKILL ? " (out of memory?)" : "");
-        io::write_text_file(point_folder(p, q) + ".failed", why + "\n");
+        record_failure_if_free(p, q, why);
       } else {
         const auto st = point_status(p, q);
         why = st.state == PointStatus::State::failed

@@ -66,8 +66,8 @@ toml::array range_values(const toml::node& from, const toml::node& to, const tom
     if (b < a) throw std::invalid_argument("the range is empty: to < from with a positive step");
     const double n = std::floor((b - a) / s * (1 + 1e-12) + 1e-12);
     if (n >= 1000000) throw std::invalid_argument("more than 1000000 values");
-    for (double k = 0; k <= n; ++k)
-      v.push_back(a + k * s);
+    for (long k = 0; k <= long(n); ++k)
+      v.push_back(a + double(k) * s);
   }
   toml::array out;
   for (double x : v) {

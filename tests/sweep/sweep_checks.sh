@@ -48,6 +48,26 @@ echo "pool killed with $k of 7 points finished"
 grep -q "were finished before" pool-2.out || fail "the rerun did not report skipped points"
 grep -q "$k were finished before" pool-2.out || fail "the rerun did not skip the $k finished points"
 
+# 2b. One worker of a pool killed (as the out-of-memory killer would): that point is recorded as
+# failed, the others finish, and the next run retries it.
+"$U" sweep plan "$sweep" -o oom >/dev/null
+"$U" sweep run oom --workers 2 --threads 1 >oom-1.out 2>oom-1.err &
+pid=$!
+worker=""
+for _ in $(seq 400); do
+  worker=$(pgrep -P "$pid" -f "sweep run . --point" | head -n 1 || true)
+  [ -n "$worker" ] && break
+  sleep 0.02
+done
+[ -n "$worker" ] || fail "no worker process seen"
+kill -9 "$worker"
+if wait "$pid"; then fail "the pool exited 0 although a worker was killed"; fi
+grep -q "killed by signal 9" oom-1.err || fail "the killed worker was not reported"
+grep -q "6 points ran" oom-1.out || { cat oom-1.out; fail "the other points did not all run"; }
+"$U" sweep status oom | grep -q "1 failed" || fail "status does not show the failed point"
+"$U" sweep run oom --workers 2 --threads 1 >oom-2.out 2>oom-2.err
+grep -q "1 points ran, 6 were finished before" oom-2.out || { cat oom-2.out; fail "the failed point was not retried alone"; }
+
 # 3. In one process, killed in the middle of a point (its .partial folder exists), then resumed.
 "$U" sweep plan "$sweep" -o killed >/dev/null
 "$U" sweep run killed >killed-1.out 2>killed-1.err &
@@ -69,13 +89,13 @@ for k in $(seq 0 15); do
 done
 grep -c "0 of 7 points" shards.err | grep -q 9 || fail "shards 7-15 should have had no points"
 
-for d in pool killed shards; do
+for d in pool oom killed shards; do
   diff -r one/points "$d/points" >/dev/null || { diff -rq one/points "$d/points" | head; fail "$d differs from one process"; }
   "$U" sweep gather "$d" >/dev/null
   cmp one/ci-results.csv "$d/ci-results.csv" || fail "$d: gathered CSV differs"
   cmp one/ci-results.h5 "$d/ci-results.h5" || fail "$d: gathered HDF5 differs"
 done
-echo "one process, a killed pool, a killed process and 16 shards: identical points and tables"
+echo "one process, a killed pool, a pool with a killed worker, a killed process and 16 shards: identical points and tables"
 
 # 5. Gathering twice gives identical files; a missing point makes gather fail unless --partial.
 cp one/ci-results.h5 first.h5

@@ -49,6 +49,10 @@ struct PointOutcome {
 
 PointOutcome run_point(const Plan& p, const Point& q, const PointRunOptions& o);
 
+// Records a point's failure from outside its run (a worker killed by a signal), under the
+// point's lock; false when another process holds the lock (it is running the point again).
+bool record_failure_if_free(const Plan& p, const Point& q, const std::string& what);
+
 struct ShardReport {
   std::size_t ran = 0, skipped = 0, failed = 0, busy = 0;
   bool interrupted = false;
