@@ -390,6 +390,11 @@ int main(int argc, char** argv) {
   } catch (const undertow::InputError& e) {
     std::cerr << "undertow: error: " << e.what() << "\n";
     return 2;
+  } catch (const std::filesystem::filesystem_error& e) {
+    // A folder that cannot be read, created or renamed: the system's reason and the path.
+    std::cerr << "undertow: error: " << e.code().message() << ": " << e.path1().string()
+              << (e.path2().empty() ? "" : " -> " + e.path2().string()) << "\n";
+    return 2;
   } catch (const std::exception& e) {
     std::cerr << "undertow: internal error: " << e.what() << "\n";
     return 3;

@@ -162,8 +162,8 @@ int do_run(const SweepArgs& a) {
   const double wall = std::chrono::duration<double>(std::chrono::steady_clock::now() - t0).count();
   char b[512];
   std::snprintf(b, sizeof b,
-                "shard %zu of %zu: %zu points ran, %zu were finished before, %zu failed, %zu run "
-                "by another task; %.1f s wall",
+                "shard %zu of %zu: ran %zu, already finished %zu, failed %zu, left to another "
+                "task %zu; %.1f s wall",
                 shard.index, shard.count, rep.ran, rep.skipped, rep.failed, rep.busy, wall);
   std::cout << b;
   if (a.workers <= 1 && rep.ran > 0) {
@@ -187,7 +187,7 @@ int do_run(const SweepArgs& a) {
 
 int do_status(const SweepArgs& a) {
   const Plan plan = read_plan(a.folder);
-  std::size_t n[5] = {};
+  std::size_t n[6] = {};
   for (const auto& q : plan.points) {
     const auto st = point_status(plan, q);
     ++n[int(st.state)];
@@ -198,7 +198,9 @@ int do_status(const SweepArgs& a) {
   }
   std::cout << plan.name << ": " << plan.points.size() << " points: " << n[3] << " complete, "
             << n[2] << " failed, " << n[1] << " partial (interrupted or running), " << n[0]
-            << " not started, " << n[4] << " corrupt (will be redone)\n";
+            << " not started, " << n[4] << " corrupt (will be redone)"
+            << (n[5] ? ", " + std::to_string(n[5]) + " that cannot be checked" : std::string())
+            << "\n";
   return 0;
 }
 

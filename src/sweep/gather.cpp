@@ -96,8 +96,13 @@ GatherReport gather(const Plan& p, const GatherOptions& o) {
   bool known = sort == "number";
   for (const auto& s : stats)
     if (sort == s.name) known = true, descending = s.descending;
-  for (const auto& k : p.parameters)
-    if (sort == k) known = true;
+  for (std::size_t j = 0; j < p.parameters.size(); ++j)
+    if (sort == p.parameters[j]) {
+      if (!numeric_parameter(p, j))
+        throw InputError(SourcePlace{"", 0, 0, "--sort"},
+                         "'" + sort + "' has values that are not numbers; sort by a statistic");
+      known = true;
+    }
   if (sort == "delta_log_likelihood" && !has_ref)
     throw InputError(SourcePlace{"", 0, 0, "--sort"},
                      "delta_log_likelihood needs a reference model in the sweep ([sweep] "
@@ -129,6 +134,7 @@ GatherReport gather(const Plan& p, const GatherOptions& o) {
       ++rep.complete;
       break;
     case PointStatus::State::failed:
+    case PointStatus::State::error:
       rep.failed.push_back(label + ": " + st.detail);
       break;
     case PointStatus::State::corrupt:

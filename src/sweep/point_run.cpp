@@ -178,11 +178,15 @@ const char* state_name(PointStatus::State s) {
     return "complete";
   case PointStatus::State::corrupt:
     return "corrupt";
+  case PointStatus::State::error:
+    return "error";
   }
   return "?";
 }
 
-PointStatus point_status(const Plan& p, const Point& q) {
+namespace {
+
+PointStatus checked_status(const Plan& p, const Point& q) {
   PointStatus st;
   const fs::path dir = point_folder(p, q);
   if (fs::exists(dir)) {
@@ -257,11 +261,25 @@ PointStatus point_status(const Plan& p, const Point& q) {
   return st;
 }
 
+} // namespace
+
+PointStatus point_status(const Plan& p, const Point& q) {
+  try {
+    return checked_status(p, q);
+  } catch (const std::exception& e) {
+    PointStatus st;
+    st.state = PointStatus::State::error;
+    st.detail = std::string("cannot check it: ") + e.what();
+    return st;
+  }
+}
+
 namespace {
 
 // Records a point's error in points/<id>.failed; a failure to do even that is only logged.
 void record_failure(const Plan& p, const Point& q, const std::string& what, std::ostream* log) {
   try {
+    fs::create_directories(failed_of(p, q).parent_path()); // the first point may fail early
     io::write_text_file(failed_of(p, q).string(), what + "\n");
   } catch (const std::exception& e) {
     if (log) *log << "point " << q.number << ": cannot record its failure: " << e.what() << "\n";
@@ -272,7 +290,7 @@ void record_failure(const Plan& p, const Point& q, const std::string& what, std:
 
 bool record_failure_if_free(const Plan& p, const Point& q, const std::string& what) {
   PointLock lock(p, q);
-  if (!lock.held()) return false;
+  if (!lock.held() || point_status(p, q).state == PointStatus::State::complete) return false;
   record_failure(p, q, what, nullptr);
   return true;
 }
@@ -301,14 +319,18 @@ PointOutcome run_point(const Plan& p, const Point& q, const PointRunOptions& o) 
   const fs::path dir = point_folder(p, q), partial = partial_of(p, q);
   const PointStatus st = point_status(p, q);
   if (st.state == PointStatus::State::complete) {
+    fs::remove(failed_of(p, q)); // a stale record of an earlier attempt
     out.kind = PointOutcome::Kind::skipped;
     out.seconds = since(t0);
     return out;
   }
+  if (st.state == PointStatus::State::error) return failed(st.detail);
   if (st.state == PointStatus::State::corrupt) {
-    // Set aside rather than deleted: a person may want to see what went wrong.
-    const fs::path aside = point_folder(p, q) + ".corrupt";
-    fs::remove_all(aside);
+    // Set aside rather than deleted, under the first free name: a person may want to see what
+    // went wrong.
+    fs::path aside;
+    for (int k = 1; aside.empty() || fs::exists(aside); ++k)
+      aside = point_folder(p, q) + ".corrupt-" + std::to_string(k);
     fs::rename(dir, aside);
     say(st.detail + "; set aside as " + aside.filename().string() + ", running it again");
   }
@@ -317,7 +339,16 @@ PointOutcome run_point(const Plan& p, const Point& q, const PointRunOptions& o) 
   say(describe(p, q));
   run::WholeRunResult w;
   double science = 0;
+  // The inputs as the run reads them: a catalog replaced during the run must not pass.
+  std::map<std::string, io::FileDigest> inputs;
+  const auto digest_inputs = [&] {
+    std::map<std::string, io::FileDigest> m;
+    for (const auto& f : input_files(q))
+      m[f] = io::digest_file((fs::path(dir) / f).lexically_normal().string());
+    return m;
+  };
   try {
+    inputs = digest_inputs();
     // The science: what `undertow run` does with the point's scenario (reading it included).
     const auto t1 = std::chrono::steady_clock::now();
     const auto sc = point_scenario(p, q);
@@ -343,9 +374,8 @@ PointOutcome run_point(const Plan& p, const Point& q, const PointRunOptions& o) 
       fs::remove(partial / ".keys" / "orbits");
     }
     remove_stale_temporaries(partial);
-    std::map<std::string, io::FileDigest> inputs;
-    for (const auto& f : input_files(q))
-      inputs[f] = io::digest_file((fs::path(dir) / f).lexically_normal().string());
+    if (digest_inputs() != inputs)
+      return failed("an input file changed while the point ran; run it again");
     r = result_of(w);
     io::write_text_file((partial / finished_name).string(),
                         finished_text(q, r, digests(partial), inputs));

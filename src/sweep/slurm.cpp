@@ -49,7 +49,18 @@ SlurmScript write_slurm_script(const Plan& p, const SlurmOptions& o) {
   if (s.tasks > 100 && o.max_running == 0)
     s.warnings.push_back("no --max-running: all " + std::to_string(s.tasks) +
                          " tasks may start at once on a shared cluster; consider a cap");
+  for (const auto& [opt, v] :
+       {std::pair<const char*, const std::string*>{"--partition", &o.partition},
+        {"--account", &o.account},
+        {"--job-name", &o.job_name}})
+    if (v->find_first_of(" \t\r\n'\"") != std::string::npos) bad(opt, "must be one word");
   const fs::path folder = fs::absolute(p.folder).lexically_normal();
+  // #SBATCH lines are not parsed by a shell: a path with blanks or quotes cannot be written
+  // there safely.
+  if (folder.string().find_first_of(" \t\r\n'\"%") != std::string::npos)
+    bad("plan", "the plan folder's path " + folder.string() +
+                    " holds a blank, a quote or '%', which #SBATCH --output cannot take; move the "
+                    "plan");
   const fs::path logs = folder / "logs";
   std::error_code ec;
   fs::create_directories(logs, ec);
@@ -58,7 +69,7 @@ SlurmScript write_slurm_script(const Plan& p, const SlurmOptions& o) {
   std::string t = "#!/bin/bash\n";
   t += "# undertow sweep \"" + p.name + "\": " + std::to_string(p.points.size()) + " points in " +
        std::to_string(s.tasks) + " array tasks (up to " + std::to_string(per_task) +
-       " points each), written by `undertow sweep slurm`.\n";
+       (per_task == 1 ? " point" : " points") + " each), written by `undertow sweep slurm`.\n";
   t += "# Watch: squeue --me; undertow sweep status " + folder.string() +
        "\n# Resume after a failure or a time limit: submit this script again (finished points "
        "are skipped).\n";

@@ -13,6 +13,13 @@ cd "$W"
 fail() { echo "FAIL: $*" >&2; exit 1; }
 sweep="$SRC/tests/sweep/ci-sweep.toml"
 finished() { find "$1/points" -mindepth 1 -maxdepth 1 -type d ! -name '*.partial' 2>/dev/null | wc -l; }
+# Waits until one point of plan $1 has finished and another is half-way (its .partial folder).
+mid_point() {
+  for _ in $(seq 400); do
+    compgen -G "$1/points/*.partial/.keys" >/dev/null && [ "$(finished "$1")" -ge 1 ] && return 0
+    sleep 0.02
+  done
+}
 
 start=$(date +%s.%N)
 "$U" sweep plan "$sweep" -o one >/dev/null
@@ -25,7 +32,7 @@ diff <(grep '^id' one/plan.toml) <(grep '^id' rel/plan.toml) >/dev/null || fail 
 
 # 1. The reference: all points in one process.
 "$U" sweep run one 2>one.err | tee one.out
-grep -q "7 points ran" one.out || fail "one process did not run 7 points"
+grep -q ": ran 7, already finished 0, failed 0" one.out || fail "one process did not run 7 points"
 "$U" sweep gather one >/dev/null
 one_done=$(date +%s.%N)
 
@@ -42,11 +49,11 @@ wait "$pid" 2>/dev/null || true
 sleep 0.3 # the workers die with the pool (PR_SET_PDEATHSIG)
 k=$(finished pool)
 [ "$k" -lt 7 ] || fail "the pool finished before it was killed; nothing was resumed"
+[ "$k" -ge 1 ] || fail "the pool was killed before any point finished; nothing to skip"
 echo "pool killed with $k of 7 points finished"
 "$U" sweep status pool | tail -n 1
 "$U" sweep run pool --workers 2 --threads 1 >pool-2.out 2>pool-2.err
-grep -q "were finished before" pool-2.out || fail "the rerun did not report skipped points"
-grep -q "$k were finished before" pool-2.out || fail "the rerun did not skip the $k finished points"
+grep -q "already finished $k," pool-2.out || fail "the rerun did not skip the $k finished points"
 
 # 2b. One worker of a pool killed (as the out-of-memory killer would): that point is recorded as
 # failed, the others finish, and the next run retries it.
@@ -63,24 +70,35 @@ done
 kill -9 "$worker"
 if wait "$pid"; then fail "the pool exited 0 although a worker was killed"; fi
 grep -q "killed by signal 9" oom-1.err || fail "the killed worker was not reported"
-grep -q "6 points ran" oom-1.out || { cat oom-1.out; fail "the other points did not all run"; }
+grep -q ": ran 6, already finished 0, failed 1" oom-1.out || { cat oom-1.out; fail "the other points did not all run"; }
 "$U" sweep status oom | grep -q "1 failed" || fail "status does not show the failed point"
 "$U" sweep run oom --workers 2 --threads 1 >oom-2.out 2>oom-2.err
-grep -q "1 points ran, 6 were finished before" oom-2.out || { cat oom-2.out; fail "the failed point was not retried alone"; }
+grep -q ": ran 1, already finished 6, failed 0" oom-2.out || { cat oom-2.out; fail "the failed point was not retried alone"; }
 
 # 3. In one process, killed in the middle of a point (its .partial folder exists), then resumed.
 "$U" sweep plan "$sweep" -o killed >/dev/null
 "$U" sweep run killed >killed-1.out 2>killed-1.err &
 pid=$!
-for _ in $(seq 400); do
-  compgen -G "killed/points/*.partial/.keys" >/dev/null && [ "$(finished killed)" -ge 1 ] && break
-  sleep 0.02
-done
+mid_point killed
 kill -9 "$pid"
 wait "$pid" 2>/dev/null || true
 compgen -G "killed/points/*.partial" >/dev/null || fail "no half-written point to resume"
-"$U" sweep status killed | grep -q "partial" || fail "status does not show the partial point"
+"$U" sweep status killed | grep -q "): partial" || fail "status does not show the partial point"
 "$U" sweep run killed >killed-2.out 2>killed-2.err
+
+# 3b. SIGTERM (what Slurm sends at a time limit) in the middle of a point: exit status 130, the
+# point kept to resume, and the rerun finishes it.
+"$U" sweep plan "$sweep" -o term >/dev/null
+"$U" sweep run term >term-1.out 2>term-1.err &
+pid=$!
+mid_point term
+kill -TERM "$pid"
+rc=0
+wait "$pid" || rc=$?
+[ "$rc" = 130 ] || { tail -n 3 term-1.err; fail "SIGTERM gave exit status $rc, not 130"; }
+grep -q "interrupted; run the same command again to resume" term-1.err || fail "no resume hint after SIGTERM"
+[ "$(finished term)" -lt 7 ] || fail "the sweep finished before SIGTERM"
+"$U" sweep run term >term-2.out 2>term-2.err
 
 # 4. Sixteen shards, as a 16-task array would run them.
 "$U" sweep plan "$sweep" -o shards >/dev/null
@@ -89,7 +107,7 @@ for k in $(seq 0 15); do
 done
 grep -c "0 of 7 points" shards.err | grep -q 9 || fail "shards 7-15 should have had no points"
 
-for d in pool oom killed shards; do
+for d in pool oom killed term shards; do
   diff -r one/points "$d/points" >/dev/null || { diff -rq one/points "$d/points" | head; fail "$d differs from one process"; }
   "$U" sweep gather "$d" >/dev/null
   cmp one/ci-results.csv "$d/ci-results.csv" || fail "$d: gathered CSV differs"
@@ -112,15 +130,17 @@ mv "$W/set-aside" "$victim"
 # 6. A corrupted point folder is detected and redone, to the same bytes.
 good=$(cat "$victim/comparison-global.csv")
 printf 'garbage' >"$victim/comparison-global.csv"
-"$U" sweep status one | grep -q "corrupt" || fail "status did not see the corrupted point"
+"$U" sweep status one | grep -q "): corrupt" || fail "status did not see the corrupted point"
 "$U" sweep run one >redo.out 2>redo.err
-grep -q "1 points ran" redo.out || fail "the corrupted point was not redone"
+grep -q ": ran 1, already finished 6" redo.out || fail "the corrupted point was not redone"
 [ "$(cat "$victim/comparison-global.csv")" = "$good" ] || fail "the redone point differs"
 
 # 7. Bad sweep files: one line naming the file and the problem, nothing planned.
 bad() { # name, expected message, sweep text
   printf '%s\n' "$3" >"$W/$1.toml"
-  if "$U" sweep plan "$W/$1.toml" -o "$W/$1-plan" >"$1.out" 2>"$1.err"; then fail "$1 was planned"; fi
+  rc=0
+  "$U" sweep plan "$W/$1.toml" -o "$W/$1-plan" >"$1.out" 2>"$1.err" || rc=$?
+  [ "$rc" = 2 ] || { cat "$1.err"; fail "$1: exit status $rc, not 2 (bad input)"; }
   [ "$(wc -l <"$1.err")" = 1 ] || { cat "$1.err"; fail "$1: not one line"; }
   grep -q "$2" "$1.err" || { cat "$1.err"; fail "$1: message lacks '$2'"; }
   [ ! -e "$W/$1-plan" ] || fail "$1 left a plan folder"
@@ -154,7 +174,7 @@ base = "no-such-scenario.toml"
 [[parameter]]
 key = "run.seed"
 values = [1, 2]'
-bad unknown-key "pattern_sped_kms_kpc" "$head
+bad unknown-key "pattern_sped_kms_kpc: unknown key" "$head
 [[parameter]]
 key = \"galaxy.pattern[arms].pattern_sped_kms_kpc\"
 values = [20]"

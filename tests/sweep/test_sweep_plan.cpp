@@ -360,5 +360,4 @@ to = 0.08
 )"),
                     Contains("needs points"));
   CHECK_THROWS_WITH(plan_of("desing = \"grid\"", two_params), Contains("desing"));
-  CHECK_FALSE(fs::exists(dir / "out"));
 }

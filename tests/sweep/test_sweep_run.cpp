@@ -134,7 +134,7 @@ values = [7.0, 5.0, 0.31]
   CHECK(bytes(p1 / "comparison-local.csv") == local);
   CHECK(bytes(p1 / "finished.toml") == finished);
   CHECK_THAT(log.str(), Catch::Matchers::Contains("running it again"));
-  CHECK(fs::exists(sweep::point_folder(plan, plan.points[1]) + ".corrupt")); // set aside
+  CHECK(fs::exists(sweep::point_folder(plan, plan.points[1]) + ".corrupt-1")); // set aside
 
   // A half-written run (a .partial folder) resumes to the same result.
   const std::string f0 =
@@ -220,6 +220,10 @@ values = [0.08]
   CHECK(st.state == sweep::PointStatus::State::corrupt);
   CHECK_THAT(st.detail, Catch::Matchers::Contains("catalog.csv has changed"));
   fs::remove(dir / "catalog.csv");
-  CHECK_THROWS_WITH(sweep::point_status(plan, plan.points[0]),
-                    Catch::Matchers::Contains("is missing"));
+  const auto gone = sweep::point_status(plan, plan.points[0]);
+  CHECK(gone.state == sweep::PointStatus::State::error); // not corrupt: nothing is set aside
+  CHECK_THAT(gone.detail, Catch::Matchers::Contains("is missing"));
+  const auto r = sweep::run_points(plan, {0}, o);
+  CHECK(r.failed == 1);
+  CHECK(fs::exists(fs::path(sweep::point_folder(plan, plan.points[0])) / "finished.toml"));
 }

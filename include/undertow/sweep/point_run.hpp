@@ -26,13 +26,15 @@ struct PointResult {
 };
 
 struct PointStatus {
-  enum class State { missing, partial, failed, complete, corrupt } state = State::missing;
-  std::string detail; // the error of a failed point, or what is wrong with a corrupt one
+  // error: the folder could not be checked (a file exists but cannot be read, an input is
+  // missing); nothing is redone or set aside until that is fixed.
+  enum class State { missing, partial, failed, complete, corrupt, error } state = State::missing;
+  std::string detail; // the error of a failed point, what is wrong with a corrupt one, the error
   PointResult result; // for complete points
 };
 const char* state_name(PointStatus::State s);
 
-PointStatus point_status(const Plan& p, const Point& q);
+PointStatus point_status(const Plan& p, const Point& q); // never throws
 
 struct PointRunOptions {
   bool progress = false;
@@ -50,7 +52,8 @@ struct PointOutcome {
 PointOutcome run_point(const Plan& p, const Point& q, const PointRunOptions& o);
 
 // Records a point's failure from outside its run (a worker killed by a signal), under the
-// point's lock; false when another process holds the lock (it is running the point again).
+// point's lock. Returns false, recording nothing, when the point finished after all (killed on
+// its way out) or another process holds the lock (it is running the point again).
 bool record_failure_if_free(const Plan& p, const Point& q, const std::string& what);
 
 struct ShardReport {
