@@ -115,6 +115,25 @@ for d in pool oom killed term shards; do
 done
 echo "one process, a killed pool, a pool with a killed worker, a killed process and 16 shards: identical points and tables"
 
+# The gathered HDF5 file read by h5py (an outside reader): every point complete, units on the
+# swept pattern speed, and the same ln L per id as the CSV table.
+/usr/bin/python3 - one/ci-results.h5 one/ci-results.csv <<'PY' || fail "the gathered HDF5 file does not match the CSV"
+import csv, sys, h5py, math
+f = h5py.File(sys.argv[1], "r")
+assert f.attrs["undertow_format"] == "sweep-results"
+assert all(s.decode() == "complete" for s in f["status"][()]), f["status"][()]
+assert f["parameters/galaxy.pattern[arms].pattern_speed_kms_kpc"].attrs["units"] == "km/s/kpc"
+assert f["statistics/mean_V_simulated_kms"].attrs["units"] == "km/s"
+h5 = dict(zip((i.decode() for i in f["id"][()]), f["statistics/log_likelihood"][()]))
+rows = [r for r in csv.reader(open(sys.argv[2])) if r and not r[0].startswith("#")]
+col = rows[0].index("log_likelihood")
+assert len(rows) - 1 == len(h5) == 7
+for r in rows[1:]:
+    key = r[0].split()[0]
+    assert math.isclose(float(r[col]), h5[key], rel_tol=1e-7), (key, r[col], h5[key])
+print("gathered HDF5 read by h5py: 7 points, units present, ln L equal to the CSV")
+PY
+
 # 5. Gathering twice gives identical files; a missing point makes gather fail unless --partial.
 cp one/ci-results.h5 first.h5
 "$U" sweep gather one >/dev/null
@@ -134,6 +153,30 @@ printf 'garbage' >"$victim/comparison-global.csv"
 "$U" sweep run one >redo.out 2>redo.err
 grep -q ": ran 1, already finished 6" redo.out || fail "the corrupted point was not redone"
 [ "$(cat "$victim/comparison-global.csv")" = "$good" ] || fail "the redone point differs"
+
+# 6b. A Latin hypercube planned twice: the same plan, byte for byte, with its 5 points.
+cat >"$W/lhs.toml" <<LHS
+[sweep]
+name = "lhs"
+base = "$SRC/tests/sweep/small-spiral.toml"
+design = "latin-hypercube"
+points = 5
+seed = 11
+[[parameter]]
+key = "galaxy.pattern[arms].pitch_deg"
+from = 10.0
+to = 30.0
+[[parameter]]
+key = "galaxy.pattern[arms].force_ratio"
+from = 0.01
+to = 0.1
+scale = "log"
+LHS
+"$U" sweep plan "$W/lhs.toml" -o lhs-a >/dev/null
+"$U" sweep plan "$W/lhs.toml" -o lhs-b >/dev/null
+cmp lhs-a/plan.toml lhs-b/plan.toml || fail "replanning a Latin hypercube changed the plan"
+[ "$(grep -c '^\[\[point\]\]' lhs-a/plan.toml)" = 5 ] || fail "the Latin hypercube has not 5 points"
+"$U" sweep show lhs-a --point 4 | grep -q "^pitch_deg = " || fail "show did not print the point's scenario"
 
 # 7. Bad sweep files: one line naming the file and the problem, nothing planned.
 bad() { # name, expected message, sweep text
