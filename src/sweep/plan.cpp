@@ -262,6 +262,22 @@ Plan make_plan(const SweepSpec& spec, const std::string& folder) {
     }
   // Delta ln L against the reference means "this galaxy against that one" only when both see
   // the same survey in the same way.
+  for (const auto& par : spec.parameters) {
+    const auto starts = [&](const char* head) { return par.key.rfind(head, 0) == 0; };
+    // The measured residuals are computed with each point's own rotation curve and Sun.
+    if (starts("observation.sun") || starts("observation.lsr") || starts("galaxy.component") ||
+        starts("galaxy.calibration"))
+      p.warnings.push_back("'" + par.key +
+                           "' changes the measured residuals themselves (they are computed "
+                           "with each point's rotation curve and Sun): ln L of two points then "
+                           "compares different data, so do not read the table as a likelihood "
+                           "fit of this parameter");
+    else if (ref && (starts("observation.") || starts("comparison.")))
+      p.warnings.push_back("'" + par.key +
+                           "' changes how the points observe or compare, but the reference "
+                           "keeps its own value: delta ln L then mixes that change with the "
+                           "models'");
+  }
   if (ref)
     for (const char* k : {"observation", "comparison"}) {
       const auto* a = base[k].as_table();

@@ -264,6 +264,16 @@ TEST_CASE("Plan: a reference that sees the survey differently is warned about", 
       (dir / "out").string());
   REQUIRE(p.warnings.size() == 1);
   CHECK_THAT(p.warnings[0], Catch::Matchers::Contains("[comparison] differs"));
+  // Sweeping the Sun changes the measured residuals between points.
+  const auto q = sweep::make_plan(
+      sweep::load_sweep_file(write_sweep(dir, "reference = \"" + ref_path + "\"", R"(
+[[parameter]]
+key = "observation.sun.r0_kpc"
+values = [8.0, 8.2]
+)")),
+      (dir / "out").string());
+  REQUIRE(q.warnings.size() == 1);
+  CHECK_THAT(q.warnings[0], Catch::Matchers::Contains("changes the measured residuals"));
 }
 
 TEST_CASE("Plan: replicates get their own seeds, derived reproducibly", "[sweep]") {
