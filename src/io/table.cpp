@@ -127,8 +127,8 @@ void write_table(std::ostream& os, const Table& t, TableFormat f) {
     for (std::size_t r = 0; r < t.rows.size(); ++r) {
       os << "|";
       if (labels) os << " " << t.row_labels[r] << " |";
-      for (std::size_t c = 0; c < t.columns.size(); ++c)
-        os << " " << cell(r, c) << " |";
+      for (std::size_t c = 0; c < t.columns.size(); ++c) // no value: a dash, for people
+        os << " " << (std::isnan(t.rows[r][c]) ? "—" : cell(r, c)) << " |";
       os << "\n";
     }
     if (!t.notes.empty()) os << "\n";
@@ -145,7 +145,8 @@ void write_table(std::ostream& os, const Table& t, TableFormat f) {
     for (std::size_t r = 0; r < t.rows.size(); ++r) {
       if (labels) os << latex_text(t.row_labels[r]) << " & ";
       for (std::size_t c = 0; c < t.columns.size(); ++c)
-        os << (c ? " & " : "") << "$" << latex_number(cell(r, c)) << "$";
+        os << (c ? " & " : "")
+           << (std::isnan(t.rows[r][c]) ? "---" : "$" + latex_number(cell(r, c)) + "$");
       os << " \\\\\n";
     }
     os << "\\bottomrule\n\\end{tabular}\n";
