@@ -63,11 +63,12 @@ host=$(hostname -s)
 cpus=$(nproc)
 mem=$(awk '/MemTotal/ {print int($2 / 1024 * 0.8)}' /proc/meminfo)
 mkdir -p "$dir/ctld" "$dir/d"
-# Ports of our own, so that a cluster already on this machine is not disturbed.
+# Ports of our own, so that a cluster already on this machine is not disturbed; addresses by
+# number, so that nothing depends on the host name resolving.
 base=$((20000 + RANDOM % 20000))
 cat >"$dir/slurm.conf" <<CONF
 ClusterName=undertow-test
-SlurmctldHost=$host
+SlurmctldHost=$host(127.0.0.1)
 SlurmctldPort=$base
 SlurmdPort=$((base + 1))
 SlurmUser=root
@@ -91,7 +92,7 @@ SlurmdLogFile=$dir/slurmd.log
 SlurmctldTimeout=30
 SlurmdTimeout=30
 MaxArraySize=1001
-NodeName=$host CPUs=$cpus RealMemory=$mem State=UNKNOWN
+NodeName=$host NodeAddr=127.0.0.1 CPUs=$cpus RealMemory=$mem State=UNKNOWN
 PartitionName=debug Nodes=$host Default=YES MaxTime=INFINITE State=UP
 CONF
 export SLURM_CONF="$dir/slurm.conf"
