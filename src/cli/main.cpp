@@ -24,7 +24,6 @@
 
 #include <cstdlib>
 #include <filesystem>
-#include <omp.h>
 #include <unistd.h>
 
 namespace {
@@ -75,16 +74,6 @@ int run_tabulate(const TabulateArgs& a) {
   return 0;
 }
 
-// Long runs: progress lines only on a terminal (and never in CI), Ctrl-C and SIGTERM stop them
-// between batches, and --threads sets the OpenMP threads.
-template <class Options> void prepare_long_run(Options& o, int threads) {
-  o.progress = undertow::cli::show_progress();
-  o.stop = &undertow::cli::stop_flag();
-  o.log = &std::cerr;
-  if (threads > 0) omp_set_num_threads(threads);
-  undertow::cli::install_stop_handlers();
-}
-
 struct IntegrateArgs {
   std::string scenario;
   std::string output;
@@ -99,7 +88,7 @@ int run_integrate(const IntegrateArgs& a) {
   o.output =
       a.output.empty() ? std::filesystem::path(a.scenario).stem().string() + ".h5" : a.output;
   o.restart = a.restart;
-  prepare_long_run(o, a.threads);
+  undertow::cli::prepare_long_run(o, a.threads);
   const auto r = run::run_ensemble(sc, o);
   if (!r.complete) {
     std::cerr << "undertow: interrupted; snapshots up to t = " << r.reached_myr
@@ -248,7 +237,7 @@ int run_whole(const RunArgs& a) {
   run::WholeRunOptions o;
   o.folder = a.folder.empty() ? std::filesystem::path(a.scenario).stem().string() : a.folder;
   o.force = a.force;
-  prepare_long_run(o, a.threads);
+  undertow::cli::prepare_long_run(o, a.threads);
   const auto r = run::run_all(sc, o);
   if (!r.complete) {
     std::cerr << "undertow: interrupted; run the same command again to resume\n";

@@ -3,7 +3,6 @@
 #include <chrono>
 #include <filesystem>
 #include <iostream>
-#include <omp.h>
 #include <set>
 #include <thread>
 
@@ -94,10 +93,6 @@ int do_plan(const SweepArgs& a) {
   return 0;
 }
 
-void set_threads(int threads) {
-  if (threads > 0) omp_set_num_threads(threads);
-}
-
 int do_run(const SweepArgs& a) {
   // Points run from inside the plan folder, so that what they record (the scenario's path in
   // every report) is the same wherever the folder is: a local and a cluster run then agree
@@ -105,20 +100,17 @@ int do_run(const SweepArgs& a) {
   const fs::path given(a.folder);
   const fs::path dir = fs::is_directory(given) ? given : given.parent_path();
   const fs::path name = fs::is_directory(given) ? fs::path("plan.toml") : given.filename();
-  (void)read_plan(a.folder, false); // a bad folder is reported as given, before moving into it
+  Plan plan = read_plan(a.folder, false); // a bad folder is reported as given
   if (!dir.empty()) fs::current_path(dir);
-  Plan plan = read_plan(name.string(), false);
-  install_stop_handlers();
+  plan.folder = ".";
+  plan.file = name.string();
   const int threads = a.threads > 0 ? a.threads : threads_from_environment();
   PointRunOptions o;
-  o.progress = show_progress();
-  o.stop = &stop_flag();
-  o.log = &std::cerr;
+  prepare_long_run(o, threads);
   if (a.point) {
     if (*a.point >= plan.points.size())
       throw InputError(SourcePlace{"", 0, 0, "--point"},
                        "the plan has points 0 to " + std::to_string(plan.points.size() - 1));
-    set_threads(threads);
     build_points(plan, {*a.point});
     const auto r = run_points(plan, {*a.point}, o); // records even a bookkeeping failure
     if (r.interrupted) return point_exit::interrupted;
@@ -156,7 +148,6 @@ int do_run(const SweepArgs& a) {
     std::cerr << a.workers << " worker processes, " << po.threads << " threads each\n";
     rep = run_pool(plan, numbers, po);
   } else {
-    set_threads(threads);
     rep = run_points(plan, numbers, o);
   }
   const double wall = std::chrono::duration<double>(std::chrono::steady_clock::now() - t0).count();

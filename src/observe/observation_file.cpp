@@ -1,9 +1,9 @@
 #include "undertow/observe/observation_file.hpp"
 
 #include <cmath>
-#include <filesystem>
 
 #include "undertow/dynamics/frequencies.hpp"
+#include "undertow/io/paths.hpp"
 #include "undertow/io/toml_table.hpp"
 
 namespace undertow::observe {
@@ -109,9 +109,7 @@ ObservationSpec observation_from_table(const toml::table& t, const std::string& 
     } else if (kind == "catalog") {
       q.check_keys({"kind", "catalog"});
       e.kind = ErrorModel::Kind::catalog;
-      std::filesystem::path p(q.string("catalog"));
-      if (p.is_relative()) p = std::filesystem::path(file).parent_path() / p;
-      e.reference = residuals::read_catalog(p.lexically_normal().string());
+      e.reference = residuals::read_catalog(io::path_beside(file, q.string("catalog")));
     } else {
       q.fail("kind", "must be \"fixed\", \"fractional\" or \"catalog\", got \"" + kind + "\"");
     }

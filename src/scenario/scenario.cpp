@@ -1,11 +1,11 @@
 #include "undertow/scenario/scenario.hpp"
 
 #include <cmath>
-#include <filesystem>
 #include <optional>
 #include <sstream>
 
 #include "undertow/detail/kernel.hpp"
+#include "undertow/io/paths.hpp"
 #include "undertow/io/text_file.hpp"
 #include "undertow/io/toml_table.hpp"
 #include "undertow/potential/model_file.hpp"
@@ -16,14 +16,6 @@ namespace {
 
 using io::at_keys;
 using io::TableReader;
-namespace fs = std::filesystem;
-
-// Paths in a scenario are relative to the scenario's own folder.
-std::string resolve(const std::string& scenario_path, const std::string& p) {
-  const fs::path q(p);
-  if (q.is_absolute()) return p;
-  return (fs::path(scenario_path).parent_path() / q).lexically_normal().string();
-}
 
 void read_tracers(Scenario& s, const TableReader& r) {
   const std::string source = r.string("source");
@@ -60,7 +52,7 @@ void read_tracers(Scenario& s, const TableReader& r) {
   } else if (source == "file") {
     r.check_keys({"source", "file"});
     s.tracers.kind = TracerSource::Kind::file;
-    s.tracers.file = resolve(s.path, r.string("file"));
+    s.tracers.file = io::path_beside(s.path, r.string("file"));
   } else {
     r.fail("source", "must be \"disk\" or \"file\", got \"" + source + "\"");
   }
@@ -194,7 +186,7 @@ Scenario parse_scenario(const std::string& text, const std::string& path) {
     TableReader gr(*g, path, "galaxy");
     if (gr.has("model_file")) {
       gr.check_keys({"model_file"});
-      s.model_path = resolve(path, gr.string("model_file"));
+      s.model_path = io::path_beside(path, gr.string("model_file"));
       s.model_text = io::read_text_file(s.model_path);
       s.model = potential::parse_model_text(s.model_text, s.model_path);
     } else {
@@ -222,7 +214,7 @@ Scenario parse_scenario(const std::string& text, const std::string& path) {
                   "bootstrap", "seed", "neighbourhood", "neighbours", "min_neighbours",
                   "radius_kpc", "prediction_sources", "radius_bins_kpc", "azimuth_bins_deg"});
     Comparison c;
-    c.catalog = resolve(path, q.string("catalog"));
+    c.catalog = io::path_beside(path, q.string("catalog"));
     try {
       c.distance = residuals::distance_from_name(q.string_or("distance", "inverse"));
     } catch (const InputError& e) {

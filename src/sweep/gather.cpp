@@ -15,38 +15,41 @@ namespace {
 
 namespace fs = std::filesystem;
 
+using R = const PointResult&;
+
 struct Stat {
   const char* name;
   const char* latex;
   const char* plain;
   const char* unit;
   int precision;
-  bool descending; // larger is better
+  bool descending;                        // larger is better
+  double (*value)(R r, double ref_log_l); // from a point's result
 };
 
 const Stat stats[] = {
-    {"delta_log_likelihood", "\\Delta\\ln L", "Δ ln L", "", 7, true},
-    {"log_likelihood", "\\ln L", "ln L", "", 8, true},
-    {"chi2", "\\chi^2", "χ²", "", 7, false},
-    {"measured_sources", "N", "N", "", 6, false},
-    {"outliers", "N_{>3\\sigma}", "N>3σ", "", 6, false},
-    {"mean_U_simulated_kms", "\\langle U_s\\rangle_{\\rm sim}", "⟨U_s⟩_sim", "km/s", 4, false},
-    {"mean_V_simulated_kms", "\\langle V_s\\rangle_{\\rm sim}", "⟨V_s⟩_sim", "km/s", 4, false},
-    {"mean_V_measured_kms", "\\langle V_s\\rangle_{\\rm obs}", "⟨V_s⟩_obs", "km/s", 4, false},
-    {"V_significance", "\\Delta V/\\sigma", "ΔV/σ", "", 3, false},
+    // stats[1] is ln L, the order when there is no delta ln L
+    {"delta_log_likelihood", "\\Delta\\ln L", "Δ ln L", "", 7, true,
+     [](R r, double ref) { return r.log_likelihood - ref; }},
+    {"log_likelihood", "\\ln L", "ln L", "", 8, true, [](R r, double) { return r.log_likelihood; }},
+    {"chi2", "\\chi^2", "χ²", "", 7, false, [](R r, double) { return r.chi2; }},
+    {"measured_sources", "N", "N", "", 6, false,
+     [](R r, double) { return double(r.measured_sources); }},
+    {"outliers", "N_{>3\\sigma}", "N>3σ", "", 6, false,
+     [](R r, double) { return double(r.outliers); }},
+    {"mean_U_simulated_kms", "\\langle U_s\\rangle_{\\rm sim}", "⟨U_s⟩_sim", "km/s", 4, false,
+     [](R r, double) { return r.mean_simulated[0]; }},
+    {"mean_V_simulated_kms", "\\langle V_s\\rangle_{\\rm sim}", "⟨V_s⟩_sim", "km/s", 4, false,
+     [](R r, double) { return r.mean_simulated[1]; }},
+    {"mean_V_measured_kms", "\\langle V_s\\rangle_{\\rm obs}", "⟨V_s⟩_obs", "km/s", 4, false,
+     [](R r, double) { return r.mean_measured[1]; }},
+    {"V_significance", "\\Delta V/\\sigma", "ΔV/σ", "", 3, false,
+     [](R r, double) { return r.significance[1]; }},
 };
 
-double stat_value(const std::string& name, const PointResult& r, double ref_log_l) {
-  if (name == "delta_log_likelihood") return r.log_likelihood - ref_log_l;
-  if (name == "log_likelihood") return r.log_likelihood;
-  if (name == "chi2") return r.chi2;
-  if (name == "measured_sources") return double(r.measured_sources);
-  if (name == "outliers") return double(r.outliers);
-  if (name == "mean_U_simulated_kms") return r.mean_simulated[0];
-  if (name == "mean_V_simulated_kms") return r.mean_simulated[1];
-  if (name == "mean_V_measured_kms") return r.mean_measured[1];
-  if (name == "V_significance") return r.significance[1];
-  return NAN;
+// A swept value as a number (NaN for the reference, which has none).
+double parameter_value(const Point& q, std::size_t j) {
+  return q.reference ? NAN : q.values.get(j)->value<double>().value_or(NAN);
 }
 
 // Units from the key's suffix, the naming rule of every undertow file (docs/conventions.md).
@@ -77,25 +80,19 @@ bool numeric_parameter(const Plan& p, std::size_t j) {
 
 } // namespace
 
-std::vector<std::string> sortable_statistics() {
-  std::vector<std::string> v;
-  for (const auto& s : stats)
-    v.push_back(s.name);
-  return v;
-}
-
 GatherReport gather(const Plan& p, const GatherOptions& o) {
   const bool has_ref = !p.reference.empty();
-  std::vector<std::string> columns; // statistics shown
+  std::vector<const Stat*> columns; // statistics shown
   for (const auto& s : stats)
-    if (has_ref || std::string(s.name) != "delta_log_likelihood") columns.push_back(s.name);
+    if (has_ref || std::string(s.name) != "delta_log_likelihood") columns.push_back(&s);
 
   const std::string sort =
       o.sort.empty() ? (has_ref ? "delta_log_likelihood" : "log_likelihood") : o.sort;
   bool descending = false;
   bool known = sort == "number";
+  const Stat* sort_stat = nullptr;
   for (const auto& s : stats)
-    if (sort == s.name) known = true, descending = s.descending;
+    if (sort == s.name) known = true, descending = s.descending, sort_stat = &s;
   for (std::size_t j = 0; j < p.parameters.size(); ++j)
     if (sort == p.parameters[j]) {
       if (!numeric_parameter(p, j))
@@ -109,8 +106,8 @@ GatherReport gather(const Plan& p, const GatherOptions& o) {
                      "reference = ...)");
   if (!known) {
     std::string list = "number";
-    for (const auto& c : columns)
-      list += ", " + c;
+    for (const auto* c : columns)
+      list += ", " + std::string(c->name);
     for (const auto& k : p.parameters)
       list += ", " + k;
     throw InputError(SourcePlace{"", 0, 0, "--sort"},
@@ -153,6 +150,7 @@ GatherReport gather(const Plan& p, const GatherOptions& o) {
     ref_log_l = status[0].result.log_likelihood;
   else if (has_ref && sort == "delta_log_likelihood")
     sort_by = "log_likelihood"; // a partial sweep without its reference: the next best order
+  if (sort_by != sort) sort_stat = &stats[1];
 
   // The table: complete points only, sorted.
   io::Table t;
@@ -172,17 +170,14 @@ GatherReport gather(const Plan& p, const GatherOptions& o) {
     t.columns.push_back({p.parameters[j], latex_name(shown), shown, unit_of(steps.back().key), 6});
   }
   if (p.replicates > 1) t.columns.push_back({"replicate", "r", "r", "", 6});
-  for (const auto& c : columns)
-    for (const auto& s : stats)
-      if (c == s.name) t.columns.push_back({s.name, s.latex, s.plain, s.unit, s.precision});
+  for (const auto* s : columns)
+    t.columns.push_back({s->name, s->latex, s->plain, s->unit, s->precision});
 
   const auto sort_value = [&](std::size_t i) -> double {
-    const Point& q = p.points[i];
     if (sort_by == "number") return double(i);
     for (std::size_t j = 0; j < p.parameters.size(); ++j)
-      if (sort_by == p.parameters[j])
-        return q.reference ? NAN : q.values.get(j)->value<double>().value_or(NAN);
-    return stat_value(sort_by, status[i].result, ref_log_l);
+      if (sort_by == p.parameters[j]) return parameter_value(p.points[i], j);
+    return sort_stat->value(status[i].result, ref_log_l);
   };
   std::vector<std::size_t> order;
   for (std::size_t i = 0; i < p.points.size(); ++i)
@@ -201,10 +196,10 @@ GatherReport gather(const Plan& p, const GatherOptions& o) {
         label += " " + p.parameters[j] + "=" + io::toml_value_text(*q.values.get(j));
     std::vector<double> row{double(q.number)};
     for (std::size_t j : numeric)
-      row.push_back(q.reference ? NAN : q.values.get(j)->value<double>().value_or(NAN));
+      row.push_back(parameter_value(q, j));
     if (p.replicates > 1) row.push_back(double(q.replicate));
-    for (const auto& c : columns)
-      row.push_back(stat_value(c, status[i].result, ref_log_l));
+    for (const auto* s : columns)
+      row.push_back(s->value(status[i].result, ref_log_l));
     t.row_labels.push_back(label);
     t.add_row(row);
   }
@@ -259,7 +254,7 @@ GatherReport gather(const Plan& p, const GatherOptions& o) {
       if (std::find(numeric.begin(), numeric.end(), j) != numeric.end()) {
         std::vector<double> v;
         for (const auto& q : p.points)
-          v.push_back(q.reference ? NAN : q.values.get(j)->value<double>().value_or(NAN));
+          v.push_back(parameter_value(q, j));
         h::write_doubles(f, pg.id(), k, v, 1, unit_of(steps.back().key),
                          "swept value (NaN for the reference)");
       } else {
@@ -276,14 +271,13 @@ GatherReport gather(const Plan& p, const GatherOptions& o) {
       h::write_u64(f, pg.id(), "replicate", r, "replicate (seeds derived from it)");
     }
     const auto sg = h::create_group(f, "statistics");
-    for (const auto& c : columns) {
+    for (const auto* s : columns) {
       std::vector<double> v;
       for (std::size_t i = 0; i < p.points.size(); ++i)
         v.push_back(status[i].state == PointStatus::State::complete
-                        ? stat_value(c, status[i].result, ref_log_l)
+                        ? s->value(status[i].result, ref_log_l)
                         : NAN);
-      for (const auto& s : stats)
-        if (c == s.name) h::write_doubles(f, sg.id(), c, v, 1, s.unit, s.plain);
+      h::write_doubles(f, sg.id(), s->name, v, 1, s->unit, s->plain);
     }
   });
   rep.files.push_back(h5);

@@ -110,8 +110,11 @@ void set_at_key_path(toml::table& root, const std::string& path, const toml::nod
 
 const toml::node* find_at_key_path(const toml::table& root, const std::string& path) {
   const auto steps = parse_key_path(path);
-  toml::table* t = walk(const_cast<toml::table&>(root), steps, path);
-  return t->get(steps.back().key);
+  try {
+    return walk(const_cast<toml::table&>(root), steps, path)->get(steps.back().key);
+  } catch (const KeyPathError&) {
+    return nullptr; // a table on the way is absent
+  }
 }
 
 } // namespace undertow::sweep

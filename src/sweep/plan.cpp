@@ -1,10 +1,12 @@
 #include "undertow/sweep/plan.hpp"
 
 #include <algorithm>
+#include <cstring>
 #include <filesystem>
 #include <map>
 
 #include "undertow/io/digest.hpp"
+#include "undertow/io/paths.hpp"
 #include "undertow/io/text_file.hpp"
 #include "undertow/io/toml_table.hpp"
 #include "undertow/io/toml_writer.hpp"
@@ -58,19 +60,11 @@ toml::table load_base(const std::string& path, const std::string& folder) {
   if (auto* g = t["galaxy"].as_table(); g && g->contains("model_file")) {
     const auto* mf = g->get("model_file")->as_string();
     if (!mf) io::TableReader(*g, path, "galaxy").fail("model_file", "must be a string");
-    const fs::path m = fs::path(mf->get()).is_absolute() ? fs::path(mf->get()) : dir / mf->get();
-    t.insert_or_assign("galaxy", io::parse_toml_file(m.lexically_normal().string()));
+    t.insert_or_assign("galaxy", io::parse_toml_file(io::path_beside(path, mf->get())));
   }
-  for (const char* k : path_keys) {
-    const toml::node* n = nullptr;
-    try {
-      n = find_at_key_path(t, k);
-    } catch (const KeyPathError&) {
-      continue; // its table is absent
-    }
-    if (n && n->is_string())
+  for (const char* k : path_keys)
+    if (const toml::node* n = find_at_key_path(t, k); n && n->is_string())
       set_at_key_path(t, k, toml::value<std::string>(rebase(n->as_string()->get(), dir, folder)));
-  }
   return t;
 }
 
@@ -78,6 +72,14 @@ std::uint64_t replicate_seed(double base, std::size_t r) {
   using tracers::TracerStream;
   // Below 10^9: every seed reader accepts it (comparison.seed is the strictest).
   return TracerStream::mix(std::uint64_t(base) ^ TracerStream::mix(r + 0x5eed)) % 1000000000;
+}
+
+// "key = value, key = value": a point's values, in its header, logs and tables.
+std::string assignments(const std::vector<std::string>& keys, const toml::array& values) {
+  std::string s;
+  for (std::size_t j = 0; j < keys.size(); ++j)
+    s += (j ? ", " : "") + keys[j] + " = " + io::toml_value_text(*values.get(j));
+  return s;
 }
 
 struct Built {
@@ -91,21 +93,16 @@ Built build_point(const toml::table& base, const std::vector<std::string>& keys,
   if (reference) {
     header = "# undertow sweep: the reference model\n";
   } else {
-    header = "# undertow sweep point:";
-    for (std::size_t j = 0; j < keys.size(); ++j) {
+    for (std::size_t j = 0; j < keys.size(); ++j)
       set_at_key_path(t, keys[j], *values.get(j));
-      header += (j ? ", " : " ") + keys[j] + " = " + io::toml_value_text(*values.get(j));
-    }
+    header = "# undertow sweep point: " + assignments(keys, values);
     if (replicate > 0) {
       header += ", replicate " + std::to_string(replicate);
       for (const char* k : seed_keys) {
-        const toml::node* n = nullptr;
-        try {
-          n = find_at_key_path(t, k);
-        } catch (const KeyPathError&) {
-          continue;
-        }
         // Every seed of a table that exists, given or not: a replicate differs in every draw.
+        const std::string table(k, std::strchr(k, '.'));
+        if (!t.contains(table)) continue;
+        const toml::node* n = find_at_key_path(t, k);
         const double given = n ? n->value<double>().value_or(0) : 0;
         set_at_key_path(t, k,
                         toml::value<std::int64_t>(std::int64_t(replicate_seed(given, replicate))));
@@ -118,10 +115,6 @@ Built build_point(const toml::table& base, const std::vector<std::string>& keys,
   b.text = header + io::toml_text(t);
   b.id = io::hex64(io::fnv1a64(b.text)).substr(0, 12);
   return b;
-}
-
-fs::path folder_of(const Plan& p) {
-  return fs::path(p.folder);
 }
 
 // The scenario reader's message without its file prefix (the file is not on disk yet).
@@ -140,7 +133,7 @@ std::string without_file(const InputError& e) {
 } // namespace
 
 std::string point_folder(const Plan& p, const Point& q) {
-  return (folder_of(p) / "points" / q.id).lexically_normal().string();
+  return (fs::path(p.folder) / "points" / q.id).lexically_normal().string();
 }
 
 std::string scenario_path(const Plan& p, const Point& q) {
@@ -153,9 +146,7 @@ scenario::Scenario point_scenario(const Plan& p, const Point& q) {
 
 std::string describe(const Plan& p, const Point& q) {
   if (q.reference) return "reference";
-  std::string s;
-  for (std::size_t j = 0; j < p.parameters.size(); ++j)
-    s += (j ? ", " : "") + p.parameters[j] + " = " + io::toml_value_text(*q.values.get(j));
+  std::string s = assignments(p.parameters, q.values);
   if (p.replicates > 1) s += ", replicate " + std::to_string(q.replicate);
   return s;
 }
@@ -424,14 +415,9 @@ void build_points(Plan& p, const std::vector<std::size_t>& numbers) {
 std::vector<std::string> input_files(const Point& q) {
   const toml::table t = io::parse_toml_text(q.scenario, "point " + q.id);
   std::vector<std::string> out;
-  for (const char* k : path_keys) {
-    try {
-      if (const toml::node* n = find_at_key_path(t, k); n && n->is_string())
-        out.push_back(n->as_string()->get());
-    } catch (const KeyPathError&) {
-      // its table is absent
-    }
-  }
+  for (const char* k : path_keys)
+    if (const toml::node* n = find_at_key_path(t, k); n && n->is_string())
+      out.push_back(n->as_string()->get());
   std::sort(out.begin(), out.end());
   out.erase(std::unique(out.begin(), out.end()), out.end());
   return out;

@@ -341,9 +341,10 @@ PointOutcome run_point(const Plan& p, const Point& q, const PointRunOptions& o) 
   double science = 0;
   // The inputs as the run reads them: a catalog replaced during the run must not pass.
   std::map<std::string, io::FileDigest> inputs;
+  const auto input_names = input_files(q);
   const auto digest_inputs = [&] {
     std::map<std::string, io::FileDigest> m;
-    for (const auto& f : input_files(q))
+    for (const auto& f : input_names)
       m[f] = io::digest_file((fs::path(dir) / f).lexically_normal().string());
     return m;
   };

@@ -5,6 +5,7 @@
 #include <set>
 #include <stdexcept>
 
+#include "undertow/io/paths.hpp"
 #include "undertow/io/text_file.hpp"
 #include "undertow/io/toml_table.hpp"
 #include "undertow/io/toml_writer.hpp"
@@ -31,11 +32,6 @@ double tidy(double v) {
   char b[32];
   std::snprintf(b, sizeof b, "%.12g", v);
   return std::strtod(b, nullptr);
-}
-
-std::string resolve(const std::string& file, const std::string& p) {
-  if (fs::path(p).is_absolute()) return p;
-  return (fs::path(file).parent_path() / p).lexically_normal().string();
 }
 
 } // namespace
@@ -98,11 +94,11 @@ SweepSpec parse_sweep_file(const std::string& text, const std::string& path) {
           "abcdefghijklmnopqrstuvwxyzABCDEFGHIJKLMNOPQRSTUVWXYZ0123456789_.-") != std::string::npos)
     w.fail("name", "use 1 to 64 letters, digits, '_', '-' or '.'");
   s.description = w.string_or("description", "");
-  s.base_path = resolve(path, w.string("base"));
+  s.base_path = io::path_beside(path, w.string("base"));
   if (!fs::is_regular_file(s.base_path))
     w.fail("base", "the base scenario " + s.base_path + " does not exist");
   if (w.has("reference")) {
-    s.reference_path = resolve(path, w.string("reference"));
+    s.reference_path = io::path_beside(path, w.string("reference"));
     if (!fs::is_regular_file(s.reference_path))
       w.fail("reference", "the reference scenario " + s.reference_path + " does not exist");
   }

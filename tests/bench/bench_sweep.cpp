@@ -7,6 +7,7 @@
 #include <filesystem>
 #include <fstream>
 
+#include "support/scratch.hpp"
 #include "undertow/sweep/gather.hpp"
 #include "undertow/sweep/plan.hpp"
 #include "undertow/sweep/point_run.hpp"
@@ -16,12 +17,7 @@ namespace fs = std::filesystem;
 
 namespace {
 
-fs::path scratch(const std::string& name) {
-  const fs::path d = fs::temp_directory_path() / ("undertow-bench-" + name);
-  fs::remove_all(d);
-  fs::create_directories(d);
-  return d;
-}
+using test::scratch;
 
 // A sweep over `base` (relative to the source tree) with a grid of n x n points.
 sweep::Plan plan_grid(const fs::path& dir, const std::string& base, int n) {

@@ -23,9 +23,6 @@ struct GatherReport {
   std::vector<std::string> files;           // written; empty when nothing was written
 };
 
-// The statistics a table can be sorted by (column names).
-std::vector<std::string> sortable_statistics();
-
 GatherReport gather(const Plan& p, const GatherOptions& o);
 
 } // namespace undertow::sweep

@@ -30,7 +30,7 @@ std::vector<KeyStep> parse_key_path(const std::string& path);
 // then decides whether it is a valid key.
 void set_at_key_path(toml::table& root, const std::string& path, const toml::node& value);
 
-// The value at path, or nullptr when the last key is absent (the tables on the way must exist).
+// The value at path, or nullptr when it, or a table on the way, is absent.
 const toml::node* find_at_key_path(const toml::table& root, const std::string& path);
 
 } // namespace undertow::sweep
