@@ -2,6 +2,7 @@
 
 #include <cmath>
 #include <cstdio>
+#include <utility>
 
 #include "undertow/error.hpp"
 #include "undertow/io/atomic_file.hpp"
@@ -23,6 +24,10 @@ Catalog from_table(const io::CsvTable& t) {
   const bool has_corr = t.has_column("corr_pmra_pmdec"), has_group = t.has_column("group");
   const std::size_t ccorr = has_corr ? t.column("corr_pmra_pmdec") : 0;
   const std::size_t cgroup = has_group ? t.column("group") : 0;
+  constexpr std::size_t npos = std::size_t(-1);
+  const auto optional = [&](const char* n) { return t.has_column(n) ? t.column(n) : npos; };
+  const std::size_t ccw_a = optional("corr_parallax_pmra"), ccw_d = optional("corr_parallax_pmdec"),
+                    coff = optional("parallax_offset_mas");
   for (std::size_t r = 0; r < t.rows(); ++r) {
     Source s;
     s.line = t.line_of(r);
@@ -43,6 +48,20 @@ Catalog from_table(const io::CsvTable& t) {
       if (std::fabs(s.corr_pm) > 1)
         throw InputError(t.place(r, ccorr), "a correlation must lie in [-1, 1]");
     }
+    for (const auto& [col, dst] : {std::pair{ccw_a, &s.corr_w_pa}, std::pair{ccw_d, &s.corr_w_pd}})
+      if (col != npos) {
+        *dst = t.number(r, col);
+        if (std::fabs(*dst) > 1)
+          throw InputError(t.place(r, col), "a correlation must lie in [-1, 1]");
+      }
+    if (coff != npos) s.parallax_offset_mas = t.number(r, coff);
+    // the 3x3 correlation matrix of (parallax, mu_alpha*, mu_delta) must be positive definite
+    const double det = 1 - s.corr_pm * s.corr_pm - s.corr_w_pa * s.corr_w_pa -
+                       s.corr_w_pd * s.corr_w_pd + 2 * s.corr_pm * s.corr_w_pa * s.corr_w_pd;
+    if (!(det > 0))
+      throw InputError(t.place(r, has_corr ? ccorr : (ccw_a != npos ? ccw_a : name)),
+                       "the correlations of parallax and proper motions are not a valid "
+                       "correlation matrix (not positive definite)");
     if (has_group) s.group = t.cell(r, cgroup);
     c.sources.push_back(std::move(s));
   }

@@ -1,7 +1,8 @@
 #pragma once
 // Measured catalogs (CSV, docs/catalog-format.md): one row per source with its position,
 // parallax, proper motions, LSR velocity and their 1-sigma errors, an optional proper-motion
-// correlation and an optional group label. Reading is strict: a missing column, a value that is
+// correlation, optional parallax-proper-motion correlations, an optional parallax zero point and
+// an optional group label. Reading is strict: a missing column, a value that is
 // not a finite number, a non-positive error or a correlation outside [-1, 1] is an error at its
 // file, line and column.
 #include <string>
@@ -17,6 +18,10 @@ struct Source {
   double pmdec_masyr = 0, pmdec_err_masyr = 0;
   double vlsr_kms = 0, vlsr_err_kms = 0;
   double corr_pm = 0; // correlation of mu_alpha* and mu_delta
+  // Optional columns: correlations of the parallax with mu_alpha* and mu_delta, as astrometric
+  // catalogs publish them, and a per-source parallax zero point (measured = true + offset).
+  double corr_w_pa = 0, corr_w_pd = 0;
+  double parallax_offset_mas = 0;
   int line = 0;       // line in the file, for messages
 };
 

@@ -1,0 +1,108 @@
+#include "undertow/fit/diagnostics.hpp"
+
+#include <algorithm>
+#include <cmath>
+#include <complex>
+
+#include <unsupported/Eigen/FFT>
+
+#include "undertow/fit/ensemble_sampler.hpp"
+
+namespace undertow::fit {
+
+double autocorrelation_time(const std::vector<std::vector<double>>& series, double c) {
+  if (series.empty() || series[0].size() < 4) return NAN;
+  const std::size_t n = series[0].size();
+  std::size_t m = 1;
+  while (m < 2 * n)
+    m <<= 1;
+  Eigen::FFT<double> fft;
+  std::vector<double> acf(n, 0.0);
+  std::vector<double> buf(m);
+  std::vector<std::complex<double>> spec;
+  std::vector<double> back;
+  for (const auto& s : series) {
+    double mean = 0;
+    for (double v : s)
+      mean += v;
+    mean /= double(n);
+    std::fill(buf.begin(), buf.end(), 0.0);
+    for (std::size_t i = 0; i < n; ++i)
+      buf[i] = s[i] - mean;
+    fft.fwd(spec, buf);
+    for (auto& z : spec)
+      z = std::norm(z);
+    fft.inv(back, spec);
+    if (!(back[0] > 0)) continue; // a constant series carries no information
+    for (std::size_t i = 0; i < n; ++i)
+      acf[i] += back[i] / back[0];
+  }
+  if (!(acf[0] > 0)) return NAN;
+  const double a0 = acf[0];
+  double tau = 1;
+  for (std::size_t lag = 1; lag < n; ++lag) {
+    tau += 2 * acf[lag] / a0;
+    if (double(lag) >= c * tau) return tau;
+  }
+  return tau; // the window never closed: the chain is too short, and τ is a lower bound
+}
+
+double split_r_hat(const std::vector<std::vector<double>>& chains) {
+  std::vector<std::vector<double>> halves;
+  for (const auto& ch : chains) {
+    const std::size_t h = ch.size() / 2;
+    if (h < 2) return NAN;
+    halves.emplace_back(ch.begin(), ch.begin() + long(h));
+    halves.emplace_back(ch.end() - long(h), ch.end());
+  }
+  const double n = double(halves[0].size()), m = double(halves.size());
+  std::vector<double> means;
+  double w = 0;
+  for (const auto& c : halves) {
+    double mu = 0;
+    for (double v : c)
+      mu += v;
+    mu /= n;
+    double s2 = 0;
+    for (double v : c)
+      s2 += (v - mu) * (v - mu);
+    w += s2 / (n - 1);
+    means.push_back(mu);
+  }
+  w /= m;
+  double grand = 0;
+  for (double mu : means)
+    grand += mu;
+  grand /= m;
+  double b = 0;
+  for (double mu : means)
+    b += (mu - grand) * (mu - grand);
+  b *= n / (m - 1);
+  if (!(w > 0)) return NAN;
+  const double var = (n - 1) / n * w + b / n;
+  return std::sqrt(var / w);
+}
+
+ChainDiagnostics diagnose(const EnsembleSampler& s, long burn) {
+  ChainDiagnostics d;
+  d.burn = burn;
+  d.kept = s.steps() - burn;
+  for (int k = 0; k < s.ndim(); ++k) {
+    std::vector<std::vector<double>> series(std::size_t(s.walkers()));
+    for (int w = 0; w < s.walkers(); ++w) {
+      auto& v = series[std::size_t(w)];
+      v.reserve(std::size_t(d.kept));
+      for (long t = burn; t < s.steps(); ++t)
+        v.push_back(s.chain(t, w, k));
+    }
+    const double tau = autocorrelation_time(series);
+    const double r = split_r_hat(series);
+    d.tau.push_back(tau);
+    d.r_hat.push_back(r);
+    d.tau_max = std::max(d.tau_max, std::isfinite(tau) ? tau : INFINITY);
+    d.r_hat_max = std::max(d.r_hat_max, std::isfinite(r) ? r : INFINITY);
+  }
+  return d;
+}
+
+} // namespace undertow::fit
