@@ -9,6 +9,7 @@
 #include "undertow/dynamics/profile.hpp"
 #include "undertow/dynamics/resonances.hpp"
 #include "undertow/error.hpp"
+#include "undertow/fit/report.hpp"
 #include "undertow/io/atomic_file.hpp"
 #include "undertow/observe/observation_file.hpp"
 #include "undertow/observe/prepare.hpp"
@@ -19,6 +20,7 @@
 #include "undertow/scenario/provenance_model.hpp"
 #include "undertow/scenario/scenario.hpp"
 
+#include "fit_command.hpp"
 #include "long_run.hpp"
 #include "sweep_commands.hpp"
 
@@ -126,9 +128,31 @@ struct ResidualArgs {
   std::vector<double> solar{11.1, 12.24, 7.25};
   std::string distance = "inverse", lsr = "apex";
   double edsd_length = 1.35, min_snr = 0;
+  std::string distance_prior = "uniform";
+  std::vector<double> distance_range{0.0, 20.0}, disk_scales{3.0, 0.1};
+  double parallax_offset = 0;
+  std::string galactic_from;
+  bool marginalise = false;
   int draws = 1000, resamples = 1000;
   std::uint64_t seed = 1;
+  CLI::App* cmd = nullptr;
 };
+
+// The Sun and rotation curve of one parameter vector of a kinematic fit.
+undertow::residuals::GalacticDraw galactic_of(const undertow::fit::KinematicModel& m,
+                                              const undertow::fit::FullParams& p) {
+  using undertow::fit::Param;
+  undertow::residuals::GalacticDraw g;
+  g.sun.r0_kpc = p[std::size_t(Param::r0)];
+  g.sun.z_sun_kpc = p[std::size_t(Param::z_sun)];
+  g.sun.theta0_kms = m.theta0(p);
+  g.sun.u_sun_kms = p[std::size_t(Param::u_sun)];
+  g.sun.v_sun_kms = p[std::size_t(Param::v_sun)];
+  g.sun.w_sun_kms = p[std::size_t(Param::w_sun)];
+  g.rotation.kind = undertow::residuals::RotationCurve::Kind::model;
+  g.rotation.model = [m, p](double R) { return m.theta(R, p); };
+  return g;
+}
 
 int run_residuals(const ResidualArgs& a) {
   using namespace undertow;
@@ -138,12 +162,32 @@ int run_residuals(const ResidualArgs& a) {
   s.sun.u_sun_kms = a.solar[0], s.sun.v_sun_kms = a.solar[1], s.sun.w_sun_kms = a.solar[2];
   std::string rot;
   std::optional<potential::Model> model;
-  if (!a.model.empty()) {
+  if (!a.galactic_from.empty()) {
+    for (const char* o : {"--model", "--flat", "--slope", "--r0", "--z-sun", "--theta0",
+                          "--solar-motion"})
+      if (a.cmd->count(o))
+        throw InputError(std::string(o) + " cannot be combined with --galactic-from (the fit "
+                                          "gives the Galactic parameters)");
+    const auto g = fit::read_galactic_parameters(a.galactic_from);
+    const auto nominal = galactic_of(g.model, g.median);
+    s.sun = nominal.sun;
+    s.rotation = nominal.rotation;
+    if (a.marginalise)
+      for (const auto& p : g.samples)
+        s.galactic_draws.push_back(galactic_of(g.model, p));
+    rot = "Galactic parameters from the kinematic fit " + a.galactic_from + " (" +
+          (a.marginalise ? "marginalised over " + std::to_string(g.samples.size()) +
+                               " posterior samples; nominal values at the median"
+                         : std::string("posterior median")) +
+          "; rotation curve " + fit::rotation_form_name(g.model.rotation) + ")";
+  } else if (a.marginalise) {
+    throw InputError("--marginalise needs --galactic-from FIT.h5");
+  } else if (!a.model.empty()) {
     model = potential::load_model_file(a.model);
     s.rotation.kind = residuals::RotationCurve::Kind::model;
     s.rotation.model = [&](double R) { return dynamics::circular_speed(*model, R); };
     s.sun.theta0_kms = a.theta0 ? *a.theta0 : dynamics::circular_speed(*model, a.r0);
-    rot = "model " + a.model;
+    rot = "model " + a.model + ", fixed Galactic parameters";
   } else if (a.flat_theta0) {
     s.rotation.kind = a.slope != 0 ? residuals::RotationCurve::Kind::linear
                                    : residuals::RotationCurve::Kind::flat;
@@ -152,12 +196,20 @@ int run_residuals(const ResidualArgs& a) {
     s.rotation.slope_kms_kpc = a.slope;
     s.sun.theta0_kms = a.theta0 ? *a.theta0 : *a.flat_theta0;
     rot = "Theta(R) = " + std::to_string(*a.flat_theta0) + " + " + std::to_string(a.slope) +
-          " (R - R0) km/s";
+          " (R - R0) km/s, fixed Galactic parameters";
   } else {
     throw InputError("give a rotation curve: --model FILE or --flat THETA0_KMS");
   }
   s.distance = residuals::distance_from_name(a.distance);
   s.edsd_length_kpc = a.edsd_length;
+  s.prior.kind = fit::distance_prior_from_name(a.distance_prior);
+  s.prior.distance_min_kpc = a.distance_range[0];
+  s.prior.distance_max_kpc = a.distance_range[1];
+  s.prior.disk_scale_length_kpc = a.disk_scales[0];
+  s.prior.disk_scale_height_kpc = a.disk_scales[1];
+  if (s.prior.kind == fit::DistancePrior::Kind::table)
+    throw InputError("--distance-prior table is for fit files (docs/fit.md)");
+  s.parallax_offset_mas = a.parallax_offset;
   s.min_parallax_snr = a.min_snr;
   s.lsr = sky::lsr_form_from_name(a.lsr);
   s.draws = a.draws;
@@ -168,13 +220,19 @@ int run_residuals(const ResidualArgs& a) {
     throw InputError(SourcePlace{a.catalog, 0, 0, {}},
                      "no source is left after the selection; nothing written");
   const auto sum = residuals::summarise(res, a.resamples, a.seed);
-  char settings[512];
+  char settings[1024];
   std::snprintf(
       settings, sizeof settings,
       "R0 = %g kpc, z_sun = %g kpc, Theta0 = %g km/s, solar motion (%g, %g, %g) km/s, %s, "
-      "distance %s, LSR %s, %d draws, seed %llu",
+      "distance %s%s, parallax zero point %g mas, LSR %s, %d draws, seed %llu",
       s.sun.r0_kpc, s.sun.z_sun_kpc, s.sun.theta0_kms, s.sun.u_sun_kms, s.sun.v_sun_kms,
-      s.sun.w_sun_kms, rot.c_str(), a.distance.c_str(), a.lsr.c_str(), s.draws,
+      s.sun.w_sun_kms, rot.c_str(), a.distance.c_str(),
+      a.distance == "posterior-median"
+          ? (" (" + a.distance_prior + " prior on [" + detail::num(a.distance_range[0]) + ", " +
+             detail::num(a.distance_range[1]) + "] kpc)")
+                .c_str()
+          : "",
+      a.parallax_offset, a.lsr.c_str(), s.draws,
       static_cast<unsigned long long>(s.seed));
   const std::string prefix =
       a.prefix.empty() ? std::filesystem::path(a.catalog).stem().string() + "-residuals" : a.prefix;
@@ -309,11 +367,39 @@ int main(int argc, char** argv) {
       ->expected(3)
       ->delimiter(',')
       ->capture_default_str();
+  ra.cmd = rs;
   rs->add_option("--distance", ra.distance,
-                 "inverse (1/parallax), edsd-median or edsd-mode (exponentially decreasing "
-                 "space density prior, Bailer-Jones 2015)")
-      ->check(CLI::IsMember({"inverse", "edsd-median", "edsd-mode"}))
+                 "inverse (1/parallax), posterior-median (with --distance-prior), edsd-median or "
+                 "edsd-mode (exponentially decreasing space density prior, Bailer-Jones 2015, "
+                 "for nearby stars); every posterior-based estimator draws its Monte Carlo "
+                 "distances from the posterior")
+      ->check(CLI::IsMember({"inverse", "posterior-median", "edsd-median", "edsd-mode"}))
       ->capture_default_str();
+  rs->add_option("--distance-prior", ra.distance_prior,
+                 "Prior of posterior-median: uniform (space density) or disk (exponential in R "
+                 "and z)")
+      ->check(CLI::IsMember({"uniform", "disk"}))
+      ->capture_default_str();
+  rs->add_option("--distance-range", ra.distance_range,
+                 "MIN,MAX: the prior's distance range, kpc (set it to the survey's reach)")
+      ->expected(2)
+      ->delimiter(',')
+      ->capture_default_str();
+  rs->add_option("--disk-scales", ra.disk_scales, "HR,HZ: scale length and height of the disk "
+                                                  "prior, kpc")
+      ->expected(2)
+      ->delimiter(',')
+      ->capture_default_str();
+  rs->add_option("--parallax-offset", ra.parallax_offset,
+                 "Parallax zero point, mas: measured = true + offset (a catalog column "
+                 "parallax_offset_mas adds to it)")
+      ->capture_default_str();
+  rs->add_option("--galactic-from", ra.galactic_from,
+                 "Take R0, z_sun, Theta0, the solar motion and the rotation curve from a finished "
+                 "kinematic fit (its fit.h5): the posterior median");
+  rs->add_flag("--marginalise", ra.marginalise,
+               "With --galactic-from: each Monte Carlo draw takes its own posterior sample, so the "
+               "errors include the Galactic parameters' uncertainty");
   rs->add_option("--edsd-length", ra.edsd_length, "Length scale of the edsd prior, kpc")
       ->capture_default_str();
   rs->add_option("--min-parallax-snr", ra.min_snr,
@@ -361,12 +447,16 @@ int main(int argc, char** argv) {
       ->required()
       ->expected(2, 1000);
 
+  undertow::cli::FitArgs fit;
+  undertow::cli::add_fit_command(app, fit);
+
   undertow::cli::SweepArgs sweep;
   undertow::cli::add_sweep_commands(app, sweep);
 
   CLI11_PARSE(app, argc, argv);
   try {
     if (const auto code = undertow::cli::run_sweep_command(sweep)) return *code;
+    if (const auto code = undertow::cli::run_fit_command(fit)) return *code;
     if (t->parsed()) return run_tabulate(tab);
     if (ig->parsed()) return run_integrate(integ);
     if (rs->parsed()) return run_residuals(ra);

@@ -3,6 +3,7 @@
 #include <algorithm>
 #include <cmath>
 #include <complex>
+#include <stdexcept>
 
 #include <unsupported/Eigen/FFT>
 
@@ -13,6 +14,8 @@ namespace undertow::fit {
 double autocorrelation_time(const std::vector<std::vector<double>>& series, double c) {
   if (series.empty() || series[0].size() < 4) return NAN;
   const std::size_t n = series[0].size();
+  for (const auto& s : series)
+    if (s.size() != n) throw std::invalid_argument("autocorrelation_time: series of unequal length");
   std::size_t m = 1;
   while (m < 2 * n)
     m <<= 1;
@@ -50,6 +53,8 @@ double autocorrelation_time(const std::vector<std::vector<double>>& series, doub
 double split_r_hat(const std::vector<std::vector<double>>& chains) {
   std::vector<std::vector<double>> halves;
   for (const auto& ch : chains) {
+    if (ch.size() != chains[0].size())
+      throw std::invalid_argument("split_r_hat: chains of unequal length");
     const std::size_t h = ch.size() / 2;
     if (h < 2) return NAN;
     halves.emplace_back(ch.begin(), ch.begin() + long(h));

@@ -20,7 +20,7 @@ DistancePosterior::DistancePosterior(double w, double s, double w0, const double
                      " and " + detail::num(p.distance_max_kpc) + " kpc");
   u_.resize(std::size_t(grid));
   std::vector<double> lnp(u_.size());
-  double best = -INFINITY;
+  double best = -INFINITY, best_d = -INFINITY;
   for (std::size_t i = 0; i < u_.size(); ++i) {
     const double u = u_lo + (u_hi - u_lo) * double(i) / double(grid - 1);
     u_[i] = u;
@@ -33,7 +33,9 @@ DistancePosterior::DistancePosterior(double w, double s, double w0, const double
     if (!p.heliocentric()) galactocentric_rz(d, n, g.r0_kpc, g.z_sun_kpc, R, z);
     // density in u: N(wt | u, s) rho(d) d^2 |dd/du| = N rho u^-4
     lnp[i] = -0.5 * (wt - u) * (wt - u) / (s * s) + p.ln_density(d, R, z) - 4 * std::log(u);
-    if (lnp[i] > best) best = lnp[i], mode_ = d;
+    if (lnp[i] > best) best = lnp[i];
+    // the mode in distance: the density per unit distance is the density in u times u^2
+    if (const double lnd = lnp[i] + 2 * std::log(u); lnd > best_d) best_d = lnd, mode_ = d;
   }
   cdf_.assign(u_.size(), 0.0);
   double prev = std::exp(lnp[0] - best);

@@ -12,6 +12,8 @@ EnsembleSampler::EnsembleSampler(int ndim, int walkers, std::uint64_t seed, LogP
                                  double stretch, double de_fraction)
     : ndim_(ndim), walkers_(walkers), seed_(seed), f_(std::move(f)), a_(stretch),
       de_(de_fraction) {
+  if (de_fraction > 0 && walkers < 4)
+    throw std::invalid_argument("sampler: differential-evolution moves need at least 4 walkers");
   if (!(de_fraction >= 0 && de_fraction <= 1))
     throw std::invalid_argument("sampler: the differential-evolution share must lie in [0, 1]");
   if (ndim < 1) throw std::invalid_argument("sampler: at least one parameter");

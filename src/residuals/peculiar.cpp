@@ -1,9 +1,11 @@
 #include "undertow/residuals/peculiar.hpp"
 
 #include <cmath>
+#include <optional>
 
 #include "undertow/detail/kernel.hpp"
 #include "undertow/error.hpp"
+#include "undertow/fit/measurement_draw.hpp"
 #include "undertow/sky/distance.hpp"
 #include "undertow/tracers/random.hpp"
 #include "undertow/units.hpp"
@@ -11,12 +13,39 @@
 namespace undertow::residuals {
 namespace {
 
-double distance_of(double w, double sw, const ResidualSettings& s) {
+bool from_posterior(const ResidualSettings& s) {
+  return s.distance != ResidualSettings::Distance::inverse;
+}
+
+// The distance prior of a posterior-based estimator.
+fit::DistancePrior prior_of(const ResidualSettings& s) {
+  if (s.distance == ResidualSettings::Distance::posterior_median) return s.prior;
+  fit::DistancePrior p;
+  p.kind = fit::DistancePrior::Kind::edsd;
+  p.edsd_length_kpc = s.edsd_length_kpc;
+  p.distance_min_kpc = 0;
+  p.distance_max_kpc = 1000 * s.edsd_length_kpc;
+  return p;
+}
+
+sky::Vec3 galactic_direction(const Source& src) {
+  const double ra = src.ra_deg * units::deg, dec = src.dec_deg * units::deg;
+  return sky::mul(sky::icrs_to_galactic_matrix(),
+                  {std::cos(dec) * std::cos(ra), std::cos(dec) * std::sin(ra), std::sin(dec)});
+}
+
+// The distance estimate for a parallax w (already corrected for the zero point).
+double distance_of(const Source& src, double w, double sw, const ResidualSettings& s) {
   switch (s.distance) {
   case ResidualSettings::Distance::edsd:
     return sky::edsd_mode_kpc(w, sw, s.edsd_length_kpc);
   case ResidualSettings::Distance::edsd_median:
     return sky::edsd_median_kpc(w, sw, s.edsd_length_kpc);
+  case ResidualSettings::Distance::posterior_median: {
+    const auto n = galactic_direction(src);
+    return fit::DistancePosterior(w, sw, 0, n.data(), s.prior, {s.sun.r0_kpc, s.sun.z_sun_kpc})
+        .median();
+  }
   case ResidualSettings::Distance::inverse:
     break;
   }
@@ -24,17 +53,23 @@ double distance_of(double w, double sw, const ResidualSettings& s) {
 }
 
 struct Inputs {
-  double w, pa, pd, v; // parallax mas, mu_alpha*, mu_delta mas/yr, v_LSR km/s
+  double w, pa, pd, v; // parallax mas (zero point removed), mu_alpha*, mu_delta mas/yr, v_LSR km/s
 };
+
+std::array<double, 3> uvw_at(const Source& src, double d, double pa, double pd, double v,
+                             const ResidualSettings& s, double* R = nullptr,
+                             double* psi = nullptr, double* z = nullptr) {
+  const sky::Observed o{src.ra_deg, src.dec_deg, pa, pd,
+                        sky::lsr_to_helio(v, src.ra_deg, src.dec_deg, s.lsr)};
+  return peculiar_motion(o, d, s, R, psi, z);
+}
 
 std::array<double, 3> uvw_of(const Source& src, const Inputs& in, double sw,
                              const ResidualSettings& s, double* R = nullptr, double* psi = nullptr,
                              double* z = nullptr, double* d_out = nullptr) {
-  const sky::Observed o{src.ra_deg, src.dec_deg, in.pa, in.pd,
-                        sky::lsr_to_helio(in.v, src.ra_deg, src.dec_deg, s.lsr)};
-  const double d = distance_of(in.w, sw, s);
+  const double d = distance_of(src, in.w, sw, s);
   if (d_out) *d_out = d;
-  return peculiar_motion(o, d, s, R, psi, z);
+  return uvw_at(src, d, in.pa, in.pd, in.v, s, R, psi, z);
 }
 
 } // namespace
@@ -43,7 +78,9 @@ ResidualSettings::Distance distance_from_name(const std::string& n) {
   if (n == "inverse") return ResidualSettings::Distance::inverse;
   if (n == "edsd-median") return ResidualSettings::Distance::edsd_median;
   if (n == "edsd-mode") return ResidualSettings::Distance::edsd;
-  throw InputError("unknown distance estimator '" + n + "' (inverse, edsd-median, edsd-mode)");
+  if (n == "posterior-median") return ResidualSettings::Distance::posterior_median;
+  throw InputError("unknown distance estimator '" + n +
+                   "' (inverse, posterior-median, edsd-median, edsd-mode)");
 }
 
 double RotationCurve::at(double R) const {
@@ -72,47 +109,91 @@ std::array<double, 3> peculiar_motion(const sky::Observed& o, double d, const Re
 
 ResidualResult compute_residuals(const Catalog& c, const ResidualSettings& s) {
   s.sun.validate();
+  if (s.distance == ResidualSettings::Distance::posterior_median) s.prior.validate();
+  const fit::DistancePrior prior = prior_of(s);
   ResidualResult out;
   std::uint64_t index = 0;
+  bool warned_inverse = false;
   for (const Source& src : c.sources) {
     ++index;
-    const double snr = src.parallax_mas / src.parallax_err_mas;
+    const double w = src.parallax_mas - src.parallax_offset_mas - s.parallax_offset_mas;
+    const double sw = src.parallax_err_mas;
+    const double snr = src.parallax_mas / sw;
     if (s.min_parallax_snr > 0 && snr < s.min_parallax_snr) {
       out.excluded.push_back(src.name + ": parallax/error = " + detail::num(snr) + " below " +
                              detail::num(s.min_parallax_snr));
       continue;
     }
-    if (s.distance == ResidualSettings::Distance::inverse && !(src.parallax_mas > 0)) {
+    if (!from_posterior(s) && !(w > 0)) {
       out.excluded.push_back(src.name + ": non-positive parallax has no 1/parallax distance");
       continue;
     }
     SourceResidual r;
     r.name = src.name;
     r.group = src.group;
-    r.frac_parallax_err = src.parallax_err_mas / std::fabs(src.parallax_mas);
-    if (s.distance == ResidualSettings::Distance::inverse && r.frac_parallax_err > 0.1)
+    r.frac_parallax_err = sw / std::fabs(w);
+    if (!from_posterior(s) && r.frac_parallax_err > 0.1) {
       out.warnings.push_back(src.name + ": fractional parallax error " +
                              detail::num(r.frac_parallax_err) +
                              ": 1/parallax is biased (too far on average) at this level");
-    const Inputs nominal{src.parallax_mas, src.pmra_masyr, src.pmdec_masyr, src.vlsr_kms};
-    r.uvw = uvw_of(src, nominal, src.parallax_err_mas, s, &r.R_kpc, &r.psi_deg, &r.z_kpc,
-                   &r.distance_kpc);
+      if (!warned_inverse) {
+        warned_inverse = true;
+        out.warnings.insert(out.warnings.begin(),
+                            "1/parallax is biased for sources with fractional parallax errors "
+                            "above 10 %: for young disk sources several kpc away use "
+                            "posterior-median with a uniform-density or disk prior cut at the "
+                            "survey's distance range (docs/fit.md); the edsd prior suits nearby "
+                            "stars and pulls distant disk sources too close");
+      }
+    }
+    std::optional<fit::DistancePosterior> post;
+    const sky::Vec3 dir = galactic_direction(src);
+    try {
+      if (from_posterior(s))
+        post.emplace(w, sw, 0, dir.data(), prior,
+                     fit::Geometry{s.sun.r0_kpc, s.sun.z_sun_kpc});
+    } catch (const InputError& e) {
+      out.excluded.push_back(src.name + ": " + e.what());
+      continue;
+    }
+    const Inputs nominal{w, src.pmra_masyr, src.pmdec_masyr, src.vlsr_kms};
+    r.uvw = uvw_of(src, nominal, sw, s, &r.R_kpc, &r.psi_deg, &r.z_kpc, &r.distance_kpc);
 
-    // Monte Carlo: draws from the measurement errors (proper motions correlated as given), each
-    // source with its own stream from (seed, source index).
+    // Monte Carlo, each source with its own stream from (seed, source index): 1/parallax draws
+    // perturb the parallax and proper motions (correlated as the catalog says); posterior-based
+    // estimators draw the true distance from its posterior and the proper motions conditioned on
+    // the parallax error it implies (fit::draw_true).
     tracers::TracerStream rng(s.seed, index, 0x5eed);
     std::array<double, 3> sum{};
     std::array<double, 9> sum2{};
     int used = 0;
-    const double rho = src.corr_pm, q = std::sqrt(std::fmax(0.0, 1 - rho * rho));
+    // Cholesky of the (parallax, mu_alpha*, mu_delta) correlation matrix
+    const double r01 = src.corr_w_pa, r02 = src.corr_w_pd, r12 = src.corr_pm;
+    const double c11 = std::sqrt(std::fmax(0.0, 1 - r01 * r01));
+    const double c21 = c11 > 0 ? (r12 - r02 * r01) / c11 : 0;
+    const double c22 = std::sqrt(std::fmax(0.0, 1 - r02 * r02 - c21 * c21));
     for (int k = 0; k < s.draws; ++k) {
-      const double n1 = rng.normal(), n2 = rng.normal(), n3 = rng.normal(), n4 = rng.normal();
-      const Inputs in{src.parallax_mas + src.parallax_err_mas * n1,
-                      src.pmra_masyr + src.pmra_err_masyr * n2,
-                      src.pmdec_masyr + src.pmdec_err_masyr * (rho * n2 + q * n3),
-                      src.vlsr_kms + src.vlsr_err_kms * n4};
-      if (s.distance == ResidualSettings::Distance::inverse && !(in.w > 0)) continue; // no distance
-      const auto u = uvw_of(src, in, src.parallax_err_mas, s);
+      const ResidualSettings* sk = &s;
+      ResidualSettings alt;
+      if (!s.galactic_draws.empty()) {
+        const auto& g = s.galactic_draws[std::size_t(k) % s.galactic_draws.size()];
+        alt = s;
+        alt.sun = g.sun;
+        alt.rotation = g.rotation;
+        sk = &alt;
+      }
+      std::array<double, 3> u;
+      if (post) {
+        const auto t = fit::draw_true(src, *post, s.parallax_offset_mas, rng);
+        u = uvw_at(src, t.distance_kpc, t.pmra_masyr, t.pmdec_masyr, t.vlsr_kms, *sk);
+      } else {
+        const double n1 = rng.normal(), n2 = rng.normal(), n3 = rng.normal(), n4 = rng.normal();
+        const Inputs in{w + sw * n1, src.pmra_masyr + src.pmra_err_masyr * (r01 * n1 + c11 * n2),
+                        src.pmdec_masyr + src.pmdec_err_masyr * (r02 * n1 + c21 * n2 + c22 * n3),
+                        src.vlsr_kms + src.vlsr_err_kms * n4};
+        if (!(in.w > 0)) continue; // no distance
+        u = uvw_of(src, in, sw, *sk);
+      }
       for (int a = 0; a < 3; ++a) {
         sum[a] += u[a];
         for (int b = 0; b < 3; ++b)
@@ -134,8 +215,7 @@ ResidualResult compute_residuals(const Catalog& c, const ResidualSettings& s) {
         r.mc_cov[3 * a + b] = (sum2[3 * a + b] - used * r.mc_mean[a] * r.mc_mean[b]) / (used - 1);
 
     // First-order propagation: J C J^T with the Jacobian by central differences.
-    const double sig[4] = {src.parallax_err_mas, src.pmra_err_masyr, src.pmdec_err_masyr,
-                           src.vlsr_err_kms};
+    const double sig[4] = {sw, src.pmra_err_masyr, src.pmdec_err_masyr, src.vlsr_err_kms};
     double J[3][4];
     for (int k = 0; k < 4; ++k) {
       const double h = 1e-4 * sig[k];
@@ -144,15 +224,16 @@ ResidualResult compute_residuals(const Catalog& c, const ResidualSettings& s) {
       double* mm[] = {&m.w, &m.pa, &m.pd, &m.v};
       *pp[k] += h;
       *mm[k] -= h;
-      const auto up = uvw_of(src, p, src.parallax_err_mas, s),
-                 um = uvw_of(src, m, src.parallax_err_mas, s);
+      const auto up = uvw_of(src, p, sw, s), um = uvw_of(src, m, sw, s);
       for (int a = 0; a < 3; ++a)
         J[a][k] = (up[a] - um[a]) / (2 * h);
     }
     double C[4][4] = {};
     for (int k = 0; k < 4; ++k)
       C[k][k] = sig[k] * sig[k];
-    C[1][2] = C[2][1] = rho * sig[1] * sig[2];
+    C[1][2] = C[2][1] = r12 * sig[1] * sig[2];
+    C[0][1] = C[1][0] = r01 * sig[0] * sig[1];
+    C[0][2] = C[2][0] = r02 * sig[0] * sig[2];
     for (int a = 0; a < 3; ++a)
       for (int b = 0; b < 3; ++b) {
         double v = 0;

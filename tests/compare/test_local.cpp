@@ -31,7 +31,7 @@ std::vector<PlanePoint> draw(std::mt19937_64& rng, std::size_t n, double lag, do
 } // namespace
 
 TEST_CASE("Under the true model the pulls have mean 0 and dispersion 1 and chi^2 averages 3 "
-          "(a Gaussian in 3 dimensions; definition of the pull)",
+          "(a Gaussian in 3 dimensions, definition of the pull)",
           "[compare]") {
   std::mt19937_64 rng(5);
   const auto sim = draw(rng, 20000, -7, 0);

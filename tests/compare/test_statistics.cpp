@@ -89,7 +89,7 @@ TEST_CASE("Anderson-Darling k-sample (Scholz & Stephens 1987): under the null hy
 }
 
 TEST_CASE("Anderson-Darling: a sample against itself has A^2 = 0 and p = 1 (ties handled by "
-          "midranks); shifted samples give a small p; the interpolation passes through the "
+          "midranks), shifted samples give a small p, the interpolation passes through the "
           "critical values",
           "[compare]") {
   std::mt19937_64 rng(4);

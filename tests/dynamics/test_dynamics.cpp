@@ -93,7 +93,7 @@ TEST_CASE("Isochrone: the epicyclic frequency of a circular orbit is its radial 
   }
 }
 
-TEST_CASE("Spherical models have nu = Omega; a harmonic core has kappa = 2 Omega (B&T 2008 "
+TEST_CASE("Spherical models have nu = Omega, a harmonic core has kappa = 2 Omega (B&T 2008 "
           "§3.2.3)",
           "[dynamics]") {
   const Model h = single(Hernquist::make(5e10, 1.5));
@@ -104,7 +104,7 @@ TEST_CASE("Spherical models have nu = Omega; a harmonic core has kappa = 2 Omega
 }
 
 TEST_CASE("Enclosed mass by Gauss's theorem equals the closed-form M(r) of spherical models "
-          "(Hernquist 1990 eq. 3; NFW 1996)",
+          "(Hernquist 1990 eq. 3, NFW 1996)",
           "[dynamics]") {
   const Model h = single(Hernquist::make(5e10, 1.5));
   const Model n = single(Nfw::make(1e7, 15));
@@ -132,7 +132,7 @@ TEST_CASE("Escape speed needs a radius for a logarithmic halo", "[dynamics]") {
   CHECK(v == Approx(expect).epsilon(1e-12));
 }
 
-TEST_CASE("Calibration rescales the chosen masses so that v_c(R0) = Theta0 exactly; the others "
+TEST_CASE("Calibration rescales the chosen masses so that v_c(R0) = Theta0 exactly, the others "
           "stay as they were",
           "[dynamics]") {
   Model m;

@@ -115,7 +115,7 @@ TEST_CASE("A mock catalog passes the measured-catalog validation and its residua
   CHECK(std::fabs(sum[0].mean[0]) < 3 * sum[0].mean_err[0]);
 }
 
-TEST_CASE("With 10-20% parallax errors 1/parallax biases the mean V_s; the posterior median "
+TEST_CASE("With 10-20% parallax errors 1/parallax biases the mean V_s, the posterior median "
           "with the exponentially decreasing space density prior, its length scale matched to "
           "the sample (mean distance = 3L, Bailer-Jones 2015), removes most of the bias, and "
           "its mode less",

@@ -295,7 +295,7 @@ const std::vector<double> radii{0.1, 0.3, 1.0, 2.0, 5.0, 8.0, 15.0, 30.0};
 // =============================================================================================
 // 1. Force and potential agree.
 
-TEST_CASE("Force equals minus the gradient of the potential (definition of Phi; Richardson "
+TEST_CASE("Force equals minus the gradient of the potential (definition of Phi, Richardson "
           "central differences)",
           "[components]") {
   for (const Case& c : all_cases()) {
@@ -395,7 +395,7 @@ TEST_CASE("Spherical components: the force is central and enclosed_mass(r) = r^2
 }
 
 TEST_CASE("Spherical components: enclosed_mass(r) = int_0^r 4 pi r'^2 rho dr' (definition of the "
-          "enclosed mass; Gauss-Kronrod quadrature)",
+          "enclosed mass, Gauss-Kronrod quadrature)",
           "[components]") {
   for (const Case& c : all_cases()) {
     if (!spherical(c.shape) || std::holds_alternative<PointMass>(c.shape)) continue;
@@ -409,7 +409,7 @@ TEST_CASE("Spherical components: enclosed_mass(r) = int_0^r 4 pi r'^2 rho dr' (d
 }
 
 TEST_CASE("Point mass: density zero away from the centre and enclosed mass M at every radius "
-          "(Newton's point mass; Gauss's theorem)",
+          "(Newton's point mass, Gauss's theorem)",
           "[components]") {
   const auto k = PointMass::make(4.1e6);
   for (double r : radii) {
@@ -435,7 +435,7 @@ TEST_CASE("Spherical components: potential zero point Phi(r) = -G M(r)/r - 4 pi 
 }
 
 TEST_CASE("Components that vanish at infinity do, and the logarithmic potential grows without "
-          "bound (vanishes_at_infinity flag; Gauss's theorem, r Phi -> -G M)",
+          "bound (vanishes_at_infinity flag, Gauss's theorem, r Phi -> -G M)",
           "[components]") {
   for (const Case& c : all_cases()) {
     DYNAMIC_SECTION(c.name) {
@@ -487,7 +487,7 @@ TEST_CASE("Component::kind() names the shape and every kind is distinct (interfa
 // =============================================================================================
 // 4. Closed forms, component by component.
 
-TEST_CASE("Point mass: v_c^2 = G M / R (Kepler; Binney & Tremaine 2008 §2.2.2a)", "[components]") {
+TEST_CASE("Point mass: v_c^2 = G M / R (Kepler, Binney & Tremaine 2008 §2.2.2a)", "[components]") {
   const double m = GENERATE(4.1e6, 1e10, 1e12);
   const ComponentShape s = PointMass::make(m);
   for (double R : radii)
@@ -496,7 +496,7 @@ TEST_CASE("Point mass: v_c^2 = G M / R (Kepler; Binney & Tremaine 2008 §2.2.2a)
 }
 
 TEST_CASE("Plummer: v_c^2 = G M R^2 / (R^2 + b^2)^(3/2), rho(0) = 3M/(4 pi b^3) and "
-          "M(r) = M r^3/(r^2+b^2)^(3/2) (Plummer 1911; Binney & Tremaine 2008 eqs. 2.44, "
+          "M(r) = M r^3/(r^2+b^2)^(3/2) (Plummer 1911, Binney & Tremaine 2008 eqs. 2.44, "
           "from memory)",
           "[components]") {
   const auto [m, b] = GENERATE(std::pair{1e10, 0.3}, std::pair{5e10, 3.0}, std::pair{1e12, 20.0});
@@ -526,7 +526,7 @@ TEST_CASE("Hernquist: v_c^2 = G M r / (r + a)^2 and M(r) = M r^2/(r + a)^2 (Hern
 }
 
 TEST_CASE("Isochrone: v_c^2 = G M r^2 / ((b + s)^2 s), s = sqrt(b^2 + r^2), and rho(0) = "
-          "3M/(16 pi b^3) (Henon 1959; Binney & Tremaine 2008 §2.2.2d, from memory)",
+          "3M/(16 pi b^3) (Henon 1959, Binney & Tremaine 2008 §2.2.2d, from memory)",
           "[components]") {
   const auto [m, b] = GENERATE(std::pair{1e10, 0.3}, std::pair{1e11, 2.5}, std::pair{1e12, 10.0});
   const ComponentShape s = Isochrone::make(m, b);
@@ -588,7 +588,7 @@ TEST_CASE("Critical density: 3 H0^2 / (8 pi G) = 277.5366 h^2 Msun/kpc^3 (PDG va
 }
 
 TEST_CASE("Miyamoto-Nagai: midplane v_c^2 = G M R^2 / (R^2 + (a+b)^2)^(3/2) (Miyamoto & Nagai "
-          "1975, PASJ 27, 533; Binney & Tremaine 2008 §2.3.1, from memory)",
+          "1975, PASJ 27, 533, Binney & Tremaine 2008 §2.3.1, from memory)",
           "[components]") {
   const auto [m, a, b] = GENERATE(std::tuple{6.8e10, 3.0, 0.28}, std::tuple{5e10, 6.5, 0.26},
                                   std::tuple{1e11, 15.0, 3.0}, std::tuple{2e10, 0.0, 1.0});
@@ -619,7 +619,7 @@ TEST_CASE("Miyamoto-Nagai with a = 0 is a Plummer sphere of scale b (Miyamoto & 
 }
 
 TEST_CASE("Miyamoto-Nagai: total mass from Gauss's theorem at large r and from the volume "
-          "integral of rho (Gauss's theorem; Miyamoto & Nagai 1975)",
+          "integral of rho (Gauss's theorem, Miyamoto & Nagai 1975)",
           "[components]") {
   const auto [m, a, b] = GENERATE(std::tuple{6.8e10, 3.0, 0.28}, std::tuple{1e11, 15.0, 3.0});
   const auto mn = MiyamotoNagai::make(m, a, b);
@@ -677,7 +677,7 @@ TEST_CASE("Logarithmic: midplane v_c^2 = v0^2 R^2 / (R_c^2 + R^2) for any q (Bin
 TEST_CASE(
     "Burkert: rho(0) = rho0, rho(r0) = rho0/4 and M(r) = 2 pi rho0 r0^3 [ln(1+x) + "
     "ln(1+x^2)/2 - atan x] equal to the integral of its density (Burkert 1995, ApJL 447, L25, "
-    "from memory; Gauss-Kronrod quadrature)",
+    "from memory, Gauss-Kronrod quadrature)",
     "[components]") {
   const auto [rho0, r0] = GENERATE(std::pair{3e8, 0.5}, std::pair{5e7, 3.0}, std::pair{1e7, 12.0});
   const auto k = Burkert::make(rho0, r0);
@@ -695,7 +695,7 @@ TEST_CASE(
 }
 
 TEST_CASE("Power law with cut-off: total_mass() = enclosed_mass(r -> inf) = integral of rho, and "
-          "rho(r1) = rho1 exp(-(r1/rc)^2) (definition in power_law_cutoff.hpp; Gauss-Kronrod "
+          "rho(r1) = rho1 exp(-(r1/rc)^2) (definition in power_law_cutoff.hpp, Gauss-Kronrod "
           "quadrature)",
           "[components]") {
   const auto [rho1, r1, alpha, rc] =
@@ -797,7 +797,7 @@ TEST_CASE("Validation: zero, negative, NaN and infinite masses and scales throw 
 // Miyamoto & Nagai (1975): a = 0 is Plummer's sphere; Binney & Tremaine (2008) §2.3.2: R_c = 0
 // is the scale-free logarithmic potential; alpha = 0 is a Gaussian sphere.
 TEST_CASE("Validation: Miyamoto-Nagai a, logarithmic core and power-law slope accept 0 and reject "
-          "negative, NaN and infinite values (Miyamoto & Nagai 1975; Binney & Tremaine 2008)",
+          "negative, NaN and infinite values (Miyamoto & Nagai 1975, Binney & Tremaine 2008)",
           "[components]") {
   CHECK_NOTHROW((void)MiyamotoNagai::make(1e10, 0.0, 0.3));
   CHECK_NOTHROW((void)Logarithmic::make(220, 0.0, 1.0));
@@ -827,7 +827,7 @@ TEST_CASE("Validation: logarithmic flattening below 1/sqrt(2) throws, since the 
   }
 }
 
-TEST_CASE("Validation: power-law slope alpha >= 2 throws (the mass inside any r diverges; "
+TEST_CASE("Validation: power-law slope alpha >= 2 throws (the mass inside any r diverges, "
           "definition of M(r))",
           "[components]") {
   for (double alpha : {2.0, 2.5, 3.0, 10.0})
@@ -837,7 +837,7 @@ TEST_CASE("Validation: power-law slope alpha >= 2 throws (the mass inside any r 
 }
 
 TEST_CASE("Validation: Allen-Santillan exponent outside (1, 3) throws (M(r) ~ r^gamma at small r "
-          "and ~ r at large r need 1 < gamma < 3; Allen & Santillan 1991)",
+          "and ~ r at large r need 1 < gamma < 3, Allen & Santillan 1991)",
           "[components]") {
   for (double g : {0.5, 1.0, 3.0, 4.0})
     CHECK(thrown_key([&] { (void)AllenSantillanHalo::make(1e11, 12, g, 100); }) == "exponent");

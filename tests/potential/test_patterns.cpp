@@ -235,7 +235,7 @@ TEST_CASE("Patterns rotate rigidly at their pattern speed, in the sense of Galac
 }
 
 TEST_CASE("Logarithmic spiral arms trail and sit at the stated phase: at R_ref the potential "
-          "trough is at psi = phase; farther out it lies at smaller psi (B&T 2008 §6.1.1)",
+          "trough is at psi = phase, farther out it lies at smaller psi (B&T 2008 §6.1.1)",
           "[patterns]") {
   const Model m =
       with_pattern(make_pattern(LogSpiral::make(2, 12, 8, INFINITY, 1, INFINITY, 1000), 25, 30));

@@ -87,7 +87,7 @@ TEST_CASE("A run writes one self-describing snapshot file: provenance, model, sn
 }
 
 TEST_CASE("An interrupted run resumes from its last snapshot and ends with the same bits as an "
-          "uninterrupted run; a damaged part is redone",
+          "uninterrupted run, a damaged part is redone",
           "[run]") {
   for (const std::string method : {"leapfrog", "mclachlan4", "dopri5"}) {
     INFO(method);

@@ -60,7 +60,7 @@ radius_bins_kpc = [4, 8, 12]
 } // namespace
 
 TEST_CASE("A whole run writes every stage into one folder, reuses finished stages on a rerun and "
-          "redoes them when forced; runs of two models are set side by side",
+          "redoes them when forced, runs of two models are set side by side",
           "[run]") {
   const fs::path d = fs::temp_directory_path() / "undertow-whole-run";
   fs::remove_all(d);

@@ -39,7 +39,7 @@ TEST_CASE("ICRS to Galactic agrees with ERFA eraIcrs2g for 10^4 random direction
 }
 
 TEST_CASE("The defining points of the Hipparcos Galactic frame: the NGP at RA 192.85948, "
-          "Dec 27.12825 has b = 90 deg; the NCP has l = 122.93192 deg; the Galactic centre "
+          "Dec 27.12825 has b = 90 deg, the NCP has l = 122.93192 deg, the Galactic centre "
           "direction is RA 266.40499, Dec -28.93617 (ESA 1997 vol. 1 §1.5.3, from memory)",
           "[sky]") {
   double l, b;
@@ -55,7 +55,7 @@ TEST_CASE("The defining points of the Hipparcos Galactic frame: the NGP at RA 19
 }
 
 TEST_CASE("Proper motions rotate with the frame: a finite-difference of the transformed "
-          "position along the motion gives the same (mu_l*, mu_b); the inverse returns the input",
+          "position along the motion gives the same (mu_l*, mu_b), the inverse returns the input",
           "[sky]") {
   std::mt19937_64 rng(2);
   std::uniform_real_distribution<double> u(-1, 1), a(0, 2 * units::pi), pm(-10, 10);

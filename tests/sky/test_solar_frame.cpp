@@ -44,7 +44,7 @@ TEST_CASE("Observables -> Galactocentric -> observables round-trips to 1e-9", "[
 }
 
 TEST_CASE("The Sun sits at (-sqrt(R0^2 - z^2), 0, z_sun) and moves with (U, Theta0 + V, W) "
-          "(conventions; astropy Galactocentric definition)",
+          "(conventions, astropy Galactocentric definition)",
           "[sky]") {
   const SolarFrame f = frames(1);
   const auto s = sun(f);
@@ -76,7 +76,7 @@ TEST_CASE("A source on the local circular orbit has heliocentric velocity minus 
   CHECK(g.r[1] == Approx(1.0).epsilon(1e-12)); // l = 90 deg is +y
 }
 
-TEST_CASE("LSR: 20 km/s toward the apex and -20 km/s away from it; the component form "
+TEST_CASE("LSR: 20 km/s toward the apex and -20 km/s away from it, the component form "
           "(10.3, 15.3, 7.7) km/s agrees with the apex form to 0.06 km/s everywhere "
           "(Standard Solar Motion, common practice)",
           "[sky]") {

@@ -129,7 +129,7 @@ strength = 0.1
   CHECK_THROWS_WITH(sweep::parse_key_path("a.b."), Contains("ends with '.'"));
 }
 
-TEST_CASE("Grid: every combination, first parameter slowest; ranges", "[sweep]") {
+TEST_CASE("Grid: every combination, first parameter slowest, ranges", "[sweep]") {
   sweep::Parameter a, b;
   a.values = toml::array{1, 2};
   b.values = toml::array{"x", "y", "z"};

@@ -57,7 +57,7 @@ TEST_CASE("Disk radii follow Sigma ~ exp(-R/R_d) between R_min and R_max: sample
 }
 
 TEST_CASE("sech^2 vertical profile: var(z) = pi^2 h^2 / 12 (the logistic distribution of scale "
-          "h/2); exponential profile: var(z) = 2 h^2",
+          "h/2), exponential profile: var(z) = 2 h^2",
           "[tracers]") {
   const auto m = demo();
   tracers::DiskPopulation d;

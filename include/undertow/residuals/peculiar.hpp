@@ -10,6 +10,7 @@
 #include <string>
 #include <vector>
 
+#include "undertow/fit/distance_prior.hpp"
 #include "undertow/residuals/catalog.hpp"
 #include "undertow/sky/lsr.hpp"
 #include "undertow/sky/solar_frame.hpp"
@@ -23,12 +24,29 @@ struct RotationCurve {
   double at(double R) const;
 };
 
+// One set of Galactic parameters (a posterior sample of a kinematic fit).
+struct GalacticDraw {
+  sky::SolarFrame sun;
+  RotationCurve rotation;
+};
+
 struct ResidualSettings {
   sky::SolarFrame sun;
   RotationCurve rotation;
   sky::LsrForm lsr = sky::LsrForm::apex;
-  enum class Distance { inverse, edsd, edsd_median } distance = Distance::inverse;
+  // inverse: 1/ϖ, with Monte Carlo draws of perturbed parallaxes. The others take the distance
+  // from the posterior p(d | ϖ, prior) and draw their Monte Carlo distances from it
+  // (fit::DistancePosterior): edsd (its mode) and edsd-median with the exponentially decreasing
+  // space density prior of length edsd_length_kpc; posterior-median with `prior` (uniform space
+  // density in a range, an exponential disk, or a table: docs/fit.md says which suits which
+  // sources).
+  enum class Distance { inverse, edsd, edsd_median, posterior_median } distance = Distance::inverse;
   double edsd_length_kpc = 1.35;
+  fit::DistancePrior prior;
+  double parallax_offset_mas = 0; // global zero point: measured = true + offset (+ the catalog's)
+  // When not empty, Monte Carlo draw k takes its Galactic parameters from entry k % size (the
+  // posterior of a kinematic fit), and the nominal values use `sun` and `rotation`.
+  std::vector<GalacticDraw> galactic_draws;
   double min_parallax_snr = 0; // sources below are left out (listed in the result)
   int draws = 1000;            // Monte Carlo draws per source
   std::uint64_t seed = 1;
@@ -55,7 +73,7 @@ std::array<double, 3> peculiar_motion(const sky::Observed& o, double distance_kp
                                       const ResidualSettings& s, double* R_out = nullptr,
                                       double* psi_out = nullptr, double* z_out = nullptr);
 
-// "inverse", "edsd-median", "edsd-mode"; throws InputError for any other name.
+// "inverse", "edsd-median", "edsd-mode", "posterior-median"; throws InputError otherwise.
 ResidualSettings::Distance distance_from_name(const std::string& name);
 
 ResidualResult compute_residuals(const Catalog& c, const ResidualSettings& s);

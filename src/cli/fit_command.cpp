@@ -1,0 +1,110 @@
+#include "fit_command.hpp"
+
+#include <cmath>
+#include <filesystem>
+#include <iostream>
+
+#include "long_run.hpp"
+#include "undertow/detail/kernel.hpp"
+#include "undertow/fit/report.hpp"
+#include "undertow/io/table.hpp"
+#include "undertow/io/text_file.hpp"
+
+namespace undertow::cli {
+
+void add_fit_command(CLI::App& app, FitArgs& a) {
+  a.command = app.add_subcommand(
+      "fit", "Fit R0, Theta0, the solar motion, the rotation curve and the sources' mean motion "
+             "to a catalog in the space of its measurements (distances marginalised), and "
+             "sample the posterior");
+  a.command->add_option("fitfile", a.fit_file, "Fit file (TOML, docs/fit.md)")->required();
+  a.command->add_option("--catalog", a.catalog, "Catalog to fit instead of the fit file's");
+  a.command->add_option("-o,--output", a.output, "Output folder (default: <fit file>-fit)");
+  a.command->add_option("--threads", a.threads, "OpenMP threads")->check(CLI::Range(1, 4096));
+}
+
+std::optional<int> run_fit_command(const FitArgs& a) {
+  if (!a.command || !a.command->parsed()) return std::nullopt;
+  using namespace undertow::fit;
+  if (a.threads > 0) omp_set_num_threads(a.threads);
+  install_stop_handlers();
+  FitFile f = load_fit_file(a.fit_file);
+  if (!a.catalog.empty()) f.spec.catalog_path = a.catalog;
+  const std::string folder =
+      a.output.empty() ? std::filesystem::path(a.fit_file).stem().string() + "-fit" : a.output;
+  if (std::filesystem::exists(folder) && !std::filesystem::is_directory(folder))
+    throw InputError(SourcePlace{folder, 0, 0, {}}, "the output exists and is not a folder");
+  const auto cat = residuals::read_catalog(f.spec.catalog_path);
+  const auto sel = select_sources(f, cat);
+  for (const auto& e : sel.excluded)
+    std::cout << "left out: " << e << "\n";
+  // the range of the global parallax zero point the quadrature must cover
+  Likelihood::Offset off;
+  for (const auto& q : f.spec.params)
+    if (q.param == Param::parallax_offset) {
+      off.value = q.value;
+      if (q.free) {
+        off.free = true;
+        const auto& p = q.prior;
+        off.min = std::isfinite(p.min) ? p.min : p.mean - 5 * p.sigma;
+        off.max = std::isfinite(p.max) ? p.max : p.mean + 5 * p.sigma;
+        if (p.kind == Prior::Kind::flat && !(std::isfinite(p.min) && std::isfinite(p.max)))
+          throw InputError(q.place, "a free parallax zero point needs bounds (min, max) or a "
+                                    "Gaussian prior");
+      }
+    }
+  const Likelihood L(sel.used, f.spec.model, off);
+  std::vector<std::string> warnings;
+  {
+    // the quadrature must have converged: ln L with twice the nodes at the start values
+    KinematicModel m2 = f.spec.model;
+    m2.nodes = std::min(1024, 2 * m2.nodes);
+    const Likelihood L2(sel.used, m2, off);
+    const auto free = free_params(f.spec);
+    std::vector<double> x;
+    for (Param p : free)
+      for (const auto& q : f.spec.params)
+        if (q.param == p) x.push_back(q.value);
+    const auto p = full_from_free(f.spec, free, x.data());
+    const double d = std::fabs(L(p) - L2(p));
+    if (d > 0.1)
+      warnings.push_back("ln L changes by " + detail::num(d) + " from " +
+                         std::to_string(f.spec.model.nodes) + " to " + std::to_string(m2.nodes) +
+                         " quadrature nodes at the start values: raise [distances] nodes");
+  }
+  const bool tty = show_progress();
+  const auto progress = [&](const std::string& stage, long done, long total) {
+    if (!tty) return;
+    if (stage == "sampling" && done % 100 != 0) return;
+    std::cerr << "\r" << stage << ": " << done << " / " << total << " (at most)   " << std::flush;
+  };
+  std::cout << "fitting " << sel.used.sources.size() << " sources of " << f.spec.catalog_path
+            << " (" << free_params(f.spec).size() << " free parameters)\n";
+  auto r = run_fit(f.spec, L, &stop_flag(), progress);
+  if (tty) std::cerr << "\n";
+  if (r.interrupted) {
+    std::cerr << "undertow: interrupted after " << r.steps << " steps; nothing written (a fit "
+              << "takes seconds to minutes: run it again)\n";
+    return 130;
+  }
+  r.warnings.insert(r.warnings.begin(), warnings.begin(), warnings.end());
+  if (!r.converged && !f.spec.sampler.accept_unconverged)
+    throw InputError(SourcePlace{f.spec.file, 0, 0, "sampler"},
+                     "the chain has not converged after " + std::to_string(r.steps) +
+                         " steps (largest autocorrelation time " + detail::num(r.diag.tau_max) +
+                         " steps, split-R̂ " + detail::num(r.diag.r_hat_max) + "); about " +
+                         std::to_string(r.more_steps_needed) +
+                         " more steps are needed: raise steps_max, or set accept_unconverged = "
+                         "true to write it anyway (marked NOT CONVERGED); nothing written");
+  const auto src = source_results(f.spec, sel.used, L, r);
+  const auto files = write_fit_outputs(folder, f, sel, r, src);
+  std::cout << io::read_text_file(folder + "/summary.txt");
+  for (const auto& w : r.warnings)
+    std::cerr << "warning: " << w << "\n";
+  std::cout << "wrote " << folder << "/ (parameters, correlations, sources, kinematic-distances as "
+            << "CSV, Markdown and LaTeX; fit.h5; summary.txt) in " << detail::num(r.seconds)
+            << " s\n";
+  return 0;
+}
+
+} // namespace undertow::cli
