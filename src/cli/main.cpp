@@ -449,6 +449,8 @@ int main(int argc, char** argv) {
 
   undertow::cli::FitArgs fit;
   undertow::cli::add_fit_command(app, fit);
+  undertow::cli::MockArgs mock;
+  undertow::cli::add_mock_command(app, mock);
 
   undertow::cli::SweepArgs sweep;
   undertow::cli::add_sweep_commands(app, sweep);
@@ -457,6 +459,7 @@ int main(int argc, char** argv) {
   try {
     if (const auto code = undertow::cli::run_sweep_command(sweep)) return *code;
     if (const auto code = undertow::cli::run_fit_command(fit)) return *code;
+    if (const auto code = undertow::cli::run_mock_command(mock)) return *code;
     if (t->parsed()) return run_tabulate(tab);
     if (ig->parsed()) return run_integrate(integ);
     if (rs->parsed()) return run_residuals(ra);

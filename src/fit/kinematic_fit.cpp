@@ -272,9 +272,18 @@ FitResult run_fit(const FitSpec& s, const Likelihood& L, const std::atomic<bool>
       if (lc.info() == Eigen::Success) Lc = lc.matrixL();
     }
   }
-  if (!Lc.size())
-    r.warnings.push_back("the posterior is not curved like a Gaussian at its maximum (a bound "
-                         "or a flat direction); the walkers start in a small box instead");
+  if (!Lc.size()) {
+    // at a bound or along a flat direction: each parameter's own curvature where it has one
+    Lc = Eigen::MatrixXd::Zero(N, N);
+    for (std::size_t k = 0; k < nf; ++k) {
+      auto p1 = x, m1 = x;
+      p1[k] += h[k], m1[k] -= h[k];
+      const double c = -(f(p1) - 2 * best + f(m1)) / (h[k] * h[k]);
+      Lc(long(k), long(k)) = std::isfinite(c) && c > 0 ? 1 / std::sqrt(c) : 1e-2 * scale0[k];
+    }
+    r.notes.push_back("the posterior is not curved like a Gaussian at its maximum (a bound or a "
+                      "flat direction): the walkers start from each parameter's own curvature");
+  }
   r.map_x = x;
   r.map_ln_posterior = best;
   const int walkers = s.sampler.walkers > 0 ? s.sampler.walkers
@@ -351,6 +360,26 @@ FitResult run_fit(const FitSpec& s, const Likelihood& L, const std::atomic<bool>
                      : std::isfinite(pr.max - pr.min) ? (pr.max - pr.min) / std::sqrt(12.0)
                                                       : INFINITY;
     r.summary.push_back(sm);
+    // a posterior that piles up against a bound is not a measurement: say so
+    if (std::isfinite(pr.min) && std::isfinite(pr.max)) {
+      const double edge = 0.01 * (pr.max - pr.min);
+      std::size_t lo_n = 0, hi_n = 0;
+      for (double x : v)
+        lo_n += x < pr.min + edge, hi_n += x > pr.max - edge;
+      for (const auto& [count, bound] : {std::pair{lo_n, pr.min}, std::pair{hi_n, pr.max}})
+        if (double(count) > 0.05 * double(ns) && r.free[k] == Param::outlier_fraction &&
+            bound == 0)
+          r.notes.push_back("outlier_fraction is consistent with no outliers: quote its 84 % "
+                            "quantile, " + detail::num(sm.hi) + ", as an upper limit");
+        else if (double(count) > 0.05 * double(ns))
+          r.warnings.push_back(
+              std::string(param_info(r.free[k]).key) + ": " +
+              detail::num(100.0 * double(count) / double(ns)) +
+              " % of the posterior lies against the prior's bound " + detail::num(bound) +
+              ": the data want a value outside the range given, or the model does not describe "
+              "them (coherent streaming, a wrong rotation-curve form); do not quote this "
+              "interval as a measurement");
+    }
   }
   r.correlation.assign(nf * nf, 0.0);
   for (std::size_t a = 0; a < nf; ++a)

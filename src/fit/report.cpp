@@ -408,6 +408,8 @@ std::vector<std::string> write_fit_outputs(const std::string& folder, const FitF
     o << "; " << f.spec.model.nodes << " quadrature nodes per source\n" << status << "\n\n";
     io::write_table(o, pt, io::TableFormat::markdown);
     o << "\n" << sentence << "\n";
+    for (const auto& n : r.notes)
+      o << "note: " << n << "\n";
     for (const auto& w : r.warnings)
       o << "warning: " << w << "\n";
     s.commit();

@@ -1,7 +1,9 @@
 #include "undertow/fit/simulate.hpp"
 
+#include <algorithm>
 #include <cmath>
 
+#include "undertow/error.hpp"
 #include "undertow/tracers/random.hpp"
 #include "undertow/units.hpp"
 
@@ -28,15 +30,29 @@ residuals::Catalog simulate_catalog(const KinematicTruth& t) {
   snap.tracers.resize(n);
   std::vector<double> weights(n);
   const double tanp = std::tan(t.pitch_deg * units::deg);
+  const double dmin = t.distance_min_kpc, dmax = t.distance_max_kpc, hz = t.scale_height_kpc;
+  const double zmax = std::min(dmax, 12 * hz), rmax = r0 + dmax;
+  const double cos_lmin = std::cos(t.longitude_min_deg * units::deg);
   for (std::size_t i = 0; i < n; ++i) {
     tracers::TracerStream rng(t.seed, i, 0x517);
-    // uniform in area within the annulus around the Sun
-    const double d = std::sqrt(t.distance_min_kpc * t.distance_min_kpc +
-                               rng.uniform() * (t.distance_max_kpc * t.distance_max_kpc -
-                                                t.distance_min_kpc * t.distance_min_kpc));
-    const double l = 2 * units::pi * rng.uniform();
-    const double x = -r0 + d * std::cos(l), y = d * std::sin(l);
-    const double z = t.scale_height_kpc * rng.normal();
+    // rejection from a uniform slab: volume density exp(-R/h_R - |z|/h_z) inside the range
+    double x = 0, y = 0, z = 0;
+    for (int attempt = 0;; ++attempt) {
+      const double dp = dmax * std::sqrt(rng.uniform()), l = 2 * units::pi * rng.uniform();
+      x = -r0 + dp * std::cos(l), y = dp * std::sin(l);
+      z = zmax * (2 * rng.uniform() - 1);
+      const double d = std::sqrt(dp * dp + z * z), R = std::hypot(x, y);
+      const double accept = std::exp(-std::fabs(z) / hz) *
+                            (t.disk_scale_length_kpc > 0
+                                 ? std::exp(-(R - std::max(0.0, r0 - dmax)) / t.disk_scale_length_kpc)
+                                 : 1.0);
+      // direction cut: angle between the line of sight and the direction of the centre
+      const double toward_centre = (dp * std::cos(l)) / std::max(d, 1e-12);
+      if (d >= dmin && d <= dmax && R < rmax && toward_centre <= cos_lmin &&
+          rng.uniform() < accept)
+        break;
+      if (attempt > 100000) throw InputError("simulate: the truth's volume selects nothing");
+    }
     const double R = std::hypot(x, y), phi = std::atan2(y, x);
     double U = at(Param::mean_u), V = at(Param::mean_v), W = at(Param::mean_w);
     if (t.model.anisotropic) {
@@ -59,9 +75,7 @@ residuals::Catalog simulate_catalog(const KinematicTruth& t) {
     ps.vx[i] = (-U * x + vphi * y) / R;
     ps.vy[i] = (-U * y - vphi * x) / R;
     ps.vz[i] = W;
-    weights[i] = R < t.radius_min_kpc           ? 0.0
-                 : t.disk_scale_length_kpc > 0 ? std::exp(-R / t.disk_scale_length_kpc)
-                                               : 1.0;
+    weights[i] = 1.0;
   }
   observe::ObservationSettings s;
   s.sun = truth_sun(t);

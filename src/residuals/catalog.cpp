@@ -82,9 +82,10 @@ std::string catalog_header() {
          "pmdec_masyr,pmdec_err_masyr,vlsr_kms,vlsr_err_kms,corr_pmra_pmdec,group";
 }
 
-void write_catalog(const std::string& path, const Catalog& c) {
+void write_catalog(const std::string& path, const Catalog& c, const std::string& comment) {
   io::AtomicFile f(path);
   auto& o = f.stream();
+  if (!comment.empty()) o << "# " << comment << "\n";
   o << "# undertow catalog: columns and units in docs/catalog-format.md\n"
     << catalog_header() << "\n";
   char b[512];

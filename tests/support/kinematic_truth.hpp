@@ -20,9 +20,15 @@ inline fit::KinematicTruth standard_truth(std::size_t sources, std::uint64_t see
   p[std::size_t(Param::mean_v)] = -9.6;
   p[std::size_t(Param::mean_w)] = 0;
   p[std::size_t(Param::dispersion)] = 7;
+  p[std::size_t(Param::disk_scale_length)] = 5;
+  p[std::size_t(Param::disk_scale_height)] = 0.05;
   t.model.rotation = fit::RotationForm::linear;
-  t.model.prior.distance_min_kpc = 1;
-  t.model.prior.distance_max_kpc = 15;
+  // the fit's prior is the space density the sources are drawn from
+  t.model.prior.kind = fit::DistancePrior::Kind::disk;
+  t.model.prior.distance_min_kpc = t.distance_min_kpc;
+  t.model.prior.distance_max_kpc = t.distance_max_kpc;
+  t.disk_scale_length_kpc = 5;
+  t.scale_height_kpc = 0.05;
   t.sources = sources;
   t.errors.kind = observe::ErrorModel::Kind::fixed;
   t.errors.parallax_mas = 0.012;
@@ -64,7 +70,9 @@ inline fit::FitSpec standard_spec(const fit::KinematicTruth& t, double v_sun_pri
               setting(Param::mean_v, true, 0, K::uniform, -40, 40),
               setting(Param::mean_w, false, 0),
               setting(Param::dispersion, true, 5, K::uniform, 0.5, 30),
-              setting(Param::parallax_offset, false, 0)};
+              setting(Param::parallax_offset, false, 0),
+              setting(Param::disk_scale_length, false, 5),
+              setting(Param::disk_scale_height, false, 0.05)};
   for (auto& q : s.params)
     if (q.prior.kind == K::gaussian) q.prior.min = -1e3, q.prior.max = 1e3;
   return s;

@@ -1,7 +1,9 @@
 #pragma once
 // Catalogs of young sources simulated from a known kinematic truth and observed by undertow's own
-// mock observation (observe::observe): sources scattered over the disk between two heliocentric
-// distances (uniform in area, or weighted by an exponential disk), moving on circular orbits of
+// mock observation (observe::observe): sources drawn from the space density of the fit's disk
+// prior, exp(-R/h_R - |z|/h_z) (uniform in R for h_R = 0), between two heliocentric distances and
+// away from the direction of the Galactic centre (a cut on direction only, so the distances of the
+// sources still follow the prior exactly), moving on circular orbits of
 // the truth's rotation curve plus its mean peculiar motion, its Gaussian dispersion and,
 // optionally, a spiral streaming pattern; observed from the truth's Sun with the given errors and
 // parallax signal-to-noise cut. For injection-and-recovery tests, benchmarks and examples.
@@ -17,10 +19,10 @@ struct KinematicTruth {
   FullParams params{};                            // R0, Θ0, solar motion, mean motion, σ...
   KinematicModel model;                           // its rotation form (not "model")
   std::size_t sources = 200;
-  double distance_min_kpc = 2, distance_max_kpc = 12; // true heliocentric, in the plane
-  double radius_min_kpc = 4;                      // no source closer to the centre
-  double disk_scale_length_kpc = 0;               // 0: uniform in area
-  double scale_height_kpc = 0.05;                 // Gaussian thickness
+  double distance_min_kpc = 2, distance_max_kpc = 12; // true heliocentric distance
+  double longitude_min_deg = 30; // no source within this angle of the Galactic centre's direction
+  double disk_scale_length_kpc = 5; // h_R; 0: uniform in R
+  double scale_height_kpc = 0.05;   // h_z of the exponential in |z|
   // Spiral streaming: δU_s = A cos χ, δV_s = A sin χ with χ = m (φ − ln(R/R0) / tan p), about
   // the amplitude a spiral arm's gas response makes (common practice: 5–15 km/s).
   double stream_kms = 0;

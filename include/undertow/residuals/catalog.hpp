@@ -33,7 +33,8 @@ struct Catalog {
 Catalog read_catalog(const std::string& path);
 Catalog parse_catalog(const std::string& text, const std::string& source_name);
 // Writes a catalog in the same format (mock catalogs use this), atomically.
-void write_catalog(const std::string& path, const Catalog& c);
+// comment: extra '# ' lines at the top (provenance), may be empty.
+void write_catalog(const std::string& path, const Catalog& c, const std::string& comment = {});
 std::string catalog_header();
 
 } // namespace undertow::residuals
