@@ -62,8 +62,7 @@ std::optional<int> run_fit_command(const FitArgs& a) {
   if (!a.catalog.empty()) f.spec.catalog_path = a.catalog;
   const std::string folder =
       a.output.empty() ? std::filesystem::path(a.fit_file).stem().string() + "-fit" : a.output;
-  if (std::filesystem::exists(folder) && !std::filesystem::is_directory(folder))
-    throw InputError(SourcePlace{folder, 0, 0, {}}, "the output exists and is not a folder");
+  check_output_folder(folder); // before minutes of work, not after
   const auto cat = residuals::read_catalog(f.spec.catalog_path);
   const auto sel = select_sources(f, cat);
   for (const auto& e : sel.excluded)

@@ -2,6 +2,7 @@
 #include <CLI/CLI.hpp>
 #include <cmath>
 #include <iostream>
+#include <memory>
 #include <optional>
 #include <sstream>
 
@@ -139,8 +140,10 @@ struct ResidualArgs {
 };
 
 // The Sun and rotation curve of one parameter vector of a kinematic fit.
-undertow::residuals::GalacticDraw galactic_of(const undertow::fit::KinematicModel& m,
-                                              const undertow::fit::FullParams& p) {
+undertow::residuals::GalacticDraw
+galactic_of(const std::shared_ptr<const undertow::fit::KinematicModel>& mp,
+            const undertow::fit::FullParams& p) {
+  const auto& m = *mp;
   using undertow::fit::Param;
   undertow::residuals::GalacticDraw g;
   g.sun.r0_kpc = p[std::size_t(Param::r0)];
@@ -150,7 +153,7 @@ undertow::residuals::GalacticDraw galactic_of(const undertow::fit::KinematicMode
   g.sun.v_sun_kms = p[std::size_t(Param::v_sun)];
   g.sun.w_sun_kms = p[std::size_t(Param::w_sun)];
   g.rotation.kind = undertow::residuals::RotationCurve::Kind::model;
-  g.rotation.model = [m, p](double R) { return m.theta(R, p); };
+  g.rotation.model = [mp, p](double R) { return mp->theta(R, p); }; // shares the model's table
   return g;
 }
 
@@ -161,6 +164,8 @@ int run_residuals(const ResidualArgs& a) {
   s.sun.z_sun_kpc = a.z_sun;
   s.sun.u_sun_kms = a.solar[0], s.sun.v_sun_kms = a.solar[1], s.sun.w_sun_kms = a.solar[2];
   std::string rot;
+  std::string lsr_name = a.lsr;
+  double parallax_offset = a.parallax_offset;
   std::optional<potential::Model> model;
   if (!a.galactic_from.empty()) {
     for (const char* o : {"--model", "--flat", "--slope", "--r0", "--z-sun", "--theta0",
@@ -169,13 +174,27 @@ int run_residuals(const ResidualArgs& a) {
         throw InputError(std::string(o) + " cannot be combined with --galactic-from (the fit "
                                           "gives the Galactic parameters)");
     const auto g = fit::read_galactic_parameters(a.galactic_from);
-    const auto nominal = galactic_of(g.model, g.median);
+    // the fit's LSR and parallax zero point come with it
+    const std::string fit_lsr = g.model.lsr == sky::LsrForm::apex ? "apex" : "components";
+    if (a.cmd->count("--lsr") && a.lsr != fit_lsr)
+      throw InputError("--lsr " + a.lsr + " contradicts the fit's LSR (" + fit_lsr + ") in " +
+                       a.galactic_from);
+    lsr_name = fit_lsr;
+    if (!a.cmd->count("--parallax-offset"))
+      parallax_offset = g.median[std::size_t(fit::Param::parallax_offset)];
+    if (!g.converged)
+      std::cerr << "warning: " << a.galactic_from
+                << " holds a fit that had NOT CONVERGED; its Galactic parameters are not a "
+                   "posterior\n";
+    const auto model = std::make_shared<const fit::KinematicModel>(g.model);
+    const auto nominal = galactic_of(model, g.median);
     s.sun = nominal.sun;
     s.rotation = nominal.rotation;
     if (a.marginalise)
       for (const auto& p : g.samples)
-        s.galactic_draws.push_back(galactic_of(g.model, p));
-    rot = "Galactic parameters from the kinematic fit " + a.galactic_from + " (" +
+        s.galactic_draws.push_back(galactic_of(model, p));
+    rot = "Galactic parameters from the " + std::string(g.converged ? "" : "NOT CONVERGED ") +
+          "kinematic fit " + a.galactic_from + " (" +
           (a.marginalise ? "marginalised over " + std::to_string(g.samples.size()) +
                                " posterior samples; nominal values at the median"
                          : std::string("posterior median")) +
@@ -209,9 +228,9 @@ int run_residuals(const ResidualArgs& a) {
   s.prior.disk_scale_height_kpc = a.disk_scales[1];
   if (s.prior.kind == fit::DistancePrior::Kind::table)
     throw InputError("--distance-prior table is for fit files (docs/fit.md)");
-  s.parallax_offset_mas = a.parallax_offset;
+  s.parallax_offset_mas = parallax_offset;
   s.min_parallax_snr = a.min_snr;
-  s.lsr = sky::lsr_form_from_name(a.lsr);
+  s.lsr = sky::lsr_form_from_name(lsr_name);
   s.draws = a.draws;
   s.seed = a.seed;
   const auto cat = residuals::read_catalog(a.catalog);
@@ -232,7 +251,7 @@ int run_residuals(const ResidualArgs& a) {
              detail::num(a.distance_range[1]) + "] kpc)")
                 .c_str()
           : "",
-      a.parallax_offset, a.lsr.c_str(), s.draws,
+      parallax_offset, lsr_name.c_str(), s.draws,
       static_cast<unsigned long long>(s.seed));
   const std::string prefix =
       a.prefix.empty() ? std::filesystem::path(a.catalog).stem().string() + "-residuals" : a.prefix;

@@ -50,8 +50,14 @@ ParamSetting read_param(const io::TableReader& r, const std::string& key, Param 
   ParamSetting s;
   s.param = p;
   s.place = r.place(key);
+  const auto domain = [&](const io::TableReader& where, const std::string& k, double v) {
+    if (!in_domain(p, v))
+      where.fail(k, "value " + detail::num(v) + " is outside what the parameter allows (" +
+                        (p == Param::outlier_fraction ? "[0, 1]" : "positive") + ")");
+  };
   if (n.is_number()) {
     s.value = r.number(key);
+    domain(r, key, s.value);
     return s;
   }
   const auto* t = n.as_table();
@@ -61,6 +67,7 @@ ParamSetting read_param(const io::TableReader& r, const std::string& key, Param 
   q.check_keys({"fixed", "start", "min", "max", "mean", "sigma"});
   if (q.has("fixed")) {
     s.value = q.number("fixed");
+    domain(q, "fixed", s.value);
     q.finish({"fixed"});
     return s;
   }
@@ -76,6 +83,8 @@ ParamSetting read_param(const io::TableReader& r, const std::string& key, Param 
     if (!(*sigma > 0)) q.fail("sigma", "a prior's width must be positive, got " + detail::num(*sigma));
     s.prior.kind = Prior::Kind::gaussian;
     s.prior.mean = *mean, s.prior.sigma = *sigma;
+    if (!(*mean >= s.prior.min && *mean <= s.prior.max))
+      q.fail("mean", "the Gaussian prior's mean lies outside its limits [min, max]");
   } else if (mn && mx) {
     s.prior.kind = Prior::Kind::uniform;
   }
@@ -84,7 +93,10 @@ ParamSetting read_param(const io::TableReader& r, const std::string& key, Param 
             : (mn && mx)   ? 0.5 * (*mn + *mx)
                            : (q.fail("", "a free parameter needs a start value (start = ...)"), 0.0);
   if (!(s.value >= s.prior.min && s.value <= s.prior.max))
-    q.fail("start", "the start value lies outside [min, max]");
+    q.fail(q.has("start") ? "start" : "", "the start value lies outside [min, max]");
+  if (!in_domain(p, s.value))
+    q.fail(q.has("start") ? "start" : "",
+           "the start value " + detail::num(s.value) + " is outside what the parameter allows");
   q.finish({"start", "min", "max", "mean", "sigma"});
   return s;
 }
@@ -98,14 +110,18 @@ FitFile parse_fit_file(const std::string& text, const std::string& name) {
   s.file = name;
   const toml::table root = io::parse_toml_text(text, name);
   io::TableReader r(root, name, "");
-  const std::vector<std::string> top{"catalog",  "lsr",     "radius_min_kpc", "rotation",
+  const std::vector<std::string> top{"catalog",  "lsr",     "longitude_min_deg", "rotation",
                                      "distances", "velocities", "sampler",   "parameters"};
   r.check_keys(top);
   s.catalog_path = io::path_beside(name, r.string("catalog"));
   KinematicModel& m = s.model;
   m.lsr = io::at_keys(r, [&] { return sky::lsr_form_from_name(r.string_or("lsr", "apex")); });
-  f.radius_min_kpc = r.number_or("radius_min_kpc", 4);
-  if (!(f.radius_min_kpc >= 0)) r.fail("radius_min_kpc", "must not be negative");
+  if (r.has("radius_min_kpc"))
+    r.fail("radius_min_kpc", "a cut in R biases the distances of the sources kept: use "
+                             "longitude_min_deg, a cut on direction alone");
+  f.longitude_min_deg = r.number_or("longitude_min_deg", 15);
+  if (!(f.longitude_min_deg >= 0 && f.longitude_min_deg < 90))
+    r.fail("longitude_min_deg", "must lie in [0, 90)");
 
   const toml::table empty;
   const auto sub = [&](const char* k) { return r.table(k) ? *r.table(k) : empty; };

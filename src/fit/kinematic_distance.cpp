@@ -4,6 +4,7 @@
 
 #include "undertow/sky/lsr.hpp"
 #include "undertow/sky/solar_frame.hpp"
+#include "undertow/units.hpp"
 
 namespace undertow::fit {
 
@@ -26,8 +27,11 @@ double circular_vlsr(double ra, double dec, double d, const KinematicModel& m, c
   sky::Observed o{ra, dec, 0, 0, 0};
   const auto g0 = sky::to_galactocentric(o, d, sun);
   const double x = g0.r[0], y = g0.r[1], R = std::hypot(x, y);
-  const double th = m.theta(R, p);
-  sky::Galactocentric g{g0.r, {th * y / R, -th * x / R, 0}};
+  // circular rotation plus the fitted mean motion (toward the centre, along rotation, up)
+  const double vphi = m.theta(R, p) + p[std::size_t(Param::mean_v)];
+  const double vin = p[std::size_t(Param::mean_u)];
+  sky::Galactocentric g{g0.r, {(vphi * y - vin * x) / R, (-vphi * x - vin * y) / R,
+                               p[std::size_t(Param::mean_w)]}};
   sky::Observed out;
   sky::from_galactocentric(g, sun, out);
   return sky::helio_to_lsr(out.vhelio_kms, ra, dec, m.lsr);
@@ -42,12 +46,16 @@ KinematicDistance kinematic_distance(double ra, double dec, double v, const Kine
   double dprev = h;
   double extreme = prev + v, dext = h;
   bool first = true;
-  const double v0 = prev + v;
+  // inside the solar circle (cos l > 0) v_LSR peaks at the tangent point: a maximum for
+  // sin l > 0, a minimum for sin l < 0
+  double l, b;
+  sky::icrs_to_galactic(ra * units::deg, dec * units::deg, l, b);
+  const bool inner = std::cos(l) > 0, up = std::sin(l) > 0;
   for (int i = 2; i <= n; ++i) {
     const double d = i * h, f = circular_vlsr(ra, dec, d, m, p) - v;
     const double vl = f + v;
     // the extreme of v_LSR with the sign of the first values (the terminal velocity)
-    if ((v0 >= 0 && vl > extreme) || (v0 < 0 && vl < extreme)) extreme = vl, dext = d;
+    if (inner && ((up && vl > extreme) || (!up && vl < extreme))) extreme = vl, dext = d;
     if ((prev < 0) != (f < 0)) {
       // bisection on the bracket
       double lo = dprev, hi = d, flo = prev;
@@ -64,7 +72,7 @@ KinematicDistance kinematic_distance(double ra, double dec, double v, const Kine
     }
     prev = f, dprev = d;
   }
-  if (dext < dmax - h) k.tangent_kpc = dext;
+  if (inner && dext < dmax - h) k.tangent_kpc = dext;
   if (first) {
     k.beyond_terminal = true;
     k.near_kpc = k.far_kpc = std::isfinite(k.tangent_kpc) ? k.tangent_kpc : NAN;

@@ -26,26 +26,6 @@ bool pinned(const FitSpec& s, Param p) {
   return !q || !q->free || q->prior.informative();
 }
 
-// Where a parameter must stay for the model to make sense.
-bool in_domain(Param p, double v) {
-  switch (p) {
-  case Param::r0:
-  case Param::model_scale:
-  case Param::disk_scale_length:
-  case Param::disk_scale_height:
-    return v > 0;
-  case Param::dispersion:
-  case Param::dispersion_u:
-  case Param::dispersion_v:
-  case Param::dispersion_w:
-    return v > 0;
-  case Param::outlier_fraction:
-    return v >= 0 && v <= 1;
-  default:
-    return std::isfinite(v);
-  }
-}
-
 ParamSummary summarise(std::vector<double> v) {
   ParamSummary s;
   if (v.empty()) return s;
@@ -155,6 +135,10 @@ FitResult run_fit(const FitSpec& s, const Likelihood& L, const std::atomic<bool>
   if (nf == 0)
     throw InputError(SourcePlace{s.file, 0, 0, "parameters"},
                      "every parameter is fixed: nothing to fit (make at least one free)");
+  if (s.sampler.walkers > 0 && s.sampler.walkers < int(2 * nf))
+    throw InputError(SourcePlace{s.file, 0, 0, "sampler.walkers"},
+                     "needs at least twice the number of free parameters (" +
+                         std::to_string(2 * nf) + "), or 0 for the default");
   if (const auto d = degeneracies(s); !d.empty()) {
     if (!s.accept_degenerate) throw InputError(SourcePlace{s.file, 0, 0, "parameters"}, d[0]);
     for (const auto& m : d)
@@ -370,8 +354,10 @@ FitResult run_fit(const FitSpec& s, const Likelihood& L, const std::atomic<bool>
         if (double(count) > 0.05 * double(ns) && r.free[k] == Param::outlier_fraction &&
             bound == 0)
           r.notes.push_back("outlier_fraction is consistent with no outliers: quote its 84 % "
-                            "quantile, " + detail::num(sm.hi) + ", as an upper limit");
-        else if (double(count) > 0.05 * double(ns))
+                            "quantile, " + detail::num(sm.hi) + ", as an upper limit"),
+              r.at_bound.push_back(r.free[k]);
+        else if (double(count) > 0.05 * double(ns) &&
+                 (r.at_bound.push_back(r.free[k]), true))
           r.warnings.push_back(
               std::string(param_info(r.free[k]).key) + ": " +
               detail::num(100.0 * double(count) / double(ns)) +
@@ -417,11 +403,14 @@ FitResult run_fit(const FitSpec& s, const Likelihood& L, const std::atomic<bool>
 std::string constraint_summary(const FitSpec& s, const FitResult& r) {
   std::string well, prior, weak;
   const std::size_t nf = r.free.size();
+  std::string bounded;
   for (std::size_t k = 0; k < nf; ++k) {
     const auto& m = r.summary[k];
     const std::string name = param_info(m.param).key;
     const double width = 0.5 * (m.hi - m.lo);
-    if (std::isfinite(m.prior_width) && width > 0.7 * m.prior_width)
+    if (std::find(r.at_bound.begin(), r.at_bound.end(), m.param) != r.at_bound.end())
+      bounded += (bounded.empty() ? "" : ", ") + name;
+    else if (std::isfinite(m.prior_width) && width > 0.7 * m.prior_width)
       prior += (prior.empty() ? "" : ", ") + name;
     else
       well += (well.empty() ? "" : ", ") + name + " (±" + detail::num(width) + " " +
@@ -439,6 +428,9 @@ std::string constraint_summary(const FitSpec& s, const FitResult& r) {
   if (!prior.empty())
     out += " Set mostly by their priors (the posterior is nearly as wide as the prior): " + prior +
            ".";
+  if (!bounded.empty())
+    out += " Against a prior's bound, so not measured (an upper or lower limit at most): " +
+           bounded + ".";
   if (!weak.empty())
     out += " Strongly correlated, so only a combination is well measured: " + weak + ".";
   out += " The derived Ω☉ = (Θ0 + V☉)/R0 = " + detail::num(r.derived[1].median) + " +" +
@@ -452,7 +444,7 @@ std::string constraint_summary(const FitSpec& s, const FitResult& r) {
   const bool vsun_free = std::find(r.free.begin(), r.free.end(), Param::v_sun) != r.free.end();
   if (vmean_free && vsun_free)
     out += " V☉ and V̄_s enter the data almost only through Θ0 + V☉ and Θ0 + V̄_s, so the lag "
-           "V̄_s is only as good as the prior on V☉ or Θ0.";
+           "V̄_s, and Θ0 itself, are only as good as the prior on V☉.";
   return out;
 }
 

@@ -200,8 +200,10 @@ double log_sum_exp(const double* v, int n) {
   return m + std::log(s);
 }
 
-// ln Φ(x), the standard normal CDF, without underflow for very negative x.
+// ln Φ(x), the standard normal CDF; below x = -30, where erfc underflows, the leading terms of
+// its asymptotic series (Abramowitz & Stegun 1964, 26.2.12).
 double ln_phi(double x) {
+  if (x < -30) return -0.5 * x * x - std::log(-x) - 0.5 * std::log(2 * units::pi) + std::log1p(-1 / (x * x));
   return std::log(0.5 * std::erfc(-x / std::sqrt(2.0)));
 }
 

@@ -46,6 +46,24 @@ Param param_from_key(const std::string& key, const SourcePlace& where) {
   throw InputError(where, "unknown parameter '" + key + "' (valid: " + valid + ")");
 }
 
+bool in_domain(Param p, double v) {
+  switch (p) {
+  case Param::r0:
+  case Param::model_scale:
+  case Param::disk_scale_length:
+  case Param::disk_scale_height:
+  case Param::dispersion:
+  case Param::dispersion_u:
+  case Param::dispersion_v:
+  case Param::dispersion_w:
+    return v > 0 && std::isfinite(v);
+  case Param::outlier_fraction:
+    return v >= 0 && v <= 1;
+  default:
+    return std::isfinite(v);
+  }
+}
+
 double Prior::log_density(double x) const {
   if (!(x >= min && x <= max)) return -INFINITY;
   if (kind == Kind::gaussian) {

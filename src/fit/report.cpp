@@ -3,7 +3,10 @@
 #include <algorithm>
 #include <cmath>
 #include <filesystem>
+#include <memory>
+#include <optional>
 #include <sstream>
+#include <unistd.h>
 
 #include "undertow/detail/kernel.hpp"
 #include "undertow/io/atomic_file.hpp"
@@ -35,7 +38,9 @@ FullParams start_params(const FitSpec& s) {
   return full_from_free(s, free, x.data());
 }
 
-residuals::ResidualSettings settings_for(const KinematicModel& m, const FullParams& p) {
+residuals::ResidualSettings settings_for(const std::shared_ptr<const KinematicModel>& mp,
+                                         const FullParams& p) {
+  const KinematicModel& m = *mp;
   residuals::ResidualSettings rs;
   rs.sun.r0_kpc = at(p, Param::r0);
   rs.sun.z_sun_kpc = at(p, Param::z_sun);
@@ -44,7 +49,7 @@ residuals::ResidualSettings settings_for(const KinematicModel& m, const FullPara
   rs.sun.v_sun_kms = at(p, Param::v_sun);
   rs.sun.w_sun_kms = at(p, Param::w_sun);
   rs.rotation.kind = residuals::RotationCurve::Kind::model;
-  rs.rotation.model = [m, p](double R) { return m.theta(R, p); };
+  rs.rotation.model = [mp, p](double R) { return mp->theta(R, p); }; // shares the model's table
   rs.lsr = m.lsr;
   return rs;
 }
@@ -61,27 +66,43 @@ constexpr double kLo = 0.15865525393145707, kHi = 0.8413447460685429;
 
 } // namespace
 
+// The fit's distance prior with the disk's scale lengths of the parameters p.
+DistancePrior prior_at(const KinematicModel& m, const FullParams& p) {
+  DistancePrior d = m.prior;
+  d.disk_scale_length_kpc = at(p, Param::disk_scale_length);
+  d.disk_scale_height_kpc = at(p, Param::disk_scale_height);
+  return d;
+}
+
 Selection select_sources(const FitFile& f, const residuals::Catalog& c) {
   Selection sel;
   sel.used.file = c.file;
   const FullParams p = start_params(f.spec);
-  const Geometry g{at(p, Param::r0), at(p, Param::z_sun)};
+  const auto& prior = f.spec.model.prior;
+  const double cos_cut = std::cos(f.longitude_min_deg * units::deg);
+  double omin = at(p, Param::parallax_offset), omax = omin;
+  for (const auto& q : f.spec.params)
+    if (q.param == Param::parallax_offset && q.free)
+      omin = std::isfinite(q.prior.min) ? q.prior.min : q.prior.mean - 5 * q.prior.sigma,
+      omax = std::isfinite(q.prior.max) ? q.prior.max : q.prior.mean + 5 * q.prior.sigma;
   for (const auto& s : c.sources) {
     const sky::Vec3 n = galactic_direction(s.ra_deg, s.dec_deg);
-    try {
-      const DistancePosterior post(s.parallax_mas, s.parallax_err_mas,
-                                   s.parallax_offset_mas + at(p, Param::parallax_offset), n.data(),
-                                   f.spec.model.prior, g);
-      double R, z;
-      galactocentric_rz(post.median(), n.data(), g.r0_kpc, g.z_sun_kpc, R, z);
-      if (R < f.radius_min_kpc) {
-        sel.excluded.push_back(s.name + ": at R = " + detail::num(R) + " kpc, inside radius_min_kpc = " +
-                               detail::num(f.radius_min_kpc) +
-                               " where circular rotation is no model (bar, bulge)");
-        continue;
-      }
-    } catch (const InputError& e) {
-      sel.excluded.push_back(s.name + ": " + e.what());
+    if (f.longitude_min_deg > 0 && n[0] > cos_cut) {
+      sel.excluded.push_back(s.name + ": within longitude_min_deg = " +
+                             detail::num(f.longitude_min_deg) +
+                             " deg of the Galactic centre's direction");
+      continue;
+    }
+    // the likelihood's own test: the parallax within 7 sigma of the prior's range
+    const double w = s.parallax_mas - s.parallax_offset_mas, sw = s.parallax_err_mas;
+    const double u_lo = std::max(1 / prior.distance_max_kpc, w - omax - 7 * sw);
+    const double u_hi =
+        std::min(prior.distance_min_kpc > 0 ? 1 / prior.distance_min_kpc : INFINITY, w - omin + 7 * sw);
+    if (!(u_hi > u_lo)) {
+      sel.excluded.push_back(s.name + ": parallax " + detail::num(s.parallax_mas) + " ± " +
+                             detail::num(sw) + " mas is more than 7 sigma from the prior's range " +
+                             detail::num(prior.distance_min_kpc) + "-" +
+                             detail::num(prior.distance_max_kpc) + " kpc");
       continue;
     }
     sel.used.sources.push_back(s);
@@ -116,10 +137,12 @@ std::vector<SourceResult> source_results(const FitSpec& s, const residuals::Cata
         pmean[i] += po[i] / double(thetas.size());
     }
   }
+  const auto model = std::make_shared<const KinematicModel>(s.model);
   std::vector<residuals::ResidualSettings> settings;
   for (const auto& th : thetas)
-    settings.push_back(settings_for(s.model, th));
-  const auto med_settings = settings_for(s.model, pm);
+    settings.push_back(settings_for(model, th));
+  const auto med_settings = settings_for(model, pm);
+  const DistancePrior med_prior = prior_at(s.model, pm);
   std::vector<SourceResult> out(used.sources.size());
   const long n = long(used.sources.size());
 #pragma omp parallel for schedule(dynamic)
@@ -129,9 +152,16 @@ std::vector<SourceResult> source_results(const FitSpec& s, const residuals::Cata
     res.name = src.name, res.group = src.group;
     res.outlier_probability = pmean[std::size_t(k)];
     const sky::Vec3 dir = galactic_direction(src.ra_deg, src.dec_deg);
-    const DistancePosterior post(src.parallax_mas, src.parallax_err_mas,
-                                 src.parallax_offset_mas + at(pm, Param::parallax_offset),
-                                 dir.data(), s.model.prior, g);
+    std::optional<DistancePosterior> opt;
+    try {
+      opt.emplace(src.parallax_mas, src.parallax_err_mas,
+                  src.parallax_offset_mas + at(pm, Param::parallax_offset), dir.data(), med_prior, g);
+    } catch (const InputError&) { // possible only at the edge of the range: no per-source result
+      res.distance_kpc = res.distance_lo_kpc = res.distance_hi_kpc = NAN;
+      res.uvw.fill(NAN), res.uvw_lo.fill(NAN), res.uvw_hi.fill(NAN);
+      continue;
+    }
+    const DistancePosterior& post = *opt;
     res.distance_kpc = post.median();
     res.distance_lo_kpc = post.quantile(kLo);
     res.distance_hi_kpc = post.quantile(kHi);
@@ -280,7 +310,7 @@ io::Table kinematic_table(const std::vector<SourceResult>& src) {
                {"far_kpc", "d_\\mathrm{far}", "d_far", "kpc", 6},
                {"kinematic_kpc", "d_\\mathrm{kin}", "d_kin", "kpc", 6},
                {"ratio", "d_\\mathrm{kin}/d_\\varpi", "d_kin/d_ϖ", "", 4},
-               {"beyond_terminal", "\\mathrm{beyond}", "beyond terminal", "", 1},
+               {"no_fit", "\\mathrm{no\\,fit}", "no fit", "", 1},
                {"factor_two", "\\times 2", "off by ≥ 2×", "", 1}};
   int flagged = 0, beyond = 0;
   for (const auto& s : src) {
@@ -290,12 +320,15 @@ io::Table kinematic_table(const std::vector<SourceResult>& src) {
     flagged += s.factor_two;
     beyond += s.kinematic.beyond_terminal;
   }
-  t.notes.push_back("Kinematic distance: where a circular orbit of the fitted rotation curve gives "
-                    "the measured v_LSR (of near and far, the one closer to the parallax distance; "
-                    "beyond the terminal velocity, the tangent point).");
+  t.notes.push_back("Kinematic distance: where the fitted rotation curve plus the fitted mean "
+                    "motion gives the measured v_LSR. Of near and far, the one closer to the "
+                    "parallax distance: the parallax resolves the ambiguity, so the count of "
+                    "factor-two cases is a lower bound. no_fit = 1: no distance gives the "
+                    "velocity (inside the solar circle: beyond the terminal velocity, and the "
+                    "tangent point is given; outside it: a velocity of the wrong sign).");
   t.notes.push_back(std::to_string(flagged) + " of " + std::to_string(src.size()) +
                     " sources have a kinematic distance off by a factor of two or more; " +
-                    std::to_string(beyond) + " have a velocity beyond the terminal velocity.");
+                    std::to_string(beyond) + " have a velocity that no distance gives.");
   return t;
 }
 
@@ -314,9 +347,56 @@ std::string status_line(const FitResult& r) {
 
 } // namespace
 
+void check_output_folder(const std::string& folder) {
+  namespace fs = std::filesystem;
+  if (!fs::exists(folder)) return;
+  if (!fs::is_directory(folder))
+    throw InputError(SourcePlace{folder, 0, 0, {}}, "the output exists and is not a folder");
+  if (!fs::is_empty(folder) && !fs::exists(fs::path(folder) / "fit.h5"))
+    throw InputError(SourcePlace{folder, 0, 0, {}},
+                     "the output folder exists and holds no earlier fit (no fit.h5): give a new "
+                     "folder, so that nothing of yours is overwritten");
+}
+
+namespace {
+std::vector<std::string> write_fit_files(const std::string& folder, const FitFile& f,
+                                         const Selection& sel, const FitResult& r,
+                                         const std::vector<SourceResult>& src);
+}
+
+// Everything is written into a temporary folder beside the output, which then takes the output's
+// place (an earlier fit there is replaced only once the new one is complete).
 std::vector<std::string> write_fit_outputs(const std::string& folder, const FitFile& f,
                                            const Selection& sel, const FitResult& r,
                                            const std::vector<SourceResult>& src) {
+  namespace fs = std::filesystem;
+  check_output_folder(folder);
+  const fs::path out = fs::path(folder).lexically_normal();
+  const fs::path parent = out.has_parent_path() ? out.parent_path() : fs::path(".");
+  const std::string tag = std::to_string(::getpid());
+  const fs::path tmp = parent / ("." + out.filename().string() + ".tmp-" + tag);
+  const fs::path old = parent / ("." + out.filename().string() + ".old-" + tag);
+  fs::remove_all(tmp);
+  std::vector<std::string> files;
+  try {
+    for (const auto& file : write_fit_files(tmp.string(), f, sel, r, src))
+      files.push_back((out / fs::path(file).filename()).string());
+    if (fs::exists(out)) fs::rename(out, old);
+    fs::rename(tmp, out);
+    fs::remove_all(old);
+  } catch (...) {
+    std::error_code ec;
+    fs::remove_all(tmp, ec);
+    if (fs::exists(old, ec) && !fs::exists(out, ec)) fs::rename(old, out, ec);
+    throw;
+  }
+  return files;
+}
+
+namespace {
+std::vector<std::string> write_fit_files(const std::string& folder, const FitFile& f,
+                                         const Selection& sel, const FitResult& r,
+                                         const std::vector<SourceResult>& src) {
   std::filesystem::create_directories(folder);
   const std::string status = status_line(r);
   const std::string sentence = constraint_summary(f.spec, r);
@@ -418,6 +498,8 @@ std::vector<std::string> write_fit_outputs(const std::string& folder, const FitF
   return files;
 }
 
+} // namespace
+
 GalacticFromFit read_galactic_parameters(const std::string& path) {
   GalacticFromFit g;
   g.file = path;
@@ -429,6 +511,8 @@ GalacticFromFit read_galactic_parameters(const std::string& path) {
   if (io::h5::get_attr_string(f, gal.id(), "parameters").find(param_info(Param::disk_scale_height).key) ==
       std::string::npos)
     throw InputError(SourcePlace{path, 0, 0, "galactic"}, "written by another version of undertow");
+  const auto root = io::h5::open_group(f, "/");
+  g.converged = io::h5::get_attr_int(f, root.id(), "converged") != 0;
   g.model.rotation = rotation_form_from_name(io::h5::get_attr_string(f, gal.id(), "rotation_form"));
   g.model.angular_speed_form = io::h5::get_attr_int(f, gal.id(), "angular_speed_form") != 0;
   g.model.lsr = sky::lsr_form_from_name(io::h5::get_attr_string(f, gal.id(), "lsr"));

@@ -84,6 +84,7 @@ residuals::Catalog simulate_catalog(const KinematicTruth& t) {
   s.seed = t.seed;
   s.selection.max_sources = t.sources;
   s.selection.parallax_snr_min = t.parallax_snr_min;
+  s.selection.dec_min_deg = t.dec_min_deg;
   auto mock = observe::observe(snap, weights, s);
   mock.catalog.file = "simulated";
   return mock.catalog;

@@ -36,8 +36,8 @@ KinematicTruth parse_truth_file(const std::string& text, const std::string& name
   rot.finish({"form"});
   io::TableReader vol(vol_t, name, "volume");
   const std::vector<std::string> vkeys{"distance_min_kpc", "distance_max_kpc",
-                                       "longitude_min_deg", "disk_scale_length_kpc",
-                                       "scale_height_kpc"};
+                                       "longitude_min_deg", "dec_min_deg",
+                                       "disk_scale_length_kpc", "scale_height_kpc"};
   vol.check_keys(vkeys);
   t.distance_min_kpc = vol.number_or("distance_min_kpc", t.distance_min_kpc);
   t.distance_max_kpc = vol.number_or("distance_max_kpc", t.distance_max_kpc);
@@ -47,6 +47,8 @@ KinematicTruth parse_truth_file(const std::string& text, const std::string& name
   t.longitude_min_deg = vol.number_or("longitude_min_deg", t.longitude_min_deg);
   if (!(t.longitude_min_deg >= 0 && t.longitude_min_deg < 180))
     vol.fail("longitude_min_deg", "must lie in [0, 180)");
+  t.dec_min_deg = vol.number_or("dec_min_deg", t.dec_min_deg);
+  if (!(t.dec_min_deg >= -90 && t.dec_min_deg < 90)) vol.fail("dec_min_deg", "must lie in [-90, 90)");
   t.disk_scale_length_kpc = vol.number_or("disk_scale_length_kpc", t.disk_scale_length_kpc);
   if (!(t.disk_scale_length_kpc >= 0)) vol.fail("disk_scale_length_kpc", "must not be negative");
   t.scale_height_kpc = vol.number_or("scale_height_kpc", t.scale_height_kpc);

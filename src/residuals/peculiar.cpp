@@ -57,19 +57,21 @@ struct Inputs {
 };
 
 std::array<double, 3> uvw_at(const Source& src, double d, double pa, double pd, double v,
-                             const ResidualSettings& s, double* R = nullptr,
+                             const ResidualSettings& s, const sky::SolarFrame& sun,
+                             const RotationCurve& rot, double* R = nullptr,
                              double* psi = nullptr, double* z = nullptr) {
   const sky::Observed o{src.ra_deg, src.dec_deg, pa, pd,
                         sky::lsr_to_helio(v, src.ra_deg, src.dec_deg, s.lsr)};
-  return peculiar_motion(o, d, s, R, psi, z);
+  return peculiar_motion(o, d, sun, rot, R, psi, z);
 }
 
 std::array<double, 3> uvw_of(const Source& src, const Inputs& in, double sw,
-                             const ResidualSettings& s, double* R = nullptr, double* psi = nullptr,
+                             const ResidualSettings& s, const sky::SolarFrame& sun,
+                             const RotationCurve& rot, double* R = nullptr, double* psi = nullptr,
                              double* z = nullptr, double* d_out = nullptr) {
   const double d = distance_of(src, in.w, sw, s);
   if (d_out) *d_out = d;
-  return uvw_at(src, d, in.pa, in.pd, in.v, s, R, psi, z);
+  return uvw_at(src, d, in.pa, in.pd, in.v, s, sun, rot, R, psi, z);
 }
 
 } // namespace
@@ -95,16 +97,17 @@ double RotationCurve::at(double R) const {
   return NAN;
 }
 
-std::array<double, 3> peculiar_motion(const sky::Observed& o, double d, const ResidualSettings& s,
-                                      double* R_out, double* psi_out, double* z_out) {
-  const auto g = sky::to_galactocentric(o, d, s.sun);
+std::array<double, 3> peculiar_motion(const sky::Observed& o, double d, const sky::SolarFrame& sun,
+                                      const RotationCurve& rotation, double* R_out,
+                                      double* psi_out, double* z_out) {
+  const auto g = sky::to_galactocentric(o, d, sun);
   const double R = std::hypot(g.r[0], g.r[1]);
   const double ex = -g.r[0] / R, ey = -g.r[1] / R; // toward the centre
   const double rx = g.r[1] / R, ry = -g.r[0] / R;  // direction of rotation
   if (R_out) *R_out = R;
   if (psi_out) *psi_out = std::atan2(g.r[1], -g.r[0]) / units::deg;
   if (z_out) *z_out = g.r[2];
-  return {g.v[0] * ex + g.v[1] * ey, g.v[0] * rx + g.v[1] * ry - s.rotation.at(R), g.v[2]};
+  return {g.v[0] * ex + g.v[1] * ey, g.v[0] * rx + g.v[1] * ry - rotation.at(R), g.v[2]};
 }
 
 ResidualResult compute_residuals(const Catalog& c, const ResidualSettings& s) {
@@ -157,7 +160,8 @@ ResidualResult compute_residuals(const Catalog& c, const ResidualSettings& s) {
       continue;
     }
     const Inputs nominal{w, src.pmra_masyr, src.pmdec_masyr, src.vlsr_kms};
-    r.uvw = uvw_of(src, nominal, sw, s, &r.R_kpc, &r.psi_deg, &r.z_kpc, &r.distance_kpc);
+    r.uvw = uvw_of(src, nominal, sw, s, s.sun, s.rotation, &r.R_kpc, &r.psi_deg, &r.z_kpc,
+                   &r.distance_kpc);
 
     // Monte Carlo, each source with its own stream from (seed, source index): 1/parallax draws
     // perturb the parallax and proper motions (correlated as the catalog says); posterior-based
@@ -173,26 +177,24 @@ ResidualResult compute_residuals(const Catalog& c, const ResidualSettings& s) {
     const double c21 = c11 > 0 ? (r12 - r02 * r01) / c11 : 0;
     const double c22 = std::sqrt(std::fmax(0.0, 1 - r02 * r02 - c21 * c21));
     for (int k = 0; k < s.draws; ++k) {
-      const ResidualSettings* sk = &s;
-      ResidualSettings alt;
+      // this draw's Galactic parameters (a posterior sample, when marginalising)
+      const sky::SolarFrame* sun = &s.sun;
+      const RotationCurve* rot = &s.rotation;
       if (!s.galactic_draws.empty()) {
         const auto& g = s.galactic_draws[std::size_t(k) % s.galactic_draws.size()];
-        alt = s;
-        alt.sun = g.sun;
-        alt.rotation = g.rotation;
-        sk = &alt;
+        sun = &g.sun, rot = &g.rotation;
       }
       std::array<double, 3> u;
       if (post) {
         const auto t = fit::draw_true(src, *post, s.parallax_offset_mas, rng);
-        u = uvw_at(src, t.distance_kpc, t.pmra_masyr, t.pmdec_masyr, t.vlsr_kms, *sk);
+        u = uvw_at(src, t.distance_kpc, t.pmra_masyr, t.pmdec_masyr, t.vlsr_kms, s, *sun, *rot);
       } else {
         const double n1 = rng.normal(), n2 = rng.normal(), n3 = rng.normal(), n4 = rng.normal();
         const Inputs in{w + sw * n1, src.pmra_masyr + src.pmra_err_masyr * (r01 * n1 + c11 * n2),
                         src.pmdec_masyr + src.pmdec_err_masyr * (r02 * n1 + c21 * n2 + c22 * n3),
                         src.vlsr_kms + src.vlsr_err_kms * n4};
         if (!(in.w > 0)) continue; // no distance
-        u = uvw_of(src, in, sw, *sk);
+        u = uvw_of(src, in, sw, s, *sun, *rot);
       }
       for (int a = 0; a < 3; ++a) {
         sum[a] += u[a];
@@ -224,7 +226,8 @@ ResidualResult compute_residuals(const Catalog& c, const ResidualSettings& s) {
       double* mm[] = {&m.w, &m.pa, &m.pd, &m.v};
       *pp[k] += h;
       *mm[k] -= h;
-      const auto up = uvw_of(src, p, sw, s), um = uvw_of(src, m, sw, s);
+      const auto up = uvw_of(src, p, sw, s, s.sun, s.rotation),
+                 um = uvw_of(src, m, sw, s, s.sun, s.rotation);
       for (int a = 0; a < 3; ++a)
         J[a][k] = (up[a] - um[a]) / (2 * h);
     }

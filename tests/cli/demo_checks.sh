@@ -37,6 +37,21 @@ awk -v d="$dll" 'BEGIN { exit !(d > 100) }' || fail "spiral Delta ln L = $dll, e
 grep -q "mean V_s: measured -" "$work/demo/spiral/summary.txt" || fail "the survey shows no lag"
 echo "spiral model: Delta ln L = $dll against the axisymmetric galaxy"
 
+# The kinematic fit of the simulated survey finds its truth (R0 = 8.1 kpc, Theta0 = 228 km/s)
+# within three of its standard deviations; the fit of the Kestrel survey warns that its posterior
+# lies against a prior's bound.
+/usr/bin/python3 - "$work/demo/kinematic-fit/parameters.csv" <<'PY' || fail "the kinematic fit misses its truth"
+import csv, sys
+rows = {r[0]: r for r in csv.reader(l for l in open(sys.argv[1]) if not l.startswith("#"))}
+for key, truth in (("r0_kpc", 8.1), ("theta0_kms", 228.0), ("u_sun_kms", 11.1), ("w_sun_kms", 7.25)):
+    med, lo, hi = (float(x) for x in rows[key][1:4])
+    pull = (med - truth) / (0.5 * (lo + hi))
+    print(f"kinematic fit: {key} = {med:.4g} -{lo:.2g} +{hi:.2g} (truth {truth}, pull {pull:+.2f})")
+    assert abs(pull) < 3, key
+PY
+grep -q "warning: theta0_kms: .* lies against the prior's bound" demo.log ||
+  fail "the Kestrel fit does not warn that its posterior lies against a bound"
+
 # 3. Bad input to the whole run.
 cp "$src/demo/spiral.toml" typo.toml
 sed -i 's|^model_file = "../demo/truth/galaxy.toml"|model_file = "'"$src"'/demo/truth/galaxy.toml"|; s|"kestrel-measured.csv"|"'"$src"'/demo/kestrel-measured.csv"|; s/^neighbours = 30/neighbors = 30/' typo.toml

@@ -14,7 +14,10 @@ namespace undertow::fit {
 struct FitFile {
   FitSpec spec;
   std::string text;           // the file verbatim, for provenance
-  double radius_min_kpc = 4;  // sources whose parallax distance lies closer to the centre are left out
+  // Sources seen within this angle of the Galactic centre's direction are left out: a cut on
+  // direction alone, so the distances of the sources kept still follow the prior, and no line of
+  // sight passes closer to the centre than R0 sin(angle), where circular rotation is no model.
+  double longitude_min_deg = 15;
   std::string model_file;     // for the model rotation form
 };
 

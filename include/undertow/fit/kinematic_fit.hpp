@@ -74,6 +74,7 @@ struct FitResult {
   std::vector<ParamSummary> derived;
   std::vector<std::string> warnings; // what could mislead
   std::vector<std::string> notes;    // what a reader should know
+  std::vector<Param> at_bound;       // posteriors piled against a prior's bound
   double seconds = 0;
 };
 

@@ -49,6 +49,10 @@ const ParamInfo& param_info(Param p);
 // By key; throws InputError listing the valid keys.
 Param param_from_key(const std::string& key, const SourcePlace& where);
 
+// Where a parameter must stay for the model to make sense (scales and dispersions positive, the
+// outlier fraction in [0, 1]).
+bool in_domain(Param p, double v);
+
 struct Prior {
   enum class Kind { flat, uniform, gaussian } kind = Kind::flat;
   double min = -INFINITY, max = INFINITY; // bounds (flat and uniform; hard limits for gaussian)

@@ -12,9 +12,10 @@
 
 namespace undertow::fit {
 
-// The sources a fit uses: those whose parallax distance (posterior median with the fit's prior,
-// at the start values) lies at least radius_min_kpc from the centre, and whose parallax is
-// compatible with the prior's range. Every other source is listed with the reason.
+// The sources a fit uses: those seen at least longitude_min_deg from the Galactic centre's
+// direction (a cut on direction alone, which leaves the distance prior exact), whose parallax is
+// within 7 sigma of the prior's range (the likelihood's own test). Every other source is listed
+// with the reason.
 struct Selection {
   residuals::Catalog used;
   std::vector<std::string> excluded;
@@ -37,7 +38,10 @@ struct SourceResult {
 std::vector<SourceResult> source_results(const FitSpec& s, const residuals::Catalog& used,
                                          const Likelihood& L, const FitResult& r, int draws = 400);
 
-// Writes everything into folder (created), each file atomically; returns the files.
+// Refuses an output that is a file, or a non-empty folder that holds no earlier fit (InputError).
+void check_output_folder(const std::string& folder);
+// Writes everything into a temporary folder beside `folder` and then puts it in its place (an
+// earlier fit there is replaced only when the new one is complete); returns the files.
 std::vector<std::string> write_fit_outputs(const std::string& folder, const FitFile& f,
                                            const Selection& sel, const FitResult& r,
                                            const std::vector<SourceResult>& src);
@@ -45,6 +49,7 @@ std::vector<std::string> write_fit_outputs(const std::string& folder, const FitF
 // The Galactic parameters of a finished fit (fit.h5): the median, and the posterior samples.
 struct GalacticFromFit {
   std::string file;
+  bool converged = false;
   KinematicModel model;           // the rotation form and, for the model form, its curve
   FullParams median{};
   std::vector<FullParams> samples;

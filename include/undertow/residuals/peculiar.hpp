@@ -70,8 +70,14 @@ struct ResidualResult {
 
 // U, V, W of one set of observables at one distance.
 std::array<double, 3> peculiar_motion(const sky::Observed& o, double distance_kpc,
-                                      const ResidualSettings& s, double* R_out = nullptr,
-                                      double* psi_out = nullptr, double* z_out = nullptr);
+                                      const sky::SolarFrame& sun, const RotationCurve& rotation,
+                                      double* R_out = nullptr, double* psi_out = nullptr,
+                                      double* z_out = nullptr);
+inline std::array<double, 3> peculiar_motion(const sky::Observed& o, double distance_kpc,
+                                             const ResidualSettings& s, double* R_out = nullptr,
+                                             double* psi_out = nullptr, double* z_out = nullptr) {
+  return peculiar_motion(o, distance_kpc, s.sun, s.rotation, R_out, psi_out, z_out);
+}
 
 // "inverse", "edsd-median", "edsd-mode", "posterior-median"; throws InputError otherwise.
 ResidualSettings::Distance distance_from_name(const std::string& name);
