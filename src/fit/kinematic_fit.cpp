@@ -318,8 +318,10 @@ FitResult run_fit(const FitSpec& s, const Likelihood& L, const std::atomic<bool>
   if (!r.converged && !r.interrupted) {
     const long burn = r.steps / 4;
     r.diag = diagnose(sampler, burn);
-    // kept = 3/4 of the total must reach tau_multiple × τ
-    const double need = s.sampler.tau_multiple * r.diag.tau_max * 4.0 / 3.0;
+    // kept = 3/4 of the total must reach tau_multiple × τ; split-R̂ − 1 falls about as 1/steps
+    double need = s.sampler.tau_multiple * r.diag.tau_max * 4.0 / 3.0;
+    if (std::isfinite(r.diag.r_hat_max) && r.diag.r_hat_max > s.sampler.r_hat_max)
+      need = std::max(need, double(r.steps) * (r.diag.r_hat_max - 1) / (s.sampler.r_hat_max - 1));
     r.more_steps_needed =
         std::isfinite(need) ? std::max<long>(long(need) - r.steps, s.sampler.chunk) : r.steps;
   }
