@@ -144,14 +144,8 @@ undertow::residuals::GalacticDraw
 galactic_of(const std::shared_ptr<const undertow::fit::KinematicModel>& mp,
             const undertow::fit::FullParams& p) {
   const auto& m = *mp;
-  using undertow::fit::Param;
   undertow::residuals::GalacticDraw g;
-  g.sun.r0_kpc = p[std::size_t(Param::r0)];
-  g.sun.z_sun_kpc = p[std::size_t(Param::z_sun)];
-  g.sun.theta0_kms = m.theta0(p);
-  g.sun.u_sun_kms = p[std::size_t(Param::u_sun)];
-  g.sun.v_sun_kms = p[std::size_t(Param::v_sun)];
-  g.sun.w_sun_kms = p[std::size_t(Param::w_sun)];
+  g.sun = m.sun(p);
   g.rotation.kind = undertow::residuals::RotationCurve::Kind::model;
   g.rotation.model = [mp, p](double R) { return mp->theta(R, p); }; // shares the model's table
   return g;

@@ -8,21 +8,8 @@
 
 namespace undertow::fit {
 
-namespace {
-sky::SolarFrame sun_of(const KinematicModel& m, const FullParams& p) {
-  sky::SolarFrame s;
-  s.r0_kpc = p[std::size_t(Param::r0)];
-  s.z_sun_kpc = p[std::size_t(Param::z_sun)];
-  s.theta0_kms = m.theta0(p);
-  s.u_sun_kms = p[std::size_t(Param::u_sun)];
-  s.v_sun_kms = p[std::size_t(Param::v_sun)];
-  s.w_sun_kms = p[std::size_t(Param::w_sun)];
-  return s;
-}
-} // namespace
-
 double circular_vlsr(double ra, double dec, double d, const KinematicModel& m, const FullParams& p) {
-  const auto sun = sun_of(m, p);
+  const auto sun = m.sun(p);
   // position of the source, then its circular velocity, then back to heliocentric observables
   sky::Observed o{ra, dec, 0, 0, 0};
   const auto g0 = sky::to_galactocentric(o, d, sun);

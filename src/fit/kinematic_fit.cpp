@@ -38,18 +38,21 @@ ParamSummary summarise(std::vector<double> v) {
     q += (x - m) * (x - m);
   s.mean = m;
   s.sd = std::sqrt(q / double(v.size() > 1 ? v.size() - 1 : 1));
-  std::sort(v.begin(), v.end());
-  const auto at = [&](double f) {
-    const double pos = f * double(v.size() - 1);
-    const std::size_t i = std::size_t(pos);
-    const double t = pos - double(i);
-    return i + 1 < v.size() ? v[i] * (1 - t) + v[i + 1] * t : v[i];
-  };
-  s.median = at(0.5), s.lo = at(0.15865525393145707), s.hi = at(0.8413447460685429);
+  s.median = quantile(v, 0.5), s.lo = quantile(v, 0.15865525393145707),
+  s.hi = quantile(v, 0.8413447460685429);
   return s;
 }
 
 } // namespace
+
+double quantile(std::vector<double>& v, double q) {
+  if (v.empty()) return NAN;
+  if (!std::is_sorted(v.begin(), v.end())) std::sort(v.begin(), v.end());
+  const double pos = q * double(v.size() - 1);
+  const std::size_t i = std::size_t(pos);
+  const double t = pos - double(i);
+  return i + 1 < v.size() ? v[i] * (1 - t) + v[i + 1] * t : v[i];
+}
 
 std::vector<std::string> degeneracies(const FitSpec& s) {
   std::vector<std::string> out;

@@ -63,6 +63,17 @@ double KinematicModel::theta(double R, const FullParams& p) const {
   return NAN;
 }
 
+sky::SolarFrame KinematicModel::sun(const FullParams& p) const {
+  sky::SolarFrame s;
+  s.r0_kpc = p[std::size_t(Param::r0)];
+  s.z_sun_kpc = p[std::size_t(Param::z_sun)];
+  s.theta0_kms = theta0(p);
+  s.u_sun_kms = p[std::size_t(Param::u_sun)];
+  s.v_sun_kms = p[std::size_t(Param::v_sun)];
+  s.w_sun_kms = p[std::size_t(Param::w_sun)];
+  return s;
+}
+
 std::vector<Param> KinematicModel::used_params() const {
   std::vector<Param> u{Param::r0};
   if (rotation == RotationForm::model)

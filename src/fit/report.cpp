@@ -23,11 +23,6 @@ double at(const FullParams& p, Param k) {
   return p[std::size_t(k)];
 }
 
-sky::Vec3 galactic_direction(double ra_deg, double dec_deg) {
-  const double ra = ra_deg * units::deg, dec = dec_deg * units::deg;
-  return sky::mul(sky::icrs_to_galactic_matrix(),
-                  {std::cos(dec) * std::cos(ra), std::cos(dec) * std::sin(ra), std::sin(dec)});
-}
 
 FullParams start_params(const FitSpec& s) {
   const auto free = free_params(s);
@@ -42,25 +37,13 @@ residuals::ResidualSettings settings_for(const std::shared_ptr<const KinematicMo
                                          const FullParams& p) {
   const KinematicModel& m = *mp;
   residuals::ResidualSettings rs;
-  rs.sun.r0_kpc = at(p, Param::r0);
-  rs.sun.z_sun_kpc = at(p, Param::z_sun);
-  rs.sun.theta0_kms = m.theta0(p);
-  rs.sun.u_sun_kms = at(p, Param::u_sun);
-  rs.sun.v_sun_kms = at(p, Param::v_sun);
-  rs.sun.w_sun_kms = at(p, Param::w_sun);
+  rs.sun = m.sun(p);
   rs.rotation.kind = residuals::RotationCurve::Kind::model;
   rs.rotation.model = [mp, p](double R) { return mp->theta(R, p); }; // shares the model's table
   rs.lsr = m.lsr;
   return rs;
 }
 
-double quantile(std::vector<double> v, double q) {
-  std::sort(v.begin(), v.end());
-  const double pos = q * double(v.size() - 1);
-  const std::size_t i = std::size_t(pos);
-  const double t = pos - double(i);
-  return i + 1 < v.size() ? v[i] * (1 - t) + v[i + 1] * t : v[i];
-}
 
 constexpr double kLo = 0.15865525393145707, kHi = 0.8413447460685429;
 
@@ -86,7 +69,7 @@ Selection select_sources(const FitFile& f, const residuals::Catalog& c) {
       omin = std::isfinite(q.prior.min) ? q.prior.min : q.prior.mean - 5 * q.prior.sigma,
       omax = std::isfinite(q.prior.max) ? q.prior.max : q.prior.mean + 5 * q.prior.sigma;
   for (const auto& s : c.sources) {
-    const sky::Vec3 n = galactic_direction(s.ra_deg, s.dec_deg);
+    const sky::Vec3 n = sky::galactic_direction(s.ra_deg, s.dec_deg);
     if (f.longitude_min_deg > 0 && n[0] > cos_cut) {
       sel.excluded.push_back(s.name + ": within longitude_min_deg = " +
                              detail::num(f.longitude_min_deg) +
@@ -151,7 +134,7 @@ std::vector<SourceResult> source_results(const FitSpec& s, const residuals::Cata
     SourceResult& res = out[std::size_t(k)];
     res.name = src.name, res.group = src.group;
     res.outlier_probability = pmean[std::size_t(k)];
-    const sky::Vec3 dir = galactic_direction(src.ra_deg, src.dec_deg);
+    const sky::Vec3 dir = sky::galactic_direction(src.ra_deg, src.dec_deg);
     std::optional<DistancePosterior> opt;
     try {
       opt.emplace(src.parallax_mas, src.parallax_err_mas,

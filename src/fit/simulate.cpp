@@ -10,15 +10,7 @@
 namespace undertow::fit {
 
 sky::SolarFrame truth_sun(const KinematicTruth& t) {
-  const auto& p = t.params;
-  sky::SolarFrame s;
-  s.r0_kpc = p[std::size_t(Param::r0)];
-  s.z_sun_kpc = p[std::size_t(Param::z_sun)];
-  s.theta0_kms = t.model.theta0(p);
-  s.u_sun_kms = p[std::size_t(Param::u_sun)];
-  s.v_sun_kms = p[std::size_t(Param::v_sun)];
-  s.w_sun_kms = p[std::size_t(Param::w_sun)];
-  return s;
+  return t.model.sun(t.params);
 }
 
 residuals::Catalog simulate_catalog(const KinematicTruth& t) {

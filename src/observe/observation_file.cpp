@@ -3,6 +3,7 @@
 #include <cmath>
 
 #include "undertow/dynamics/frequencies.hpp"
+#include "undertow/fit/report.hpp"
 #include "undertow/io/paths.hpp"
 #include "undertow/io/toml_table.hpp"
 
@@ -12,6 +13,15 @@ namespace {
 using io::TableReader;
 std::string sub(const std::string& ctx, const char* name) {
   return ctx.empty() ? name : ctx + "." + name;
+}
+
+// A fit's Galactic parameters; a file that is not one is an error at the key.
+fit::GalacticFromFit at_keys_fit(const TableReader& q, const std::string& path) {
+  try {
+    return fit::read_galactic_parameters(path);
+  } catch (const InputError& e) {
+    q.fail("from_fit", e.what());
+  }
 }
 
 } // namespace
@@ -36,7 +46,37 @@ ObservationSpec observation_from_table(const toml::table& t, const std::string& 
   if (!sun) r.fail("", "missing [" + sub(ctx, "sun") + "] table");
   {
     TableReader q(*sun, file, sub(ctx, "sun"));
-    q.check_keys({"r0_kpc", "z_sun_kpc", "theta0_kms", "solar_motion_kms"});
+    q.check_keys({"r0_kpc", "z_sun_kpc", "theta0_kms", "solar_motion_kms", "from_fit"});
+    if (q.has("from_fit")) {
+      // The Sun of a finished kinematic fit (its posterior median). Θ0 stays the model's
+      // circular speed, the model defining rotation; V☉ is set so that the Sun's total
+      // velocity Θ0 + V☉, which the data measure, is the fit's.
+      for (const char* k : {"r0_kpc", "z_sun_kpc", "theta0_kms", "solar_motion_kms"})
+        if (q.has(k)) q.fail(k, "cannot be combined with from_fit (the fit gives it)");
+      const std::string path = io::path_beside(file, q.string("from_fit"));
+      const auto g = at_keys_fit(q, path);
+      const auto& p = g.median;
+      const auto at = [&](fit::Param k) { return p[std::size_t(k)]; };
+      s.sun.r0_kpc = at(fit::Param::r0);
+      s.sun.z_sun_kpc = at(fit::Param::z_sun);
+      s.sun.theta0_kms = dynamics::circular_speed(m, s.sun.r0_kpc);
+      s.sun.u_sun_kms = at(fit::Param::u_sun);
+      s.sun.v_sun_kms = g.model.theta0(p) + at(fit::Param::v_sun) - s.sun.theta0_kms;
+      s.sun.w_sun_kms = at(fit::Param::w_sun);
+      if (r.has("lsr") && s.lsr != g.model.lsr)
+        r.fail("lsr", "contradicts the LSR of the kinematic fit " + path);
+      s.lsr = g.model.lsr;
+      s.sun_source = std::string(g.converged ? "" : "NOT CONVERGED ") + "kinematic fit " + path +
+                     " (posterior median; Theta0 the model's v_c(R0), V_sun set so that "
+                     "Theta0 + V_sun = " + detail::num(g.model.theta0(p) + at(fit::Param::v_sun)) +
+                     " km/s as fitted)";
+      q.finish({"from_fit"});
+      try {
+        s.sun.validate();
+      } catch (const InputError& e) {
+        q.fail("from_fit", e.what());
+      }
+    } else {
     s.sun.r0_kpc = q.number("r0_kpc");
     s.sun.z_sun_kpc = q.number_or("z_sun_kpc", 0.0);
     if (q.has("solar_motion_kms")) {
@@ -49,6 +89,7 @@ ObservationSpec observation_from_table(const toml::table& t, const std::string& 
       s.sun.validate();
     } catch (const InputError& e) {
       q.fail(e.place().field, e.what());
+    }
     }
   }
   if (const toml::table* sel = r.table("selection")) {

@@ -28,11 +28,6 @@ fit::DistancePrior prior_of(const ResidualSettings& s) {
   return p;
 }
 
-sky::Vec3 galactic_direction(const Source& src) {
-  const double ra = src.ra_deg * units::deg, dec = src.dec_deg * units::deg;
-  return sky::mul(sky::icrs_to_galactic_matrix(),
-                  {std::cos(dec) * std::cos(ra), std::cos(dec) * std::sin(ra), std::sin(dec)});
-}
 
 // The distance estimate for a parallax w (already corrected for the zero point).
 double distance_of(const Source& src, double w, double sw, const ResidualSettings& s) {
@@ -42,7 +37,7 @@ double distance_of(const Source& src, double w, double sw, const ResidualSetting
   case ResidualSettings::Distance::edsd_median:
     return sky::edsd_median_kpc(w, sw, s.edsd_length_kpc);
   case ResidualSettings::Distance::posterior_median: {
-    const auto n = galactic_direction(src);
+    const auto n = sky::galactic_direction(src.ra_deg, src.dec_deg);
     return fit::DistancePosterior(w, sw, 0, n.data(), s.prior, {s.sun.r0_kpc, s.sun.z_sun_kpc})
         .median();
   }
@@ -150,7 +145,7 @@ ResidualResult compute_residuals(const Catalog& c, const ResidualSettings& s) {
       }
     }
     std::optional<fit::DistancePosterior> post;
-    const sky::Vec3 dir = galactic_direction(src);
+    const sky::Vec3 dir = sky::galactic_direction(src.ra_deg, src.dec_deg);
     try {
       if (from_posterior(s))
         post.emplace(w, sw, 0, dir.data(), prior,

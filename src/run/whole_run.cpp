@@ -229,16 +229,21 @@ WholeRunResult run_all(const scenario::Scenario& s, const WholeRunOptions& o) {
     io::write_table_group(f, "global", global);
     io::write_table_group(f, "local", ltab);
   });
-  char b[1024];
+  const auto& sun = s.observation->settings.sun;
+  char b[2048];
   std::snprintf(
       b, sizeof b,
       "scenario %s (%s)\n"
+      "the Sun: R0 = %g kpc, z_sun = %g kpc, Theta0 = %g km/s, solar motion (%g, %g, %g) km/s, "
+      "from %s\n"
       "measured catalog: %s, %zu sources used\n"
       "mock catalog: %zu sources observed at t = %g Myr\n"
       "mean V_s: measured %.2f +- %.2f km/s, simulated %.2f +- %.2f km/s, difference %.1f sigma\n"
       "mean U_s: measured %.2f +- %.2f km/s, simulated %.2f +- %.2f km/s\n"
       "local comparison: sum ln L = %.2f, sum chi^2 = %.1f for %zu sources (%zu beyond 3 sigma)\n",
-      s.name.c_str(), s.path.c_str(), s.comparison->catalog.c_str(), meas_res.sources.size(),
+      s.name.c_str(), s.path.c_str(), sun.r0_kpc, sun.z_sun_kpc, sun.theta0_kms, sun.u_sun_kms,
+      sun.v_sun_kms, sun.w_sun_kms, s.observation->settings.sun_source.c_str(),
+      s.comparison->catalog.c_str(), meas_res.sources.size(),
       mock_res.sources.size(), prep.time_myr, global.rows[1][2], global.rows[1][3],
       global.rows[1][4], global.rows[1][5], global.rows[1][7], global.rows[0][2], global.rows[0][3],
       global.rows[0][4], global.rows[0][5], local.log_likelihood, local.chi2, local.sources.size(),

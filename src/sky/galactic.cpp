@@ -109,4 +109,8 @@ void galactic_to_icrs_pm(double l, double b, double pl, double pb, double& pa, d
   galactic_to_icrs_with_pm(l, b, pl, pb, ra, dec, pa, pd);
 }
 
+Vec3 galactic_direction(double ra_deg, double dec_deg) {
+  return mul(icrs_to_galactic_matrix(), unit_vector(ra_deg * units::deg, dec_deg * units::deg));
+}
+
 } // namespace undertow::sky

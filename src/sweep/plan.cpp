@@ -21,7 +21,7 @@ namespace fs = std::filesystem;
 
 // Scenario values that name files; relative ones are relative to the scenario's folder.
 const char* const path_keys[] = {"tracers.file", "observation.errors.catalog",
-                                 "comparison.catalog"};
+                                 "comparison.catalog", "observation.sun.from_fit"};
 const char* const seed_keys[] = {"run.seed", "observation.seed", "comparison.seed"};
 constexpr std::size_t max_points = 100000;
 

@@ -35,6 +35,8 @@ dll=$(awk -F'|' '$2 ~ /^ *spiral *$/ {gsub(/ /, "", $5); print $5}' "$work/demo/
 [ -n "$dll" ] || fail "no spiral row in versus.md"
 awk -v d="$dll" 'BEGIN { exit !(d > 100) }' || fail "spiral Delta ln L = $dll, expected > 100"
 grep -q "mean V_s: measured -" "$work/demo/spiral/summary.txt" || fail "the survey shows no lag"
+grep -q "^the Sun: R0 = 8.1 kpc.* from fixed values" "$work/demo/spiral/summary.txt" ||
+  fail "the whole run's summary does not say where its Galactic parameters came from"
 echo "spiral model: Delta ln L = $dll against the axisymmetric galaxy"
 
 # The kinematic fit of the simulated survey finds its truth (R0 = 8.1 kpc, Theta0 = 228 km/s)

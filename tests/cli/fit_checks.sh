@@ -94,6 +94,40 @@ grep -q "from the kinematic fit out/fit.h5 (posterior median" res1-summary.md ||
   --distance posterior-median --distance-range 1,10 -o res2 > /dev/null
 grep -q "marginalised over" res2-summary.md || fail "marginalisation not named"
 
+# 3b. A mock observation whose Sun comes from the fit: R0 and the Sun's total velocity as fitted.
+cat > tiny.toml <<TOML
+[run]
+name = "tiny"
+seed = 3
+[galaxy]
+model_file = "$src/potentials/kestrel-axisymmetric.toml"
+[tracers]
+source = "disk"
+count = 3000
+scale_length_kpc = 3.0
+r_min_kpc = 4.0
+r_max_kpc = 14.0
+scale_height_kpc = 0.05
+sigma_r_kms = 6.0
+sigma_z_kms = 3.0
+[integration]
+method = "leapfrog"
+end_myr = 10.0
+step_myr = 0.5
+[output]
+every_myr = 10.0
+TOML
+"$undertow" integrate tiny.toml -o tiny.h5 > /dev/null
+printf 'seed = 2\n[sun]\nfrom_fit = "out/fit.h5"\n[selection]\ndistance_max_kpc = 6\n[errors]\nkind = "fixed"\n' > obs-fit.toml
+"$undertow" observe tiny.h5 obs-fit.toml -o obs-fit.csv > obs-fit.log || fail "observe with the Sun from a fit"
+[ -s obs-fit.csv ] || fail "no mock catalog with the Sun from a fit"
+printf 'seed = 2\n[sun]\nfrom_fit = "out/fit.h5"\nr0_kpc = 8\n[selection]\ndistance_max_kpc = 6\n[errors]\nkind = "fixed"\n' > obs-both.toml
+set +e
+"$undertow" observe tiny.h5 obs-both.toml -o obs-both.csv 2> obs-both.err; code=$?
+set -e
+[ "$code" -eq 2 ] && grep -q "obs-both.toml:4.*sun.r0_kpc: cannot be combined with from_fit" obs-both.err ||
+  { cat obs-both.err; fail "from_fit with r0_kpc: exit $code"; }
+
 # 4. Bad input: one line, exit 2, nothing written.
 refuse() { # name, expected text, fit file body (catalog and distances prepended)
   local name=$1 want=$2 body=$3

@@ -48,6 +48,9 @@ FullParams full_from_free(const FitSpec& s, const std::vector<Param>& free, cons
 double log_posterior(const FitSpec& s, const std::vector<Param>& free, const Likelihood& L,
                      const double* x, bool parallel);
 
+// The q-quantile of v by linear interpolation between order statistics (v is sorted in place).
+double quantile(std::vector<double>& v, double q);
+
 struct ParamSummary {
   Param param{};
   double median = 0, lo = 0, hi = 0; // 16 and 84 % quantiles

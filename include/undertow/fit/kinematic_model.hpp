@@ -12,6 +12,7 @@
 #include "undertow/fit/distance_prior.hpp"
 #include "undertow/fit/parameters.hpp"
 #include "undertow/sky/lsr.hpp"
+#include "undertow/sky/solar_frame.hpp"
 
 namespace undertow::fit {
 
@@ -36,6 +37,8 @@ struct KinematicModel {
   double theta(double R_kpc, const FullParams& p) const; // the rotation curve
   // The parameters this model reads (the others must not be set in a fit file).
   std::vector<Param> used_params() const;
+  // The Sun of p: R0, z☉, Θ0 (from the rotation curve) and the solar motion.
+  sky::SolarFrame sun(const FullParams& p) const;
 };
 
 } // namespace undertow::fit

@@ -50,6 +50,7 @@ struct ErrorModel {
 
 struct ObservationSettings {
   sky::SolarFrame sun;
+  std::string sun_source = "fixed values"; // where the Sun's parameters came from, for outputs
   sky::LsrForm lsr = sky::LsrForm::apex;
   Selection selection;
   std::optional<YoungWeights> young;

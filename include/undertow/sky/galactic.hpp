@@ -14,6 +14,8 @@ using Mat3 = std::array<Vec3, 3>;
 const Mat3& icrs_to_galactic_matrix();
 
 Vec3 unit_vector(double lon, double lat);
+// The unit vector toward ICRS (ra, dec), given in degrees, in heliocentric Galactic axes.
+Vec3 galactic_direction(double ra_deg, double dec_deg);
 void to_angles(const Vec3& v, double& lon, double& lat); // lon in [0, 2 pi)
 
 void icrs_to_galactic(double ra, double dec, double& l, double& b);
