@@ -47,6 +47,7 @@ residuals::ResidualSettings residual_settings(const scenario::Scenario& s) {
   r.rotation.model = [m](double R) { return dynamics::circular_speed(*m, R); };
   r.distance = c.distance;
   r.edsd_length_kpc = c.edsd_length_kpc;
+  r.prior = c.prior;
   r.min_parallax_snr = c.min_parallax_snr;
   r.draws = c.draws;
   r.seed = c.seed;

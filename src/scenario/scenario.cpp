@@ -210,7 +210,9 @@ Scenario parse_scenario(const std::string& text, const std::string& path) {
   }
   if (const toml::table* cm = r.table("comparison")) {
     TableReader q(*cm, path, "comparison");
-    q.check_keys({"catalog", "distance", "edsd_length_kpc", "min_parallax_snr", "draws",
+    q.check_keys({"catalog", "distance", "edsd_length_kpc", "distance_prior",
+                  "distance_min_kpc", "distance_max_kpc", "disk_scale_length_kpc",
+                  "disk_scale_height_kpc", "min_parallax_snr", "draws",
                   "bootstrap", "seed", "neighbourhood", "neighbours", "min_neighbours",
                   "radius_kpc", "prediction_sources", "radius_bins_kpc", "azimuth_bins_deg"});
     Comparison c;
@@ -221,6 +223,22 @@ Scenario parse_scenario(const std::string& text, const std::string& path) {
       q.fail("distance", e.what());
     }
     c.edsd_length_kpc = q.number_or("edsd_length_kpc", 1.35);
+    try {
+      c.prior.kind = fit::distance_prior_from_name(q.string_or("distance_prior", "uniform"));
+    } catch (const InputError& e) {
+      q.fail("distance_prior", e.what());
+    }
+    if (c.prior.kind == fit::DistancePrior::Kind::table || c.prior.kind == fit::DistancePrior::Kind::edsd)
+      q.fail("distance_prior", "must be \"uniform\" or \"disk\" (edsd: distance = \"edsd-median\")");
+    c.prior.distance_min_kpc = q.number_or("distance_min_kpc", 0.0);
+    c.prior.distance_max_kpc = q.number_or("distance_max_kpc", 20.0);
+    c.prior.disk_scale_length_kpc = q.number_or("disk_scale_length_kpc", 3.0);
+    c.prior.disk_scale_height_kpc = q.number_or("disk_scale_height_kpc", 0.1);
+    try {
+      c.prior.validate();
+    } catch (const InputError& e) {
+      q.fail(e.place().field, e.what());
+    }
     c.min_parallax_snr = q.number_or("min_parallax_snr", 0.0);
     const auto whole = [&](const char* k, double d, double lo) {
       const double v = q.number_or(k, d);

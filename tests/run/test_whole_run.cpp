@@ -131,3 +131,21 @@ TEST_CASE("A whole run refuses a scenario without [observation] or [comparison],
   CHECK_THROWS_WITH(run::run_all(one, o),
                     Catch::Contains("1 measured sources are left after the selection"));
 }
+
+TEST_CASE("[comparison] takes a posterior-median distance with its prior and range, and refuses a "
+          "prior it cannot use and a range that is empty, at the key",
+          "[run]") {
+  const std::string text = scenario_text("kestrel.toml", "/nonexistent.csv", 1);
+  const auto with = [&](const std::string& extra) {
+    return scenario::parse_scenario(text + extra, "/tmp/prior.toml");
+  };
+  const auto s = with("distance = \"posterior-median\"\ndistance_prior = \"disk\"\n"
+                      "distance_min_kpc = 0.5\ndistance_max_kpc = 9\n");
+  CHECK(s.comparison->distance == residuals::ResidualSettings::Distance::posterior_median);
+  CHECK(s.comparison->prior.kind == fit::DistancePrior::Kind::disk);
+  CHECK(s.comparison->prior.distance_max_kpc == 9);
+  CHECK_THROWS_WITH(with("distance_prior = \"table\"\n"),
+                    Catch::Contains("comparison.distance_prior"));
+  CHECK_THROWS_WITH(with("distance_min_kpc = 5\ndistance_max_kpc = 4\n"),
+                    Catch::Contains("distance_max_kpc"));
+}

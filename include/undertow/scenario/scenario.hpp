@@ -7,6 +7,7 @@
 #include <string>
 #include <vector>
 
+#include "undertow/fit/distance_prior.hpp"
 #include "undertow/gas/sticky_clouds.hpp"
 #include "undertow/observe/observation_file.hpp"
 #include "undertow/orbit/integrator.hpp"
@@ -33,6 +34,7 @@ struct Comparison {
   std::string catalog; // resolved path
   residuals::ResidualSettings::Distance distance = residuals::ResidualSettings::Distance::inverse;
   double edsd_length_kpc = 1.35;
+  fit::DistancePrior prior; // for distance = "posterior-median"
   double min_parallax_snr = 0;
   int draws = 200, bootstrap = 500;
   std::uint64_t seed = 1;
