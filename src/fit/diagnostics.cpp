@@ -15,7 +15,8 @@ double autocorrelation_time(const std::vector<std::vector<double>>& series, doub
   if (series.empty() || series[0].size() < 4) return NAN;
   const std::size_t n = series[0].size();
   for (const auto& s : series)
-    if (s.size() != n) throw std::invalid_argument("autocorrelation_time: series of unequal length");
+    if (s.size() != n)
+      throw std::invalid_argument("autocorrelation_time: series of unequal length");
   std::size_t m = 1;
   while (m < 2 * n)
     m <<= 1;

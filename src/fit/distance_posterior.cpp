@@ -12,8 +12,8 @@ DistancePosterior::DistancePosterior(double w, double s, double w0, const double
                                      const DistancePrior& p, const Geometry& g, int grid) {
   const double wt = w - w0; // parallax corrected for the zero point
   const double u_lo = std::max(p.distance_max_kpc > 0 ? 1 / p.distance_max_kpc : 0.0, wt - 10 * s);
-  const double u_hi = std::min(p.distance_min_kpc > 0 ? 1 / p.distance_min_kpc : INFINITY,
-                               wt + 10 * s);
+  const double u_hi =
+      std::min(p.distance_min_kpc > 0 ? 1 / p.distance_min_kpc : INFINITY, wt + 10 * s);
   if (!(u_hi > u_lo) || !(u_hi > 0))
     throw InputError("parallax " + detail::num(w) + " ± " + detail::num(s) +
                      " mas leaves no probability between " + detail::num(p.distance_min_kpc) +

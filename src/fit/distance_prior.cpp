@@ -46,8 +46,7 @@ double DistancePrior::ln_density(double d, double R, double z) const {
   case Kind::table: {
     const auto& x = table_distance_kpc;
     const auto it = std::upper_bound(x.begin(), x.end(), d);
-    const std::size_t i =
-        std::clamp<std::size_t>(std::size_t(it - x.begin()), 1, x.size() - 1);
+    const std::size_t i = std::clamp<std::size_t>(std::size_t(it - x.begin()), 1, x.size() - 1);
     const double f = (d - x[i - 1]) / (x[i] - x[i - 1]);
     return table_ln_density[i - 1] + f * (table_ln_density[i] - table_ln_density[i - 1]);
   }

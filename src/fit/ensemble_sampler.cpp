@@ -10,8 +10,7 @@ namespace undertow::fit {
 
 EnsembleSampler::EnsembleSampler(int ndim, int walkers, std::uint64_t seed, LogProb f,
                                  double stretch, double de_fraction)
-    : ndim_(ndim), walkers_(walkers), seed_(seed), f_(std::move(f)), a_(stretch),
-      de_(de_fraction) {
+    : ndim_(ndim), walkers_(walkers), seed_(seed), f_(std::move(f)), a_(stretch), de_(de_fraction) {
   if (de_fraction > 0 && walkers < 4)
     throw std::invalid_argument("sampler: differential-evolution moves need at least 4 walkers");
   if (!(de_fraction >= 0 && de_fraction <= 1))
@@ -51,9 +50,8 @@ bool EnsembleSampler::run(int steps, const std::atomic<bool>* stop,
 #pragma omp parallel for schedule(static)
       for (int k = 0; k < half; ++k) {
         const int w = first + k;
-        tracers::TracerStream rng(seed_, std::uint64_t(step) * std::uint64_t(walkers_) +
-                                             std::uint64_t(w),
-                                  0xe45e);
+        tracers::TracerStream rng(
+            seed_, std::uint64_t(step) * std::uint64_t(walkers_) + std::uint64_t(w), 0xe45e);
         const double u1 = rng.uniform(), u2 = rng.uniform(), u3 = rng.uniform();
         const double u4 = rng.uniform(), u5 = rng.uniform();
         const double* xw = x_.data() + std::size_t(w) * nd;
@@ -87,7 +85,8 @@ bool EnsembleSampler::run(int steps, const std::atomic<bool>* stop,
       for (int k = 0; k < half; ++k)
         if (acc[std::size_t(k)]) {
           const int w = first + k;
-          std::copy(y.begin() + long(std::size_t(k) * nd), y.begin() + long(std::size_t(k + 1) * nd),
+          std::copy(y.begin() + long(std::size_t(k) * nd),
+                    y.begin() + long(std::size_t(k + 1) * nd),
                     x_.begin() + long(std::size_t(w) * nd));
           lp_[std::size_t(w)] = ly[std::size_t(k)];
           ++accepted_;

@@ -80,7 +80,8 @@ ParamSetting read_param(const io::TableReader& r, const std::string& key, Param 
   if (mean.has_value() != sigma.has_value())
     q.fail(mean ? "mean" : "sigma", "a Gaussian prior needs both mean and sigma");
   if (sigma) {
-    if (!(*sigma > 0)) q.fail("sigma", "a prior's width must be positive, got " + detail::num(*sigma));
+    if (!(*sigma > 0))
+      q.fail("sigma", "a prior's width must be positive, got " + detail::num(*sigma));
     s.prior.kind = Prior::Kind::gaussian;
     s.prior.mean = *mean, s.prior.sigma = *sigma;
     if (!(*mean >= s.prior.min && *mean <= s.prior.max))
@@ -91,7 +92,7 @@ ParamSetting read_param(const io::TableReader& r, const std::string& key, Param 
   s.value = q.has("start") ? q.number("start")
             : sigma        ? *mean
             : (mn && mx)   ? 0.5 * (*mn + *mx)
-                           : (q.fail("", "a free parameter needs a start value (start = ...)"), 0.0);
+                         : (q.fail("", "a free parameter needs a start value (start = ...)"), 0.0);
   if (!(s.value >= s.prior.min && s.value <= s.prior.max))
     q.fail(q.has("start") ? "start" : "", "the start value lies outside [min, max]");
   if (!in_domain(p, s.value))
@@ -110,8 +111,8 @@ FitFile parse_fit_file(const std::string& text, const std::string& name) {
   s.file = name;
   const toml::table root = io::parse_toml_text(text, name);
   io::TableReader r(root, name, "");
-  const std::vector<std::string> top{"catalog",  "lsr",     "longitude_min_deg", "rotation",
-                                     "distances", "velocities", "sampler",   "parameters"};
+  const std::vector<std::string> top{"catalog",   "lsr",        "longitude_min_deg", "rotation",
+                                     "distances", "velocities", "sampler",           "parameters"};
   r.check_keys(top);
   s.catalog_path = io::path_beside(name, r.string("catalog"));
   KinematicModel& m = s.model;
@@ -144,8 +145,12 @@ FitFile parse_fit_file(const std::string& text, const std::string& name) {
   rot.finish({"form", "model_file"});
 
   io::TableReader dist(dist_t, name, "distances");
-  const std::vector<std::string> dkeys{"prior",           "distance_min_kpc", "distance_max_kpc",
-                                       "parallax_snr_min", "edsd_length_kpc",  "density_table",
+  const std::vector<std::string> dkeys{"prior",
+                                       "distance_min_kpc",
+                                       "distance_max_kpc",
+                                       "parallax_snr_min",
+                                       "edsd_length_kpc",
+                                       "density_table",
                                        "nodes"};
   dist.check_keys(dkeys);
   DistancePrior& p = m.prior;
@@ -183,9 +188,9 @@ FitFile parse_fit_file(const std::string& text, const std::string& name) {
   vel.finish({"dispersion", "outliers", "outlier_dispersion_kms"});
 
   io::TableReader sm(samp_t, name, "sampler");
-  const std::vector<std::string> skeys{"walkers",     "steps_max",  "tau_multiple",
-                                       "r_hat_max",   "seed",       "de_fraction",
-                                       "accept_unconverged", "accept_degenerate"};
+  const std::vector<std::string> skeys{
+      "walkers", "steps_max",   "tau_multiple",       "r_hat_max",
+      "seed",    "de_fraction", "accept_unconverged", "accept_degenerate"};
   sm.check_keys(skeys);
   SamplerSettings& ss = s.sampler;
   ss.walkers = sm.has("walkers") ? sm.integer("walkers") : 0;

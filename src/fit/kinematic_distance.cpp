@@ -8,7 +8,8 @@
 
 namespace undertow::fit {
 
-double circular_vlsr(double ra, double dec, double d, const KinematicModel& m, const FullParams& p) {
+double circular_vlsr(double ra, double dec, double d, const KinematicModel& m,
+                     const FullParams& p) {
   const auto sun = m.sun(p);
   // position of the source, then its circular velocity, then back to heliocentric observables
   sky::Observed o{ra, dec, 0, 0, 0};
@@ -17,8 +18,8 @@ double circular_vlsr(double ra, double dec, double d, const KinematicModel& m, c
   // circular rotation plus the fitted mean motion (toward the centre, along rotation, up)
   const double vphi = m.theta(R, p) + p[std::size_t(Param::mean_v)];
   const double vin = p[std::size_t(Param::mean_u)];
-  sky::Galactocentric g{g0.r, {(vphi * y - vin * x) / R, (-vphi * x - vin * y) / R,
-                               p[std::size_t(Param::mean_w)]}};
+  sky::Galactocentric g{
+      g0.r, {(vphi * y - vin * x) / R, (-vphi * x - vin * y) / R, p[std::size_t(Param::mean_w)]}};
   sky::Observed out;
   sky::from_galactocentric(g, sun, out);
   return sky::helio_to_lsr(out.vhelio_kms, ra, dec, m.lsr);

@@ -64,8 +64,7 @@ std::vector<std::string> degeneracies(const FitSpec& s) {
                       rotation_form_name(f) +
                       " rotation curve and sun_angular_speed_kms_kpc the data constrain only "
                       "their difference: fix one or give one a Gaussian prior");
-    } else if (!pinned(s, Param::theta0) && !pinned(s, Param::v_sun) &&
-               !pinned(s, Param::mean_v)) {
+    } else if (!pinned(s, Param::theta0) && !pinned(s, Param::v_sun) && !pinned(s, Param::mean_v)) {
       out.push_back("theta0_kms, v_sun_kms and mean_v_kms are all free without a Gaussian prior, "
                     "but with a " +
                     rotation_form_name(f) +
@@ -91,9 +90,8 @@ std::vector<Param> free_params(const FitSpec& s) {
 FullParams full_from_free(const FitSpec& s, const std::vector<Param>& free, const double* x) {
   FullParams p{};
   p[std::size_t(Param::r0)] = 8;
-  for (Param k : {Param::dispersion, Param::dispersion_u, Param::dispersion_v,
-                  Param::dispersion_w, Param::model_scale, Param::disk_scale_length,
-                  Param::disk_scale_height})
+  for (Param k : {Param::dispersion, Param::dispersion_u, Param::dispersion_v, Param::dispersion_w,
+                  Param::model_scale, Param::disk_scale_length, Param::disk_scale_height})
     p[std::size_t(k)] = 1;
   for (const auto& q : s.params)
     p[std::size_t(q.param)] = q.value;
@@ -180,7 +178,8 @@ FitResult run_fit(const FitSpec& s, const Likelihood& L, const std::atomic<bool>
         &fobj);
     std::vector<double> blo(nf), bhi(nf);
     for (std::size_t k = 0; k < nf; ++k)
-      blo[k] = std::isfinite(lo[k]) ? lo[k] : -HUGE_VAL, bhi[k] = std::isfinite(hi[k]) ? hi[k] : HUGE_VAL;
+      blo[k] = std::isfinite(lo[k]) ? lo[k] : -HUGE_VAL,
+      bhi[k] = std::isfinite(hi[k]) ? hi[k] : HUGE_VAL;
     o.set_lower_bounds(blo);
     o.set_upper_bounds(bhi);
     o.set_initial_step(step);
@@ -273,8 +272,8 @@ FitResult run_fit(const FitSpec& s, const Likelihood& L, const std::atomic<bool>
   }
   r.map_x = x;
   r.map_ln_posterior = best;
-  const int walkers = s.sampler.walkers > 0 ? s.sampler.walkers
-                                            : std::max(32, int(2 * nf + 2 + (2 * nf + 2) % 2));
+  const int walkers =
+      s.sampler.walkers > 0 ? s.sampler.walkers : std::max(32, int(2 * nf + 2 + (2 * nf + 2) % 2));
   r.walkers = walkers;
   std::vector<double> start(std::size_t(walkers) * nf);
   tracers::TracerStream rng(s.sampler.seed, 0, 0xba11);
@@ -295,9 +294,9 @@ FitResult run_fit(const FitSpec& s, const Likelihood& L, const std::atomic<bool>
   }
 
   // 3. Sampling in chunks until converged.
-  EnsembleSampler sampler(int(nf), walkers, s.sampler.seed,
-                          [&](const double* y) { return lpost(y, false); }, 2.0,
-                          s.sampler.de_fraction);
+  EnsembleSampler sampler(
+      int(nf), walkers, s.sampler.seed, [&](const double* y) { return lpost(y, false); }, 2.0,
+      s.sampler.de_fraction);
   sampler.start(start);
   const long max_steps = s.sampler.steps_max;
   while (true) {
@@ -354,15 +353,14 @@ FitResult run_fit(const FitSpec& s, const Likelihood& L, const std::atomic<bool>
       const double edge = 0.01 * (pr.max - pr.min);
       std::size_t lo_n = 0, hi_n = 0;
       for (double x : v)
-        lo_n += x < pr.min + edge, hi_n += x > pr.max - edge;
+        lo_n += x<pr.min + edge, hi_n += x> pr.max - edge;
       for (const auto& [count, bound] : {std::pair{lo_n, pr.min}, std::pair{hi_n, pr.max}})
-        if (double(count) > 0.05 * double(ns) && r.free[k] == Param::outlier_fraction &&
-            bound == 0)
+        if (double(count) > 0.05 * double(ns) && r.free[k] == Param::outlier_fraction && bound == 0)
           r.notes.push_back("outlier_fraction is consistent with no outliers: quote its 84 % "
-                            "quantile, " + detail::num(sm.hi) + ", as an upper limit"),
+                            "quantile, " +
+                            detail::num(sm.hi) + ", as an upper limit"),
               r.at_bound.push_back(r.free[k]);
-        else if (double(count) > 0.05 * double(ns) &&
-                 (r.at_bound.push_back(r.free[k]), true))
+        else if (double(count) > 0.05 * double(ns) && (r.at_bound.push_back(r.free[k]), true))
           r.warnings.push_back(
               std::string(param_info(r.free[k]).key) + ": " +
               detail::num(100.0 * double(count) / double(ns)) +
@@ -377,7 +375,8 @@ FitResult run_fit(const FitSpec& s, const Likelihood& L, const std::atomic<bool>
     for (std::size_t b = 0; b < nf; ++b) {
       double c = 0;
       for (std::size_t i = 0; i < ns; ++i)
-        c += (r.samples[i * nf + a] - r.summary[a].mean) * (r.samples[i * nf + b] - r.summary[b].mean);
+        c += (r.samples[i * nf + a] - r.summary[a].mean) *
+             (r.samples[i * nf + b] - r.summary[b].mean);
       c /= double(ns > 1 ? ns - 1 : 1);
       r.correlation[a * nf + b] = c / (r.summary[a].sd * r.summary[b].sd);
     }
@@ -394,7 +393,8 @@ FitResult run_fit(const FitSpec& s, const Likelihood& L, const std::atomic<bool>
   }
   const FullParams pmap = full_from_free(s, r.free, x.data());
   const double th0m = s.model.theta0(pmap);
-  const double maps[3] = {th0m, (th0m + pmap[std::size_t(Param::v_sun)]) / pmap[std::size_t(Param::r0)],
+  const double maps[3] = {th0m,
+                          (th0m + pmap[std::size_t(Param::v_sun)]) / pmap[std::size_t(Param::r0)],
                           th0m + pmap[std::size_t(Param::mean_v)]};
   for (int k = 0; k < 3; ++k) {
     r.derived.push_back(summarise(dv[std::size_t(k)]));
@@ -434,8 +434,9 @@ std::string constraint_summary(const FitSpec& s, const FitResult& r) {
     out += " Set mostly by their priors (the posterior is nearly as wide as the prior): " + prior +
            ".";
   if (!bounded.empty())
-    out += " Against a prior's bound, so not measured (an upper or lower limit at most): " +
-           bounded + ".";
+    out +=
+        " Against a prior's bound, so not measured (an upper or lower limit at most): " + bounded +
+        ".";
   if (!weak.empty())
     out += " Strongly correlated, so only a combination is well measured: " + weak + ".";
   out += " The derived Ω☉ = (Θ0 + V☉)/R0 = " + detail::num(r.derived[1].median) + " +" +

@@ -19,9 +19,9 @@ constexpr double kLn2Pi = 1.8378770664093453;
 struct NodeInputs {
   // directions rotated into the Galactocentric (tilted) frame
   double nx, ny, nz, ex, ey, ez, qx, qy, qz;
-  double sx, sy, sz;        // the Sun's position, kpc
-  double vsx, vsy, vsz;     // the Sun's velocity, km/s
-  double mu, mv, mw;        // mean peculiar motion
+  double sx, sy, sz;    // the Sun's position, kpc
+  double vsx, vsy, vsz; // the Sun's velocity, km/s
+  double mu, mv, mw;    // mean peculiar motion
   double th0, r0, slope, index, scale;
   double s2, su2, sv2, sw2; // intrinsic dispersions squared
   double hr, hz;            // disk prior
@@ -104,8 +104,7 @@ node_values(const NodeInputs& in, const double* __restrict u, const double* __re
     const double d2 = c22 - l20 * l20 * d0 - l21 * l21 * d1, i2 = 1 / d2;
     const double l32 = (c23 - l31 * l21 * d1) * i2;
     const double d3 = c33 - l31 * l31 * d1 - l32 * l32 * d2;
-    const double y1 = r1 - l10 * r0, y2 = r2 - l20 * r0 - l21 * y1,
-                 y3 = r3 - l31 * y1 - l32 * y2;
+    const double y1 = r1 - l10 * r0, y2 = r2 - l20 * r0 - l21 * y1, y3 = r3 - l31 * y1 - l32 * y2;
     const double chi2 = r0 * r0 * i0 + y1 * y1 * i1 + y2 * y2 * i2 + y3 * y3 / d3;
     double lnp;
     if constexpr (P == DistancePrior::Kind::disk) {
@@ -203,7 +202,8 @@ double log_sum_exp(const double* v, int n) {
 // ln Φ(x), the standard normal CDF; below x = -30, where erfc underflows, the leading terms of
 // its asymptotic series (Abramowitz & Stegun 1964, 26.2.12).
 double ln_phi(double x) {
-  if (x < -30) return -0.5 * x * x - std::log(-x) - 0.5 * std::log(2 * units::pi) + std::log1p(-1 / (x * x));
+  if (x < -30)
+    return -0.5 * x * x - std::log(-x) - 0.5 * std::log(2 * units::pi) + std::log1p(-1 / (x * x));
   return std::log(0.5 * std::erfc(-x / std::sqrt(2.0)));
 }
 
@@ -226,8 +226,8 @@ Likelihood::Likelihood(const residuals::Catalog& c, KinematicModel m, Offset off
   const auto& gn = gauss_legendre(norm_nodes_);
   const double dmin = m_.prior.distance_min_kpc, dmax = m_.prior.distance_max_kpc;
   const double omin = off.free ? off.min : off.value, omax = off.free ? off.max : off.value;
-  for (auto* v : {&nx_, &ny_, &nz_, &ex_, &ey_, &ez_, &qx_, &qy_, &qz_, &lsr_, &w_, &a_, &dd_,
-                  &v_, &off_, &cww_, &cwa_, &cwd_, &caa_, &cad_, &cdd_, &cvv_, &sw_})
+  for (auto* v : {&nx_, &ny_, &nz_,  &ex_,  &ey_,  &ez_,  &qx_,  &qy_,  &qz_,  &lsr_, &w_, &a_,
+                  &dd_, &v_,  &off_, &cww_, &cwa_, &cwd_, &caa_, &cad_, &cdd_, &cvv_, &sw_})
     v->resize(n_);
   node_u_.resize(n_ * std::size_t(nodes_));
   node_d_.resize(n_ * std::size_t(nodes_));
@@ -291,8 +291,8 @@ Likelihood::Likelihood(const residuals::Catalog& c, KinematicModel m, Offset off
     for (std::size_t i = 0; i < n_; ++i)
       for (int j = 0; j < norm_nodes_; ++j) {
         const std::size_t k = i * std::size_t(norm_nodes_) + std::size_t(j);
-        norm_lns_[k] = ln_phi((1 / norm_d_[k] + off_[i] + off.value) / sw_[i] -
-                              m_.prior.parallax_snr_min);
+        norm_lns_[k] =
+            ln_phi((1 / norm_d_[k] + off_[i] + off.value) / sw_[i] - m_.prior.parallax_snr_min);
       }
   }
   if (!norm_lns_.empty()) {
@@ -323,10 +323,9 @@ double Likelihood::ln_normalisation(std::size_t i, const FullParams& p) const {
   const bool disk = prior.kind == DistancePrior::Kind::disk;
   const bool snr = prior.parallax_snr_min > 0;
   if (disk && (!snr || !norm_lns_.empty()))
-    return disk_normalisation(norm_d_.data() + b,
-                              (norm_lns_.empty() ? norm_lnw_ : norm_lnw_s_).data() + b,
-                              norm_nodes_, n[0], n[1], n[2], get(p, Param::r0),
-                              get(p, Param::z_sun), hr, hz, buf);
+    return disk_normalisation(
+        norm_d_.data() + b, (norm_lns_.empty() ? norm_lnw_ : norm_lnw_s_).data() + b, norm_nodes_,
+        n[0], n[1], n[2], get(p, Param::r0), get(p, Param::z_sun), hr, hz, buf);
   for (int j = 0; j < norm_nodes_; ++j) {
     const double d = norm_d_[b + std::size_t(j)];
     double v = norm_lnw_[b + std::size_t(j)];
@@ -371,7 +370,7 @@ void Likelihood::source_terms(std::size_t i, const FullParams& p, double& ln_goo
   in.sv2 = get(p, Param::dispersion_v) * get(p, Param::dispersion_v);
   in.sw2 = get(p, Param::dispersion_w) * get(p, Param::dispersion_w);
   in.hr = m_.prior.kind == DistancePrior::Kind::edsd ? m_.prior.edsd_length_kpc
-                                                      : get(p, Param::disk_scale_length);
+                                                     : get(p, Param::disk_scale_length);
   in.hz = get(p, Param::disk_scale_height);
   in.offset = off_[i] + get(p, Param::parallax_offset);
   in.w = w_[i], in.a = a_[i], in.dd = dd_[i], in.v = v_[i], in.lsr = lsr_[i];

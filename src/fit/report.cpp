@@ -9,10 +9,10 @@
 #include <unistd.h>
 
 #include "undertow/detail/kernel.hpp"
+#include "undertow/fit/measurement_draw.hpp"
 #include "undertow/io/atomic_file.hpp"
 #include "undertow/io/hdf5.hpp"
 #include "undertow/io/table_hdf5.hpp"
-#include "undertow/fit/measurement_draw.hpp"
 #include "undertow/residuals/peculiar.hpp"
 #include "undertow/units.hpp"
 
@@ -22,7 +22,6 @@ namespace {
 double at(const FullParams& p, Param k) {
   return p[std::size_t(k)];
 }
-
 
 FullParams start_params(const FitSpec& s) {
   const auto free = free_params(s);
@@ -43,7 +42,6 @@ residuals::ResidualSettings settings_for(const std::shared_ptr<const KinematicMo
   rs.lsr = m.lsr;
   return rs;
 }
-
 
 constexpr double kLo = 0.15865525393145707, kHi = 0.8413447460685429;
 
@@ -71,16 +69,16 @@ Selection select_sources(const FitFile& f, const residuals::Catalog& c) {
   for (const auto& s : c.sources) {
     const sky::Vec3 n = sky::galactic_direction(s.ra_deg, s.dec_deg);
     if (f.longitude_min_deg > 0 && n[0] > cos_cut) {
-      sel.excluded.push_back(s.name + ": within longitude_min_deg = " +
-                             detail::num(f.longitude_min_deg) +
+      sel.excluded.push_back(s.name +
+                             ": within longitude_min_deg = " + detail::num(f.longitude_min_deg) +
                              " deg of the Galactic centre's direction");
       continue;
     }
     // the likelihood's own test: the parallax within 7 sigma of the prior's range
     const double w = s.parallax_mas - s.parallax_offset_mas, sw = s.parallax_err_mas;
     const double u_lo = std::max(1 / prior.distance_max_kpc, w - omax - 7 * sw);
-    const double u_hi =
-        std::min(prior.distance_min_kpc > 0 ? 1 / prior.distance_min_kpc : INFINITY, w - omin + 7 * sw);
+    const double u_hi = std::min(prior.distance_min_kpc > 0 ? 1 / prior.distance_min_kpc : INFINITY,
+                                 w - omin + 7 * sw);
     if (!(u_hi > u_lo)) {
       sel.excluded.push_back(s.name + ": parallax " + detail::num(s.parallax_mas) + " ± " +
                              detail::num(sw) + " mas is more than 7 sigma from the prior's range " +
@@ -138,7 +136,8 @@ std::vector<SourceResult> source_results(const FitSpec& s, const residuals::Cata
     std::optional<DistancePosterior> opt;
     try {
       opt.emplace(src.parallax_mas, src.parallax_err_mas,
-                  src.parallax_offset_mas + at(pm, Param::parallax_offset), dir.data(), med_prior, g);
+                  src.parallax_offset_mas + at(pm, Param::parallax_offset), dir.data(), med_prior,
+                  g);
     } catch (const InputError&) { // possible only at the edge of the range: no per-source result
       res.distance_kpc = res.distance_lo_kpc = res.distance_hi_kpc = NAN;
       res.uvw.fill(NAN), res.uvw_lo.fill(NAN), res.uvw_hi.fill(NAN);
@@ -172,10 +171,10 @@ std::vector<SourceResult> source_results(const FitSpec& s, const residuals::Cata
                                        std::max(25.0, s.model.prior.distance_max_kpc));
     const auto& kd = res.kinematic;
     if (std::isfinite(kd.near_kpc)) {
-      res.kinematic_kpc = std::fabs(kd.near_kpc - res.distance_kpc) <=
-                                  std::fabs(kd.far_kpc - res.distance_kpc)
-                              ? kd.near_kpc
-                              : kd.far_kpc;
+      res.kinematic_kpc =
+          std::fabs(kd.near_kpc - res.distance_kpc) <= std::fabs(kd.far_kpc - res.distance_kpc)
+              ? kd.near_kpc
+              : kd.far_kpc;
       res.kinematic_ratio = res.kinematic_kpc / res.distance_kpc;
       res.factor_two = res.kinematic_ratio >= 2 || res.kinematic_ratio <= 0.5;
     }
@@ -199,7 +198,8 @@ std::string prior_text(const ParamSetting& q) {
     t = "flat (improper)";
     break;
   }
-  if (q.prior.kind == Prior::Kind::gaussian && (std::isfinite(q.prior.min) || std::isfinite(q.prior.max)))
+  if (q.prior.kind == Prior::Kind::gaussian &&
+      (std::isfinite(q.prior.min) || std::isfinite(q.prior.max)))
     t += " within [" + detail::num(q.prior.min) + ", " + detail::num(q.prior.max) + "]";
   return t;
 }
@@ -233,7 +233,8 @@ io::Table parameter_table(const FitFile& f, const FitResult& r, const std::strin
     t.row_labels.push_back(r.derived_names[k] + " (derived)");
     t.add_row({m.median, m.median - m.lo, m.hi - m.median, m.map, NAN, NAN, NAN});
   }
-  t.notes.push_back("Units: in each parameter's name (_kpc, _kms = km/s, _kms_kpc = km/s/kpc, _mas).");
+  t.notes.push_back(
+      "Units: in each parameter's name (_kpc, _kms = km/s, _kms_kpc = km/s/kpc, _mas).");
   for (const auto& q : f.spec.params)
     t.notes.push_back(std::string(param_info(q.param).key) + ": " + prior_text(q));
   t.notes.push_back(status);
@@ -249,7 +250,8 @@ io::Table correlation_table(const FitResult& r) {
     t.columns.push_back({param_info(p).key, param_info(p).latex, param_info(p).plain, "", 4});
   for (std::size_t a = 0; a < n; ++a) {
     t.row_labels.push_back(param_info(r.free[a]).key);
-    std::vector<double> row(r.correlation.begin() + long(a * n), r.correlation.begin() + long((a + 1) * n));
+    std::vector<double> row(r.correlation.begin() + long(a * n),
+                            r.correlation.begin() + long((a + 1) * n));
     t.add_row(row);
   }
   return t;
@@ -299,7 +301,8 @@ io::Table kinematic_table(const std::vector<SourceResult>& src) {
   for (const auto& s : src) {
     t.row_labels.push_back(s.name);
     t.add_row({s.distance_kpc, s.kinematic.near_kpc, s.kinematic.far_kpc, s.kinematic_kpc,
-               s.kinematic_ratio, s.kinematic.beyond_terminal ? 1.0 : 0.0, s.factor_two ? 1.0 : 0.0});
+               s.kinematic_ratio, s.kinematic.beyond_terminal ? 1.0 : 0.0,
+               s.factor_two ? 1.0 : 0.0});
     flagged += s.factor_two;
     beyond += s.kinematic.beyond_terminal;
   }
@@ -317,12 +320,13 @@ io::Table kinematic_table(const std::vector<SourceResult>& src) {
 
 std::string status_line(const FitResult& r) {
   std::ostringstream o;
-  o << (r.converged ? "converged" : r.interrupted ? "INTERRUPTED" : "NOT CONVERGED") << ": "
-    << r.walkers << " walkers × " << r.steps << " steps, first " << r.diag.burn
-    << " discarded; largest autocorrelation time " << detail::num(r.diag.tau_max)
-    << " steps (kept " << detail::num(double(r.diag.kept) / r.diag.tau_max)
-    << " τ), largest split-R̂ " << detail::num(r.diag.r_hat_max) << ", acceptance "
-    << detail::num(r.acceptance);
+  o << (r.converged     ? "converged"
+        : r.interrupted ? "INTERRUPTED"
+                        : "NOT CONVERGED")
+    << ": " << r.walkers << " walkers × " << r.steps << " steps, first " << r.diag.burn
+    << " discarded; largest autocorrelation time " << detail::num(r.diag.tau_max) << " steps (kept "
+    << detail::num(double(r.diag.kept) / r.diag.tau_max) << " τ), largest split-R̂ "
+    << detail::num(r.diag.r_hat_max) << ", acceptance " << detail::num(r.acceptance);
   if (!r.converged && !r.interrupted)
     o << "; about " << r.more_steps_needed << " more steps are needed (raise steps_max)";
   return o.str();
@@ -391,7 +395,8 @@ std::vector<std::string> write_fit_files(const std::string& folder, const FitFil
   const auto kt = kinematic_table(src);
   std::vector<std::string> files;
   for (const auto& [stem, t] : {std::pair{"parameters", &pt}, std::pair{"correlations", &ct},
-                                std::pair{"sources", static_cast<const io::Table*>(&st)}, std::pair{"kinematic-distances", &kt}}) {
+                                std::pair{"sources", static_cast<const io::Table*>(&st)},
+                                std::pair{"kinematic-distances", &kt}}) {
     const auto w = io::write_table_files(folder + "/" + stem, *t);
     files.insert(files.end(), w.begin(), w.end());
   }
@@ -400,8 +405,9 @@ std::vector<std::string> write_fit_files(const std::string& folder, const FitFil
   const std::string h5 = folder + "/fit.h5";
   io::h5::File::write_atomically(h5, [&](const io::h5::File& file) {
     const auto root = io::h5::open_group(file, "/");
-    io::h5::set_attr(file, root.id(), "tool", std::string("undertow ") + UNDERTOW_VERSION + " (" +
-                                                  UNDERTOW_GIT_REVISION + ")");
+    io::h5::set_attr(file, root.id(), "tool",
+                     std::string("undertow ") + UNDERTOW_VERSION + " (" + UNDERTOW_GIT_REVISION +
+                         ")");
     io::h5::set_attr(file, root.id(), "fit_file", f.spec.file);
     io::h5::set_attr(file, root.id(), "fit_file_text", f.text);
     io::h5::set_attr(file, root.id(), "catalog", f.spec.catalog_path);
@@ -488,11 +494,12 @@ GalacticFromFit read_galactic_parameters(const std::string& path) {
   g.file = path;
   const auto f = io::h5::File::open_read(path);
   if (!io::h5::exists(f, "galactic"))
-    throw InputError(SourcePlace{path, 0, 0, "galactic"},
-                     "not a kinematic fit's output (no group 'galactic'; written by 'undertow fit')");
+    throw InputError(
+        SourcePlace{path, 0, 0, "galactic"},
+        "not a kinematic fit's output (no group 'galactic'; written by 'undertow fit')");
   const auto gal = io::h5::open_group(f, "galactic");
-  if (io::h5::get_attr_string(f, gal.id(), "parameters").find(param_info(Param::disk_scale_height).key) ==
-      std::string::npos)
+  if (io::h5::get_attr_string(f, gal.id(), "parameters")
+          .find(param_info(Param::disk_scale_height).key) == std::string::npos)
     throw InputError(SourcePlace{path, 0, 0, "galactic"}, "written by another version of undertow");
   const auto root = io::h5::open_group(f, "/");
   g.converged = io::h5::get_attr_int(f, root.id(), "converged") != 0;

@@ -34,14 +34,14 @@ residuals::Catalog simulate_catalog(const KinematicTruth& t) {
       x = -r0 + dp * std::cos(l), y = dp * std::sin(l);
       z = zmax * (2 * rng.uniform() - 1);
       const double d = std::sqrt(dp * dp + z * z), R = std::hypot(x, y);
-      const double accept = std::exp(-std::fabs(z) / hz) *
-                            (t.disk_scale_length_kpc > 0
-                                 ? std::exp(-(R - std::max(0.0, r0 - dmax)) / t.disk_scale_length_kpc)
-                                 : 1.0);
+      const double accept =
+          std::exp(-std::fabs(z) / hz) *
+          (t.disk_scale_length_kpc > 0
+               ? std::exp(-(R - std::max(0.0, r0 - dmax)) / t.disk_scale_length_kpc)
+               : 1.0);
       // direction cut: angle between the line of sight and the direction of the centre
       const double toward_centre = (dp * std::cos(l)) / std::max(d, 1e-12);
-      if (d >= dmin && d <= dmax && R < rmax && toward_centre <= cos_lmin &&
-          rng.uniform() < accept)
+      if (d >= dmin && d <= dmax && R < rmax && toward_centre <= cos_lmin && rng.uniform() < accept)
         break;
       if (attempt > 100000) throw InputError("simulate: the truth's volume selects nothing");
     }

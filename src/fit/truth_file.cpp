@@ -35,8 +35,8 @@ KinematicTruth parse_truth_file(const std::string& text, const std::string& name
     rot.fail("form", "a truth file takes flat, linear or power-law");
   rot.finish({"form"});
   io::TableReader vol(vol_t, name, "volume");
-  const std::vector<std::string> vkeys{"distance_min_kpc", "distance_max_kpc",
-                                       "longitude_min_deg", "dec_min_deg",
+  const std::vector<std::string> vkeys{"distance_min_kpc",      "distance_max_kpc",
+                                       "longitude_min_deg",     "dec_min_deg",
                                        "disk_scale_length_kpc", "scale_height_kpc"};
   vol.check_keys(vkeys);
   t.distance_min_kpc = vol.number_or("distance_min_kpc", t.distance_min_kpc);
@@ -48,7 +48,8 @@ KinematicTruth parse_truth_file(const std::string& text, const std::string& name
   if (!(t.longitude_min_deg >= 0 && t.longitude_min_deg < 180))
     vol.fail("longitude_min_deg", "must lie in [0, 180)");
   t.dec_min_deg = vol.number_or("dec_min_deg", t.dec_min_deg);
-  if (!(t.dec_min_deg >= -90 && t.dec_min_deg < 90)) vol.fail("dec_min_deg", "must lie in [-90, 90)");
+  if (!(t.dec_min_deg >= -90 && t.dec_min_deg < 90))
+    vol.fail("dec_min_deg", "must lie in [-90, 90)");
   t.disk_scale_length_kpc = vol.number_or("disk_scale_length_kpc", t.disk_scale_length_kpc);
   if (!(t.disk_scale_length_kpc >= 0)) vol.fail("disk_scale_length_kpc", "must not be negative");
   t.scale_height_kpc = vol.number_or("scale_height_kpc", t.scale_height_kpc);
@@ -88,9 +89,8 @@ KinematicTruth parse_truth_file(const std::string& text, const std::string& name
     for (const auto& [k, node] : *pt) {
       const std::string key(k.str());
       const Param p = param_from_key(key, pr.place(key));
-      if (std::find(used.begin(), used.end(), p) == used.end() ||
-          p == Param::disk_scale_length || p == Param::disk_scale_height ||
-          p == Param::outlier_fraction)
+      if (std::find(used.begin(), used.end(), p) == used.end() || p == Param::disk_scale_length ||
+          p == Param::disk_scale_height || p == Param::outlier_fraction)
         pr.fail(key, "is not a parameter of this truth (the volume is under [volume])");
       t.params[std::size_t(p)] = pr.number(key);
     }

@@ -68,8 +68,8 @@ ObservationSpec observation_from_table(const toml::table& t, const std::string& 
       s.lsr = g.model.lsr;
       s.sun_source = std::string(g.converged ? "" : "NOT CONVERGED ") + "kinematic fit " + path +
                      " (posterior median; Theta0 the model's v_c(R0), V_sun set so that "
-                     "Theta0 + V_sun = " + detail::num(g.model.theta0(p) + at(fit::Param::v_sun)) +
-                     " km/s as fitted)";
+                     "Theta0 + V_sun = " +
+                     detail::num(g.model.theta0(p) + at(fit::Param::v_sun)) + " km/s as fitted)";
       q.finish({"from_fit"});
       try {
         s.sun.validate();
@@ -77,19 +77,19 @@ ObservationSpec observation_from_table(const toml::table& t, const std::string& 
         q.fail("from_fit", e.what());
       }
     } else {
-    s.sun.r0_kpc = q.number("r0_kpc");
-    s.sun.z_sun_kpc = q.number_or("z_sun_kpc", 0.0);
-    if (q.has("solar_motion_kms")) {
-      const auto v = q.numbers("solar_motion_kms");
-      if (v.size() != 3) q.fail("solar_motion_kms", "must hold three numbers: U, V, W");
-      s.sun.u_sun_kms = v[0], s.sun.v_sun_kms = v[1], s.sun.w_sun_kms = v[2];
-    }
-    s.sun.theta0_kms = q.number_or("theta0_kms", dynamics::circular_speed(m, s.sun.r0_kpc));
-    try {
-      s.sun.validate();
-    } catch (const InputError& e) {
-      q.fail(e.place().field, e.what());
-    }
+      s.sun.r0_kpc = q.number("r0_kpc");
+      s.sun.z_sun_kpc = q.number_or("z_sun_kpc", 0.0);
+      if (q.has("solar_motion_kms")) {
+        const auto v = q.numbers("solar_motion_kms");
+        if (v.size() != 3) q.fail("solar_motion_kms", "must hold three numbers: U, V, W");
+        s.sun.u_sun_kms = v[0], s.sun.v_sun_kms = v[1], s.sun.w_sun_kms = v[2];
+      }
+      s.sun.theta0_kms = q.number_or("theta0_kms", dynamics::circular_speed(m, s.sun.r0_kpc));
+      try {
+        s.sun.validate();
+      } catch (const InputError& e) {
+        q.fail(e.place().field, e.what());
+      }
     }
   }
   if (const toml::table* sel = r.table("selection")) {

@@ -28,7 +28,6 @@ fit::DistancePrior prior_of(const ResidualSettings& s) {
   return p;
 }
 
-
 // The distance estimate for a parallax w (already corrected for the zero point).
 double distance_of(const Source& src, double w, double sw, const ResidualSettings& s) {
   switch (s.distance) {
@@ -53,8 +52,8 @@ struct Inputs {
 
 std::array<double, 3> uvw_at(const Source& src, double d, double pa, double pd, double v,
                              const ResidualSettings& s, const sky::SolarFrame& sun,
-                             const RotationCurve& rot, double* R = nullptr,
-                             double* psi = nullptr, double* z = nullptr) {
+                             const RotationCurve& rot, double* R = nullptr, double* psi = nullptr,
+                             double* z = nullptr) {
   const sky::Observed o{src.ra_deg, src.dec_deg, pa, pd,
                         sky::lsr_to_helio(v, src.ra_deg, src.dec_deg, s.lsr)};
   return peculiar_motion(o, d, sun, rot, R, psi, z);
@@ -93,8 +92,8 @@ double RotationCurve::at(double R) const {
 }
 
 std::array<double, 3> peculiar_motion(const sky::Observed& o, double d, const sky::SolarFrame& sun,
-                                      const RotationCurve& rotation, double* R_out,
-                                      double* psi_out, double* z_out) {
+                                      const RotationCurve& rotation, double* R_out, double* psi_out,
+                                      double* z_out) {
   const auto g = sky::to_galactocentric(o, d, sun);
   const double R = std::hypot(g.r[0], g.r[1]);
   const double ex = -g.r[0] / R, ey = -g.r[1] / R; // toward the centre
@@ -148,8 +147,7 @@ ResidualResult compute_residuals(const Catalog& c, const ResidualSettings& s) {
     const sky::Vec3 dir = sky::galactic_direction(src.ra_deg, src.dec_deg);
     try {
       if (from_posterior(s))
-        post.emplace(w, sw, 0, dir.data(), prior,
-                     fit::Geometry{s.sun.r0_kpc, s.sun.z_sun_kpc});
+        post.emplace(w, sw, 0, dir.data(), prior, fit::Geometry{s.sun.r0_kpc, s.sun.z_sun_kpc});
     } catch (const InputError& e) {
       out.excluded.push_back(src.name + ": " + e.what());
       continue;

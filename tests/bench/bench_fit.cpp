@@ -2,7 +2,8 @@
 // quadrature nodes per source) for 100, 200, 1 000 and 10 000 sources, reported as ns per source
 // and per source-node, on all threads and on one; and a whole fit of 200 sources (9 free
 // parameters, posterior to convergence). Uniform or disk distance prior (the disk prior's
-// normalisation depends on R0 and costs a second, shorter quadrature per source). Targets: one evaluation of 200 sources with 128 nodes
+// normalisation depends on R0 and costs a second, shorter quadrature per source). Targets: one
+// evaluation of 200 sources with 128 nodes
 // <= 90 µs on 2 cores, a whole fit of 200 sources <= 10 s.
 #include <benchmark/benchmark.h>
 #include <map>
@@ -18,7 +19,8 @@ namespace {
 const residuals::Catalog& catalog(std::size_t n) {
   static std::map<std::size_t, residuals::Catalog> cache;
   auto it = cache.find(n);
-  if (it == cache.end()) it = cache.emplace(n, fit::simulate_catalog(test::standard_truth(n, 3))).first;
+  if (it == cache.end())
+    it = cache.emplace(n, fit::simulate_catalog(test::standard_truth(n, 3))).first;
   return it->second;
 }
 
@@ -35,9 +37,8 @@ void BM_likelihood(benchmark::State& st) {
     benchmark::DoNotOptimize(L(t.params));
   omp_set_num_threads(before);
   st.counters["sources"] = double(n);
-  st.counters["ns_per_source"] =
-      benchmark::Counter(double(n), benchmark::Counter::kIsIterationInvariantRate |
-                                        benchmark::Counter::kInvert);
+  st.counters["ns_per_source"] = benchmark::Counter(
+      double(n), benchmark::Counter::kIsIterationInvariantRate | benchmark::Counter::kInvert);
   st.counters["ns_per_node"] =
       benchmark::Counter(double(n) * nodes, benchmark::Counter::kIsIterationInvariantRate |
                                                 benchmark::Counter::kInvert);

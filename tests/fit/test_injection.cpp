@@ -69,8 +69,9 @@ TEST_CASE("Injection and recovery over many simulated catalogs: calibrated pulls
     const double coverage = double(covered[j]) / trials;
     // binomial error of a 68.27 % coverage over this many trials
     const double cov_err = std::sqrt(0.6827 * 0.3173 / trials);
-    std::cout << "  " << fit::param_info(checked[j]).key << ": pull mean " << mean << ", dispersion "
-              << sd << ", 68 % coverage " << coverage << " ± " << cov_err << "\n";
+    std::cout << "  " << fit::param_info(checked[j]).key << ": pull mean " << mean
+              << ", dispersion " << sd << ", 68 % coverage " << coverage << " ± " << cov_err
+              << "\n";
     INFO(fit::param_info(checked[j]).key << ": pull mean " << mean << ", dispersion " << sd
                                          << ", coverage " << coverage);
     CHECK(std::fabs(mean) < 0.3);

@@ -102,8 +102,7 @@ double reference_ln_l(const residuals::Source& s, const fit::KinematicModel& m,
     const Eigen::LDLT<Eigen::Matrix4d> ldlt(C);
     const double chi2 = res.dot(ldlt.solve(res));
     const double lndet = std::log(C.determinant());
-    return std::exp(-0.5 * chi2 - 0.5 * lndet - 2 * std::log(2 * units::pi)) * rho_at(d, r) * d *
-           d;
+    return std::exp(-0.5 * chi2 - 0.5 * lndet - 2 * std::log(2 * units::pi)) * rho_at(d, r) * d * d;
   };
   using GK = boost::math::quadrature::gauss_kronrod<double, 61>;
   const double num = GK::integrate(integrand, pr.distance_min_kpc, pr.distance_max_kpc, 20, 1e-12);
@@ -234,7 +233,8 @@ TEST_CASE("A fit refuses degenerate parameters left free without a Gaussian prio
   REQUIRE(d.size() == 1);
   CHECK_THAT(d[0], Catch::Contains("theta0_kms, v_sun_kms and mean_v_kms"));
   for (auto& q : s.params)
-    if (q.param == Param::mean_w) q = test::setting(Param::mean_w, true, 0, fit::Prior::Kind::uniform, -20, 20);
+    if (q.param == Param::mean_w)
+      q = test::setting(Param::mean_w, true, 0, fit::Prior::Kind::uniform, -20, 20);
   d = fit::degeneracies(s);
   REQUIRE(d.size() == 2);
   CHECK_THAT(d[1], Catch::Contains("W̄_s − W☉"));
@@ -300,7 +300,8 @@ TEST_CASE("Kinematic distances are off by a factor of two for some sources of a 
       if (std::fabs(std::sin(l)) < 0.35) continue;
       const double d = 1 / s.parallax_mas;
       const auto k = fit::kinematic_distance(s.ra_deg, s.dec_deg, s.vlsr_kms, t.model, truth);
-      const double kin = std::fabs(k.near_kpc - d) < std::fabs(k.far_kpc - d) ? k.near_kpc : k.far_kpc;
+      const double kin =
+          std::fabs(k.near_kpc - d) < std::fabs(k.far_kpc - d) ? k.near_kpc : k.far_kpc;
       const bool f = std::isfinite(kin) && (kin / d >= 2 || kin / d <= 0.5);
       flagged += f;
     }

@@ -20,8 +20,8 @@ public:
   // y = x + γ (x_j − x_k) with x_j, x_k from the other half, γ = 2.38/sqrt(2 ndim) (and γ = 1
   // one time in ten, to jump between modes); the rest are stretch moves. 0 is Goodman & Weare's
   // sampler as published. Both moves satisfy detailed balance, so any mixture does too.
-  EnsembleSampler(int ndim, int walkers, std::uint64_t seed, LogProb log_prob,
-                  double stretch = 2.0, double de_fraction = 0.0);
+  EnsembleSampler(int ndim, int walkers, std::uint64_t seed, LogProb log_prob, double stretch = 2.0,
+                  double de_fraction = 0.0);
 
   // Starting positions (walkers × ndim, row-major); every one must have a finite log_prob.
   void start(const std::vector<double>& positions);
@@ -38,17 +38,21 @@ public:
     return chain_[(std::size_t(s) * std::size_t(walkers_) + std::size_t(w)) * std::size_t(ndim_) +
                   std::size_t(k)];
   }
-  double lnp(long s, int w) const { return lnp_[std::size_t(s) * std::size_t(walkers_) + std::size_t(w)]; }
+  double lnp(long s, int w) const {
+    return lnp_[std::size_t(s) * std::size_t(walkers_) + std::size_t(w)];
+  }
   const std::vector<double>& chain_data() const { return chain_; }
   const std::vector<double>& lnp_data() const { return lnp_; }
-  double acceptance_fraction() const { return steps() ? double(accepted_) / double(steps() * walkers_) : 0; }
+  double acceptance_fraction() const {
+    return steps() ? double(accepted_) / double(steps() * walkers_) : 0;
+  }
 
 private:
   int ndim_, walkers_;
   std::uint64_t seed_;
   LogProb f_;
   double a_, de_;
-  std::vector<double> x_, lp_;     // current positions and ln p
+  std::vector<double> x_, lp_; // current positions and ln p
   std::vector<double> chain_, lnp_;
   long accepted_ = 0;
 };

@@ -13,12 +13,12 @@ namespace undertow::fit {
 
 struct FitFile {
   FitSpec spec;
-  std::string text;           // the file verbatim, for provenance
+  std::string text; // the file verbatim, for provenance
   // Sources seen within this angle of the Galactic centre's direction are left out: a cut on
   // direction alone, so the distances of the sources kept still follow the prior, and no line of
   // sight passes closer to the centre than R0 sin(angle), where circular rotation is no model.
   double longitude_min_deg = 15;
-  std::string model_file;     // for the model rotation form
+  std::string model_file; // for the model rotation form
 };
 
 FitFile load_fit_file(const std::string& path);

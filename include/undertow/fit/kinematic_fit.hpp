@@ -16,11 +16,12 @@
 namespace undertow::fit {
 
 struct SamplerSettings {
-  int walkers = 0;         // 0: the larger of 32 and 2 × (free parameters) + 2
-  long steps_max = 40000;  // per walker
-  int chunk = 500;         // steps between convergence checks
-  double tau_multiple = 50; // kept steps per autocorrelation time (Foreman-Mackey et al. 2013 suggest about 50)
-  double r_hat_max = 1.03;  // split-R̂ over walkers (each walker's chain split in halves)
+  int walkers = 0;        // 0: the larger of 32 and 2 × (free parameters) + 2
+  long steps_max = 40000; // per walker
+  int chunk = 500;        // steps between convergence checks
+  double tau_multiple =
+      50; // kept steps per autocorrelation time (Foreman-Mackey et al. 2013 suggest about 50)
+  double r_hat_max = 1.03; // split-R̂ over walkers (each walker's chain split in halves)
   std::uint64_t seed = 1;
   double de_fraction = 0.8; // share of differential-evolution moves (0: pure stretch moves)
   bool accept_unconverged = false;

@@ -13,27 +13,27 @@
 namespace undertow::fit {
 
 enum class Param {
-  r0,                 // R0, kpc
-  theta0,             // Θ0, km/s
-  sun_angular_speed,  // Ω☉ = (Θ0 + V☉)/R0, km/s/kpc: an alternative to Θ0
-  rotation_slope,     // dΘ/dR, km/s/kpc (linear form)
-  rotation_index,     // α of Θ = Θ0 (R/R0)^α (power-law form)
-  model_scale,        // s of Θ = s v_c,model(R) (model form)
-  u_sun,              // U☉, km/s
-  v_sun,              // V☉, km/s
-  w_sun,              // W☉, km/s
-  z_sun,              // z☉, kpc
-  mean_u,             // Ū_s, km/s
-  mean_v,             // V̄_s, km/s
-  mean_w,             // W̄_s, km/s
-  dispersion,         // σ, km/s (isotropic)
-  dispersion_u,       // σ_U, km/s (per component)
-  dispersion_v,       // σ_V
-  dispersion_w,       // σ_W
-  parallax_offset,    // ϖ_0, mas: ϖ_measured = ϖ_true + ϖ_0
-  outlier_fraction,   // f of the outlier mixture
-  disk_scale_length,  // h_R of the disk distance prior, kpc
-  disk_scale_height,  // h_z of the disk distance prior, kpc
+  r0,                // R0, kpc
+  theta0,            // Θ0, km/s
+  sun_angular_speed, // Ω☉ = (Θ0 + V☉)/R0, km/s/kpc: an alternative to Θ0
+  rotation_slope,    // dΘ/dR, km/s/kpc (linear form)
+  rotation_index,    // α of Θ = Θ0 (R/R0)^α (power-law form)
+  model_scale,       // s of Θ = s v_c,model(R) (model form)
+  u_sun,             // U☉, km/s
+  v_sun,             // V☉, km/s
+  w_sun,             // W☉, km/s
+  z_sun,             // z☉, kpc
+  mean_u,            // Ū_s, km/s
+  mean_v,            // V̄_s, km/s
+  mean_w,            // W̄_s, km/s
+  dispersion,        // σ, km/s (isotropic)
+  dispersion_u,      // σ_U, km/s (per component)
+  dispersion_v,      // σ_V
+  dispersion_w,      // σ_W
+  parallax_offset,   // ϖ_0, mas: ϖ_measured = ϖ_true + ϖ_0
+  outlier_fraction,  // f of the outlier mixture
+  disk_scale_length, // h_R of the disk distance prior, kpc
+  disk_scale_height, // h_z of the disk distance prior, kpc
   count
 };
 inline constexpr std::size_t kParams = std::size_t(Param::count);

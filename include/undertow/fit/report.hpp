@@ -29,9 +29,9 @@ struct SourceResult {
   std::array<double, 3> uvw{}, uvw_lo{}, uvw_hi{}; // U_s, V_s, W_s median and 16/84 %
   double outlier_probability = 0;
   KinematicDistance kinematic;
-  double kinematic_kpc = NAN; // of near/far, the one closer to the parallax distance
+  double kinematic_kpc = NAN;   // of near/far, the one closer to the parallax distance
   double kinematic_ratio = NAN; // kinematic / parallax distance
-  bool factor_two = false;    // ratio >= 2 or <= 1/2
+  bool factor_two = false;      // ratio >= 2 or <= 1/2
 };
 
 // draws: posterior samples (each with a distance and measurement draw) per source.
@@ -50,7 +50,7 @@ std::vector<std::string> write_fit_outputs(const std::string& folder, const FitF
 struct GalacticFromFit {
   std::string file;
   bool converged = false;
-  KinematicModel model;           // the rotation form and, for the model form, its curve
+  KinematicModel model; // the rotation form and, for the model form, its curve
   FullParams median{};
   std::vector<FullParams> samples;
 };

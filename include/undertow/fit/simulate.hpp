@@ -16,12 +16,12 @@
 namespace undertow::fit {
 
 struct KinematicTruth {
-  FullParams params{};                            // R0, Θ0, solar motion, mean motion, σ...
-  KinematicModel model;                           // its rotation form (not "model")
+  FullParams params{};  // R0, Θ0, solar motion, mean motion, σ...
+  KinematicModel model; // its rotation form (not "model")
   std::size_t sources = 200;
   double distance_min_kpc = 2, distance_max_kpc = 12; // true heliocentric distance
   double longitude_min_deg = 30; // no source within this angle of the Galactic centre's direction
-  double dec_min_deg = -90;       // the survey's sky: declination at least this (a northern array)
+  double dec_min_deg = -90;      // the survey's sky: declination at least this (a northern array)
   double disk_scale_length_kpc = 5; // h_R; 0: uniform in R
   double scale_height_kpc = 0.05;   // h_z of the exponential in |z|
   // Spiral streaming: δU_s = A cos χ, δV_s = A sin χ with χ = m (φ − ln(R/R0) / tan p), about
