@@ -128,7 +128,8 @@ Component read_component(const toml::table& t, const std::string& file, const st
 }
 
 const std::vector<std::string> pattern_common = {
-    "kind", "label", "pattern_speed_kms_kpc", "phase_deg", "grow_start_myr", "grow_duration_myr"};
+    "kind",           "label",          "pattern_speed_kms_kpc", "phase_deg", "arm_azimuth_deg",
+    "arm_azimuth_at_myr", "grow_start_myr", "grow_duration_myr"};
 
 // Builds a pattern; force ratios and bar strengths need the finished axisymmetric model.
 Pattern read_pattern(const toml::table& t, const std::string& file, const std::string& ctx,
@@ -155,7 +156,23 @@ Pattern read_pattern(const toml::table& t, const std::string& file, const std::s
   Pattern p;
   p.label = r.string_or("label", kind);
   p.pattern_speed = r.number("pattern_speed_kms_kpc");
-  p.phase = r.number_or("phase_deg", 0.0) * units::deg;
+  if (r.has("arm_azimuth_deg") || r.has("arm_azimuth_at_myr")) {
+    // The pattern where it is at a given time (the observation's), so that a sweep over the
+    // pattern speed keeps today's arms where the data see them; the t = 0 phase follows.
+    if (r.has("phase_deg"))
+      r.fail("phase_deg", "give phase_deg (at t = 0) or arm_azimuth_deg with arm_azimuth_at_myr, "
+                          "not both");
+    if (!r.has("arm_azimuth_deg"))
+      r.fail("arm_azimuth_at_myr", "needs arm_azimuth_deg (the azimuth at that time)");
+    if (!r.has("arm_azimuth_at_myr"))
+      r.fail("arm_azimuth_deg", "needs arm_azimuth_at_myr (the time of that azimuth, usually "
+                                "the observation's)");
+    const double a = r.number("arm_azimuth_deg") * units::deg, t = r.number("arm_azimuth_at_myr");
+    const double turned = p.pattern_speed * t * units::kms_per_kpc_times_myr;
+    p.phase = std::remainder(a - turned, 2 * units::pi); // in [-pi, pi]
+  } else {
+    p.phase = r.number_or("phase_deg", 0.0) * units::deg;
+  }
   p.growth.start_myr = r.number_or("grow_start_myr", 0.0);
   p.growth.duration_myr = r.number_or("grow_duration_myr", 0.0);
   if (p.growth.duration_myr < 0) r.fail("grow_duration_myr", "must not be negative");

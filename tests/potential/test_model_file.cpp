@@ -178,3 +178,46 @@ TEST_CASE("A missing model file is a one-line error naming it", "[model-file]") 
   CHECK_THROWS_WITH(potential::load_model_file("no/such/model.toml"),
                     "no/such/model.toml: cannot open file");
 }
+
+TEST_CASE("Arm azimuth at the observation time: for every pattern speed the potential trough at "
+          "R_ref then lies at the given azimuth within 0.1 deg (definition of the pattern angle "
+          "psi_p(t) = phase + Omega_p t)",
+          "[model-file]") {
+  const auto model = [](double speed, const std::string& phase_keys) {
+    return parse_model_text(R"(
+[[component]]
+kind = "logarithmic"
+speed_kms = 220
+core_kpc = 1
+[[pattern]]
+label = "arms"
+kind = "log-spiral"
+arms = 4
+pitch_deg = 20
+reference_radius_kpc = 8.1
+amplitude_kms2 = 300
+pattern_speed_kms_kpc = )" + std::to_string(speed) +
+                                "\n" + phase_keys,
+                            "m.toml");
+  };
+  for (double speed : {15.0, 18.0, 21.0, 24.0}) {
+    const auto m = model(speed, "arm_azimuth_deg = 43\narm_azimuth_at_myr = 600\n");
+    // the trough nearest 43 deg on the circle R = R_ref at t = 600 Myr, on a 0.01 deg grid
+    double best = 1e300, at = 0;
+    for (int i = 0; i < 4500; ++i) {
+      const double psi = units::deg * (20 + i / 100.0);
+      const double v = m.pattern_potential(0, {-8.1 * std::cos(psi), 8.1 * std::sin(psi), 0}, 600);
+      if (v < best) best = v, at = psi / units::deg;
+    }
+    INFO("pattern speed " << speed << " km/s/kpc: trough at " << at << " deg");
+    CHECK(at == Approx(43).margin(0.1));
+    // and the t = 0 phase is the one that turns into 43 deg by 600 Myr
+    const double turned = speed * 600 * units::kms_per_kpc_times_myr;
+    CHECK(std::remainder(m.patterns[0].phase + turned - 43 * units::deg, 2 * units::pi) ==
+          Approx(0).margin(1e-12));
+  }
+  CHECK_THROWS_WITH(model(21, "arm_azimuth_deg = 43\n"), Catch::Contains("arm_azimuth_at_myr"));
+  CHECK_THROWS_WITH(model(21, "arm_azimuth_at_myr = 600\n"), Catch::Contains("arm_azimuth_deg"));
+  CHECK_THROWS_WITH(model(21, "phase_deg = 5\narm_azimuth_deg = 43\narm_azimuth_at_myr = 600\n"),
+                    Catch::Contains("not both"));
+}
