@@ -287,7 +287,8 @@ int run_observe(const ObserveArgs& a) {
   std::cout << "wrote " << out << ": " << mock.catalog.sources.size()
             << " sources observed at t = " << prep.time_myr << " Myr (" << mock.candidates
             << " tracers inside the selection volume, " << mock.rejected_snr
-            << " below the parallax signal-to-noise limit"
+            << " below the parallax signal-to-noise limit, " << mock.rejected_parallax
+            << " outside the observed-parallax range"
             << (spec.settings.young
                     ? ", weighted as young sources over " +
                           undertow::detail::num(spec.settings.young->age_window_myr) + " Myr"

@@ -154,6 +154,10 @@ MockResult observe(const io::Snapshot& snap, const std::vector<double>& weights,
       ++out.rejected_snr;
       continue;
     }
+    if (src.parallax_mas < sel.parallax_min_mas || src.parallax_mas > sel.parallax_max_mas) {
+      ++out.rejected_parallax;
+      continue;
+    }
     out.catalog.sources.push_back(src);
     out.tracer_ids.push_back(t.id[c.i]);
   }

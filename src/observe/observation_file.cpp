@@ -95,7 +95,8 @@ ObservationSpec observation_from_table(const toml::table& t, const std::string& 
   if (const toml::table* sel = r.table("selection")) {
     TableReader q(*sel, file, sub(ctx, "selection"));
     q.check_keys({"distance_min_kpc", "distance_max_kpc", "latitude_max_deg", "dec_min_deg",
-                  "dec_max_deg", "parallax_snr_min", "max_sources"});
+                  "dec_max_deg", "parallax_snr_min", "parallax_min_mas", "parallax_max_mas",
+                  "max_sources"});
     auto& x = s.selection;
     x.distance_min_kpc = q.number_or("distance_min_kpc", 0.0);
     x.distance_max_kpc = q.number_or("distance_max_kpc", 1e9);
@@ -106,6 +107,10 @@ ObservationSpec observation_from_table(const toml::table& t, const std::string& 
     x.dec_max_deg = q.number_or("dec_max_deg", 90.0);
     if (!(x.dec_max_deg > x.dec_min_deg)) q.fail("dec_max_deg", "must exceed dec_min_deg");
     x.parallax_snr_min = q.number_or("parallax_snr_min", 0.0);
+    x.parallax_min_mas = q.number_or("parallax_min_mas", -1e300);
+    x.parallax_max_mas = q.number_or("parallax_max_mas", 1e300);
+    if (!(x.parallax_max_mas > x.parallax_min_mas))
+      q.fail("parallax_max_mas", "must exceed parallax_min_mas");
     const double n = q.number_or("max_sources", 0.0);
     if (!(n >= 0 && std::floor(n) == n))
       q.fail("max_sources", "must be a whole number (0: no limit)");

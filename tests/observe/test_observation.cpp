@@ -213,3 +213,33 @@ TEST_CASE("Young-source weights from the tracers' own surface density: the count
   CHECK(w[4] == Approx(std::pow(1 / 0.0625, 1.5)));
   CHECK(w[0] / w[4] == Approx(8.0));
 }
+
+TEST_CASE("Selection on the observed parallax: every mock source's measured parallax lies in the "
+          "range, and sources whose true parallax lies outside it get in through their errors, as "
+          "in a real survey (definition of a selection on a measured quantity)",
+          "[observe]") {
+  const auto snap = tracers_with_lag(20000, -5, 10, 230, 3);
+  auto s = base_settings();
+  s.errors.kind = observe::ErrorModel::Kind::fixed;
+  s.errors.parallax_mas = 0.05;
+  s.selection.parallax_min_mas = 0.25; // 1/parallax at most 4 kpc
+  s.selection.parallax_max_mas = 1.0;  // at least 1 kpc
+  const auto m = observe::observe(snap, {}, s);
+  REQUIRE(m.catalog.sources.size() > 1000);
+  CHECK(m.rejected_parallax > 0);
+  int outside_truly = 0;
+  for (std::size_t i = 0; i < m.catalog.sources.size(); ++i) {
+    const auto& src = m.catalog.sources[i];
+    CHECK(src.parallax_mas >= 0.25);
+    CHECK(src.parallax_mas <= 1.0);
+    const std::size_t k = std::size_t(m.tracer_ids[i]);
+    sky::Observed o;
+    const double d = sky::from_galactocentric(
+        {{snap.tracers.x[k], snap.tracers.y[k], snap.tracers.z[k]},
+         {snap.tracers.vx[k], snap.tracers.vy[k], snap.tracers.vz[k]}},
+        s.sun, o);
+    outside_truly += 1 / d < 0.25 || 1 / d > 1.0;
+  }
+  INFO(outside_truly << " of " << m.catalog.sources.size() << " have a true parallax outside");
+  CHECK(outside_truly > 20);
+}

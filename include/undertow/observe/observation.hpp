@@ -22,6 +22,9 @@ struct Selection {
   double latitude_max_deg = 90;                          // |b| at most this
   double dec_min_deg = -90, dec_max_deg = 90;
   double parallax_snr_min = 0; // on the observed parallax, as a survey would
+  // A distance range as a real survey applies it: on the observed parallax (mas), after the
+  // errors are drawn; the true-distance range above then only bounds the volume searched.
+  double parallax_min_mas = -1e300, parallax_max_mas = 1e300;
   std::size_t max_sources = 0; // 0: no limit
 };
 
@@ -62,6 +65,7 @@ struct MockResult {
   residuals::Catalog catalog;
   std::size_t candidates = 0; // tracers inside the geometric selection
   std::size_t rejected_snr = 0;
+  std::size_t rejected_parallax = 0; // outside the observed-parallax range
   std::vector<std::uint64_t> tracer_ids; // of the mock sources, in catalog order
 };
 
