@@ -12,6 +12,7 @@
 #include "undertow/error.hpp"
 #include "undertow/fit/report.hpp"
 #include "undertow/io/atomic_file.hpp"
+#include "undertow/io/table_hdf5.hpp"
 #include "undertow/observe/observation_file.hpp"
 #include "undertow/observe/prepare.hpp"
 #include "undertow/potential/model_file.hpp"
@@ -460,6 +461,9 @@ int main(int argc, char** argv) {
   vs->add_option("folders", versus, "Run folders written by 'undertow run'")
       ->required()
       ->expected(2, 1000);
+  std::string versus_out;
+  vs->add_option("-o,--output", versus_out,
+                 "Also write the table as STEM.csv, .md, .tex and .h5 (always to stdout as Markdown)");
 
   undertow::cli::FitArgs fit;
   undertow::cli::add_fit_command(app, fit);
@@ -480,7 +484,20 @@ int main(int argc, char** argv) {
     if (os->parsed()) return run_observe(ob);
     if (rn->parsed()) return run_whole(wr);
     if (vs->parsed()) {
-      std::cout << undertow::run::compare_runs(versus);
+      const auto table = undertow::run::compare_runs(versus);
+      undertow::io::write_table(std::cout, table, undertow::io::TableFormat::markdown);
+      if (!versus_out.empty()) {
+        auto files = undertow::io::write_table_files(versus_out, table);
+        undertow::io::h5::File::write_atomically(
+            versus_out + ".h5", [&](const undertow::io::h5::File& f) {
+              undertow::io::write_table_group(f, "versus", table);
+            });
+        files.push_back(versus_out + ".h5");
+        std::cout << "wrote";
+        for (const auto& f : files)
+          std::cout << " " << f;
+        std::cout << "\n";
+      }
       return 0;
     }
   } catch (const undertow::InputError& e) {

@@ -1,5 +1,6 @@
 #include "undertow/run/whole_run.hpp"
 
+#include <algorithm>
 #include <cmath>
 #include <cstdio>
 #include <filesystem>
@@ -11,6 +12,7 @@
 #include "undertow/compare/local.hpp"
 #include "undertow/dynamics/frequencies.hpp"
 #include "undertow/error.hpp"
+#include "undertow/io/digest.hpp"
 #include "undertow/io/table_hdf5.hpp"
 #include "undertow/io/text_file.hpp"
 #include "undertow/observe/prepare.hpp"
@@ -52,6 +54,35 @@ residuals::ResidualSettings residual_settings(const scenario::Scenario& s) {
   r.draws = c.draws;
   r.seed = c.seed;
   return r;
+}
+
+// The Sun of a run, every digit, and where it came from.
+std::string sun_description(const scenario::Scenario& s) {
+  const auto& o = s.observation->settings;
+  std::ostringstream d;
+  d.precision(15);
+  d << "R0 " << o.sun.r0_kpc << " kpc, z_sun " << o.sun.z_sun_kpc << " kpc, Theta0 "
+    << o.sun.theta0_kms << " km/s, solar motion (" << o.sun.u_sun_kms << ", " << o.sun.v_sun_kms
+    << ", " << o.sun.w_sun_kms << ") km/s, LSR " << (o.lsr == sky::LsrForm::apex ? "apex" : "components")
+    << ", from " << o.sun_source;
+  return d.str();
+}
+
+// The mock survey's selection and errors and the measured catalog's treatment, every digit.
+std::string selection_description(const scenario::Scenario& s) {
+  const auto& x = s.observation->settings.selection;
+  const auto& e = s.observation->settings.errors;
+  const auto& c = *s.comparison;
+  std::ostringstream d;
+  d.precision(15);
+  d << "distance " << x.distance_min_kpc << "-" << x.distance_max_kpc << " kpc, |b| <= "
+    << x.latitude_max_deg << " deg, dec " << x.dec_min_deg << " to " << x.dec_max_deg
+    << " deg, parallax S/N >= " << x.parallax_snr_min << ", parallax " << x.parallax_min_mas
+    << " to " << x.parallax_max_mas << " mas, at most " << x.max_sources << " sources; errors "
+    << int(e.kind) << " (" << e.parallax_mas << " mas, " << e.parallax_fraction << ", "
+    << e.pm_masyr << " mas/yr, " << e.vlsr_kms << " km/s); measured: distance "
+    << int(c.distance) << ", S/N >= " << c.min_parallax_snr;
+  return d.str();
 }
 
 // The young tracers that predict the local distributions: the observation's weighted selection
@@ -224,6 +255,12 @@ WholeRunResult run_all(const scenario::Scenario& s, const WholeRunOptions& o) {
     io::h5::set_attr(f, f.id(), "log_likelihood", local.log_likelihood);
     io::h5::set_attr(f, f.id(), "chi2", local.chi2);
     io::h5::set_attr(f, f.id(), "measured_sources", std::int64_t(meas_res.sources.size()));
+    // what 'versus' requires runs to share before it sets them side by side
+    io::h5::set_attr(f, f.id(), "run_name", s.name);
+    io::h5::set_attr(f, f.id(), "catalog_digest",
+                     io::hex64(io::digest_file(s.comparison->catalog).fnv1a));
+    io::h5::set_attr(f, f.id(), "sun", sun_description(s));
+    io::h5::set_attr(f, f.id(), "selection", selection_description(s));
     io::h5::set_attr(f, f.id(), "mean_V_measured_kms", global.rows[1][2]);
     io::h5::set_attr(f, f.id(), "mean_V_simulated_kms", global.rows[1][4]);
     io::h5::set_attr(f, f.id(), "mean_V_significance", global.rows[1][7]);
@@ -263,7 +300,7 @@ WholeRunResult run_all(const scenario::Scenario& s, const WholeRunOptions& o) {
   return res;
 }
 
-std::string compare_runs(const std::vector<std::string>& folders) {
+io::Table compare_runs(const std::vector<std::string>& folders) {
   if (folders.size() < 2) throw InputError("give two or more run folders to compare");
   io::Table t;
   t.title = "Models against one catalog (differences against the first)";
@@ -277,24 +314,52 @@ std::string compare_runs(const std::vector<std::string>& folders) {
                {"mean_V_simulated_kms", "\\langle V_s\\rangle_{\\rm sim}", "⟨V_s⟩_sim", "km/s", 4},
                {"mean_V_significance", "\\Delta/\\sigma", "Δ/σ", "", 3}};
   double l0 = 0, c0 = 0;
+  std::string first_catalog, first_sun, first_selection;
+  std::vector<std::string> names;
   for (std::size_t i = 0; i < folders.size(); ++i) {
     const fs::path p = fs::path(folders[i]) / "comparison.h5";
     const auto f = io::h5::File::open_read(p.string());
+    for (const char* a : {"run_name", "catalog_digest", "sun", "selection"})
+      if (!io::h5::has_attr(f.id(), a))
+        throw InputError(SourcePlace{p.string(), 0, 0, a},
+                         "written by an older undertow: run it again ('undertow run') so that "
+                         "versus can check what the runs share");
+    const std::string cat = io::h5::get_attr_string(f, f.id(), "catalog_digest"),
+                      sun = io::h5::get_attr_string(f, f.id(), "sun"),
+                      sel = io::h5::get_attr_string(f, f.id(), "selection");
+    if (i == 0) {
+      first_catalog = cat, first_sun = sun, first_selection = sel;
+    } else {
+      const auto differ = [&](const char* what, const std::string& a, const std::string& b) {
+        if (a != b)
+          throw InputError(SourcePlace{p.string(), 0, 0, what},
+                           std::string("differs from ") + folders[0] + "'s (" + b + " against " +
+                               a + "): Delta ln L between runs of different " + what +
+                               " compares different data; nothing written");
+      };
+      differ("catalog", cat, first_catalog);
+      differ("sun", sun, first_sun);
+      differ("selection", sel, first_selection);
+    }
     const double l = io::h5::get_attr_double(f, f.id(), "log_likelihood");
     const double c = io::h5::get_attr_double(f, f.id(), "chi2");
     if (i == 0) l0 = l, c0 = c;
-    t.row_labels.push_back(folders[i]);
+    names.push_back(io::h5::get_attr_string(f, f.id(), "run_name"));
     t.add_row({double(io::h5::get_attr_int(f, f.id(), "measured_sources")), l, l - l0, c, c - c0,
                io::h5::get_attr_double(f, f.id(), "mean_V_measured_kms"),
                io::h5::get_attr_double(f, f.id(), "mean_V_simulated_kms"),
                io::h5::get_attr_double(f, f.id(), "mean_V_significance")});
   }
-  t.notes.push_back(
-      "Δ ln L > 0: the run explains the catalog better than the first; a difference of "
-      "a few units is not significant.");
-  std::ostringstream os;
-  io::write_table(os, t, io::TableFormat::markdown);
-  return os.str();
+  // rows by run name; runs that share a name also get their folder
+  for (std::size_t i = 0; i < names.size(); ++i)
+    t.row_labels.push_back(std::count(names.begin(), names.end(), names[i]) > 1
+                               ? names[i] + " (" + folders[i] + ")"
+                               : names[i]);
+  t.notes.push_back("Delta ln L > 0: the run explains the catalog better than the first; a "
+                    "difference of a few units is not significant. The runs share the measured "
+                    "catalog (by content), the Sun and the selection, checked.");
+  t.notes.push_back("the Sun: " + first_sun);
+  return t;
 }
 
 } // namespace undertow::run

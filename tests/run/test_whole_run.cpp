@@ -105,8 +105,17 @@ TEST_CASE("A whole run writes every stage into one folder, reuses finished stage
   o.folder = (d / "axi").string();
   REQUIRE(run::run_all(axi, o).complete);
   const auto table = run::compare_runs({(d / "spiral").string(), (d / "axi").string()});
-  CHECK_THAT(table, Catch::Contains("Δ ln L"));
-  CHECK_THAT(table, Catch::Contains((d / "axi").string()));
+  REQUIRE(table.rows.size() == 2);
+  CHECK(table.rows[0][2] == 0);                                   // Delta ln L of the first
+  CHECK(table.row_labels[1].find((d / "axi").string()) != std::string::npos); // same run name
+  // a run against another catalog is refused: Delta ln L would compare different data
+  const auto other = scenario::parse_scenario(
+      scenario_text("kestrel-axisymmetric.toml", (d / "none.csv").string(), 7),
+      (d / "o.toml").string());
+  o.folder = (d / "other").string();
+  REQUIRE(run::run_all(other, o).complete);
+  CHECK_THROWS_WITH(run::compare_runs({(d / "spiral").string(), (d / "other").string()}),
+                    Catch::Contains("catalog: differs"));
 }
 
 TEST_CASE("A whole run refuses a scenario without [observation] or [comparison], and a catalog "

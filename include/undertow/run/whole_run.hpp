@@ -36,7 +36,8 @@ struct WholeRunResult {
 
 WholeRunResult run_all(const scenario::Scenario& s, const WholeRunOptions& o);
 
-// Model-vs-model: one row per run folder, differences against the first.
-std::string compare_runs(const std::vector<std::string>& folders);
+// Model-vs-model: one row per run (labelled by its run name), differences against the first.
+// Refuses runs that do not share the measured catalog (by content), the Sun and the selection.
+io::Table compare_runs(const std::vector<std::string>& folders);
 
 } // namespace undertow::run
