@@ -1,5 +1,7 @@
 #include "undertow/compare/global.hpp"
 
+#include <stdexcept>
+
 #include <cmath>
 #include <cstdio>
 #include <set>
@@ -42,27 +44,16 @@ ComponentComparison compare_samples(const std::vector<double>& a, const std::vec
   return c;
 }
 
-io::Table global_table(const residuals::ResidualResult& m, const residuals::ResidualResult& s,
-                       const Binning& bins, int resamples, std::uint64_t seed) {
-  io::Table t;
-  t.title = "Measured vs simulated peculiar motions";
-  t.label_header = "subset";
-  t.columns = {{"n_meas", "N_{\\rm obs}", "N_obs", "", 6},
-               {"n_sim", "N_{\\rm sim}", "N_sim", "", 6},
-               {"mean_meas_kms", "\\langle v\\rangle_{\\rm obs}", "mean_obs", "km/s", 4},
-               {"mean_meas_err_kms", "\\pm", "±", "km/s", 3},
-               {"mean_sim_kms", "\\langle v\\rangle_{\\rm sim}", "mean_sim", "km/s", 4},
-               {"mean_sim_err_kms", "\\pm", "±", "km/s", 3},
-               {"difference_kms", "\\Delta", "Δ", "km/s", 4},
-               {"significance", "\\Delta/\\sigma_\\Delta", "Δ/σ", "", 3},
-               {"median_meas_kms", "{\\rm med}_{\\rm obs}", "med_obs", "km/s", 4},
-               {"median_sim_kms", "{\\rm med}_{\\rm sim}", "med_sim", "km/s", 4},
-               {"sigma_meas_kms", "\\sigma_{\\rm obs}", "σ_obs", "km/s", 4},
-               {"sigma_sim_kms", "\\sigma_{\\rm sim}", "σ_sim", "km/s", 4},
-               {"robust_sigma_meas_kms", "\\sigma^{\\rm MAD}_{\\rm obs}", "σMAD_obs", "km/s", 4},
-               {"robust_sigma_sim_kms", "\\sigma^{\\rm MAD}_{\\rm sim}", "σMAD_sim", "km/s", 4},
-               {"ks_p", "p_{\\rm KS}", "p_KS", "", 3},
-               {"ad_p", "p_{\\rm AD}", "p_AD", "", 3}};
+const SubsetComparison& GlobalComparison::all() const {
+  if (subsets.empty() || subsets.front().label != "all")
+    throw std::logic_error("global comparison: the subset of all sources was left out");
+  return subsets.front();
+}
+
+GlobalComparison compare_globally(const residuals::ResidualResult& m,
+                                  const residuals::ResidualResult& s, const Binning& bins,
+                                  int resamples, std::uint64_t seed) {
+  GlobalComparison g;
   struct Subset {
     std::string label;
     std::vector<const residuals::SourceResidual*> a, b;
@@ -89,26 +80,60 @@ io::Table global_table(const residuals::ResidualResult& m, const residuals::Resi
   std::set<std::string> groups;
   for (const auto& x : m.sources)
     if (!x.group.empty()) groups.insert(x.group);
-  for (const auto& g : groups) {
-    const auto same = [&](const auto& x) { return x.group == g; };
+  for (const auto& label : groups) {
+    const auto same = [&](const auto& x) { return x.group == label; };
     auto sim = all(s, same); // simulations usually carry no labels: then all their sources
-    subsets.push_back({"group " + g, all(m, same), sim.empty() ? all(s, yes) : sim});
+    subsets.push_back({"group " + label, all(m, same), sim.empty() ? all(s, yes) : sim});
   }
-  const char* comp[] = {"U_s", "V_s", "W_s"};
   std::uint64_t stream = 0;
   for (const auto& sub : subsets) {
     if (sub.a.size() < 3 || sub.b.size() < 3) {
-      t.notes.push_back(sub.label + ": left out (" + std::to_string(sub.a.size()) + " measured, " +
+      g.notes.push_back(sub.label + ": left out (" + std::to_string(sub.a.size()) + " measured, " +
                         std::to_string(sub.b.size()) + " simulated sources)");
       continue;
     }
+    SubsetComparison out;
+    out.label = sub.label;
     for (int c = 0; c < 3; ++c) {
       std::vector<double> a, b;
       for (const auto* x : sub.a)
         a.push_back(x->uvw[c]);
       for (const auto* x : sub.b)
         b.push_back(x->uvw[c]);
-      const auto r = compare_samples(a, b, resamples, seed, stream++);
+      out.uvw[std::size_t(c)] = compare_samples(a, b, resamples, seed, stream++);
+    }
+    g.subsets.push_back(std::move(out));
+  }
+  g.notes.push_back("groups are compared with the simulated sources of the same label, or with all "
+                    "of them when the simulation has none; p-values of the Anderson-Darling "
+                    "test are clipped to [0.001, 0.25] (Scholz & Stephens 1987 table)");
+  return g;
+}
+
+io::Table global_table(const GlobalComparison& g) {
+  io::Table t;
+  t.title = "Measured vs simulated peculiar motions";
+  t.label_header = "subset";
+  t.columns = {{"n_meas", "N_{\\rm obs}", "N_obs", "", 6},
+               {"n_sim", "N_{\\rm sim}", "N_sim", "", 6},
+               {"mean_meas_kms", "\\langle v\\rangle_{\\rm obs}", "mean_obs", "km/s", 4},
+               {"mean_meas_err_kms", "\\pm", "±", "km/s", 3},
+               {"mean_sim_kms", "\\langle v\\rangle_{\\rm sim}", "mean_sim", "km/s", 4},
+               {"mean_sim_err_kms", "\\pm", "±", "km/s", 3},
+               {"difference_kms", "\\Delta", "Δ", "km/s", 4},
+               {"significance", "\\Delta/\\sigma_\\Delta", "Δ/σ", "", 3},
+               {"median_meas_kms", "{\\rm med}_{\\rm obs}", "med_obs", "km/s", 4},
+               {"median_sim_kms", "{\\rm med}_{\\rm sim}", "med_sim", "km/s", 4},
+               {"sigma_meas_kms", "\\sigma_{\\rm obs}", "σ_obs", "km/s", 4},
+               {"sigma_sim_kms", "\\sigma_{\\rm sim}", "σ_sim", "km/s", 4},
+               {"robust_sigma_meas_kms", "\\sigma^{\\rm MAD}_{\\rm obs}", "σMAD_obs", "km/s", 4},
+               {"robust_sigma_sim_kms", "\\sigma^{\\rm MAD}_{\\rm sim}", "σMAD_sim", "km/s", 4},
+               {"ks_p", "p_{\\rm KS}", "p_KS", "", 3},
+               {"ad_p", "p_{\\rm AD}", "p_AD", "", 3}};
+  const char* comp[] = {"U_s", "V_s", "W_s"};
+  for (const auto& sub : g.subsets)
+    for (int c = 0; c < 3; ++c) {
+      const auto& r = sub.uvw[std::size_t(c)];
       t.row_labels.push_back(sub.label + " " + comp[c]);
       t.add_row({double(r.measured.n), double(r.simulated.n), r.measured.mean, r.measured.mean_err,
                  r.simulated.mean, r.simulated.mean_err, r.difference, r.significance,
@@ -116,10 +141,7 @@ io::Table global_table(const residuals::ResidualResult& m, const residuals::Resi
                  r.simulated.dispersion, r.measured.robust_dispersion,
                  r.simulated.robust_dispersion, r.ks_p, r.ad_p});
     }
-  }
-  t.notes.push_back("groups are compared with the simulated sources of the same label, or with all "
-                    "of them when the simulation has none; p-values of the Anderson-Darling "
-                    "test are clipped to [0.001, 0.25] (Scholz & Stephens 1987 table)");
+  t.notes = g.notes;
   return t;
 }
 

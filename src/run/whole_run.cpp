@@ -235,9 +235,11 @@ WholeRunResult run_all(const scenario::Scenario& s, const WholeRunOptions& o) {
       residuals::summarise(mock_res, s.comparison->bootstrap, s.comparison->seed), settings);
 
   // 4. comparison
-  const auto global = compare::global_table(
+  const auto gc = compare::compare_globally(
       meas_res, mock_res, {s.comparison->radius_bins_kpc, s.comparison->azimuth_bins_deg},
       s.comparison->bootstrap, s.comparison->seed);
+  const auto global = compare::global_table(gc);
+  const auto& all_v = gc.all().uvw[1], &all_u = gc.all().uvw[0];
   compare::Neighbourhood nb;
   nb.kind = s.comparison->nearest ? compare::Neighbourhood::Kind::nearest
                                   : compare::Neighbourhood::Kind::radius;
@@ -261,9 +263,9 @@ WholeRunResult run_all(const scenario::Scenario& s, const WholeRunOptions& o) {
                      io::hex64(io::digest_file(s.comparison->catalog).fnv1a));
     io::h5::set_attr(f, f.id(), "sun", sun_description(s));
     io::h5::set_attr(f, f.id(), "selection", selection_description(s));
-    io::h5::set_attr(f, f.id(), "mean_V_measured_kms", global.rows[1][2]);
-    io::h5::set_attr(f, f.id(), "mean_V_simulated_kms", global.rows[1][4]);
-    io::h5::set_attr(f, f.id(), "mean_V_significance", global.rows[1][7]);
+    io::h5::set_attr(f, f.id(), "mean_V_measured_kms", all_v.measured.mean);
+    io::h5::set_attr(f, f.id(), "mean_V_simulated_kms", all_v.simulated.mean);
+    io::h5::set_attr(f, f.id(), "mean_V_significance", all_v.significance);
     io::write_table_group(f, "global", global);
     io::write_table_group(f, "local", ltab);
   });
@@ -282,9 +284,10 @@ WholeRunResult run_all(const scenario::Scenario& s, const WholeRunOptions& o) {
       s.name.c_str(), s.path.c_str(), sun.r0_kpc, sun.z_sun_kpc, sun.theta0_kms, sun.u_sun_kms,
       sun.v_sun_kms, sun.w_sun_kms, s.observation->settings.sun_source.c_str(),
       s.comparison->catalog.c_str(), meas_res.sources.size(),
-      mock_res.sources.size(), prep.time_myr, global.rows[1][2], global.rows[1][3],
-      global.rows[1][4], global.rows[1][5], global.rows[1][7], global.rows[0][2], global.rows[0][3],
-      global.rows[0][4], global.rows[0][5], local.log_likelihood, local.chi2, local.sources.size(),
+      mock_res.sources.size(), prep.time_myr, all_v.measured.mean, all_v.measured.mean_err,
+      all_v.simulated.mean, all_v.simulated.mean_err, all_v.significance, all_u.measured.mean,
+      all_u.measured.mean_err, all_u.simulated.mean, all_u.simulated.mean_err,
+      local.log_likelihood, local.chi2, local.sources.size(),
       local.outliers.size());
   res.summary = b;
   write_text(dir / "summary.txt", res.summary);
@@ -297,6 +300,7 @@ WholeRunResult run_all(const scenario::Scenario& s, const WholeRunOptions& o) {
   res.measured_sources = meas_res.sources.size();
   res.outliers = local.outliers.size();
   res.global = global;
+  res.comparison = gc;
   return res;
 }
 

@@ -116,14 +116,13 @@ PointResult result_of(const run::WholeRunResult& w) {
   r.chi2 = w.chi2;
   r.measured_sources = w.measured_sources;
   r.outliers = w.outliers;
-  // Rows 0-2 of the global comparison are U_s, V_s, W_s over all sources (compare/global.hpp).
   for (int a = 0; a < 3; ++a) {
-    const auto& row = w.global.rows.at(std::size_t(a));
-    r.mean_measured[a] = row.at(2);
-    r.mean_measured_err[a] = row.at(3);
-    r.mean_simulated[a] = row.at(4);
-    r.mean_simulated_err[a] = row.at(5);
-    r.significance[a] = row.at(7);
+    const auto& c = w.comparison.all().uvw[std::size_t(a)];
+    r.mean_measured[a] = c.measured.mean;
+    r.mean_measured_err[a] = c.measured.mean_err;
+    r.mean_simulated[a] = c.simulated.mean;
+    r.mean_simulated_err[a] = c.simulated.mean_err;
+    r.significance[a] = c.significance;
   }
   return r;
 }

@@ -48,3 +48,27 @@ TEST_CASE("The global table finds a 5 km/s lag between 200 measured and 2000 sim
   CHECK(t.rows[1][14] < 1e-3); // KS
   CHECK(std::fabs(t.rows[0][7]) < 3);
 }
+
+TEST_CASE("Global comparison as values: all() is the subset of all sources, and the table is a "
+          "view of the values, row for row",
+          "[compare]") {
+  std::mt19937_64 rng(10);
+  const auto m = sample(rng, 200, -5), s = sample(rng, 2000, 0);
+  const auto g = compare::compare_globally(m, s, {{5, 8, 11}, {}}, 300, 3);
+  REQUIRE(g.subsets.size() == 1 + 2 + 2); // all, two radius bins, two groups
+  CHECK(g.all().label == "all");
+  CHECK(g.all().uvw[1].measured.n == 200);
+  CHECK(g.all().uvw[1].significance < -5); // the 5 km/s lag (definition of the significance)
+  const auto t = compare::global_table(g);
+  REQUIRE(t.rows.size() == g.subsets.size() * 3);
+  for (std::size_t i = 0; i < g.subsets.size(); ++i)
+    for (std::size_t c = 0; c < 3; ++c) {
+      const auto& v = g.subsets[i].uvw[c];
+      const auto& row = t.rows[3 * i + c];
+      CHECK(row[2] == v.measured.mean);
+      CHECK(row[4] == v.simulated.mean);
+      CHECK(row[7] == v.significance);
+    }
+  compare::GlobalComparison empty;
+  CHECK_THROWS_AS(empty.all(), std::logic_error);
+}

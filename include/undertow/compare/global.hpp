@@ -32,11 +32,33 @@ struct Binning {
   std::vector<double> azimuth_edges_deg;
 };
 
-// One row per (subset, component). Groups compare the group's measured sources with the
-// simulated sources of the same label, or with all simulated ones when none carry it. Subsets with
-// fewer than 3 sources on either side are left out, with a note.
-io::Table global_table(const residuals::ResidualResult& measured,
-                       const residuals::ResidualResult& simulated, const Binning& bins,
-                       int resamples, std::uint64_t seed);
+// The comparison of one subset of sources (all, a radius or azimuth bin, a group), per component
+// U_s, V_s, W_s.
+struct SubsetComparison {
+  std::string label;
+  std::array<ComponentComparison, 3> uvw;
+};
+
+// Results as values: every table, summary line and HDF5 attribute is written from these.
+struct GlobalComparison {
+  std::vector<SubsetComparison> subsets; // "all" first when it has enough sources
+  std::vector<std::string> notes;        // subsets left out, and how groups are compared
+  // The subset of all sources; throws std::logic_error when it was left out.
+  const SubsetComparison& all() const;
+};
+
+// Groups compare the group's measured sources with the simulated sources of the same label, or
+// with all simulated ones when none carry it. Subsets with fewer than 3 sources on either side
+// are left out, with a note.
+GlobalComparison compare_globally(const residuals::ResidualResult& measured,
+                                  const residuals::ResidualResult& simulated, const Binning& bins,
+                                  int resamples, std::uint64_t seed);
+// The table view: one row per (subset, component).
+io::Table global_table(const GlobalComparison& g);
+inline io::Table global_table(const residuals::ResidualResult& measured,
+                              const residuals::ResidualResult& simulated, const Binning& bins,
+                              int resamples, std::uint64_t seed) {
+  return global_table(compare_globally(measured, simulated, bins, resamples, seed));
+}
 
 } // namespace undertow::compare

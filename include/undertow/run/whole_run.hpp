@@ -10,6 +10,7 @@
 #include <string>
 #include <vector>
 
+#include "undertow/compare/global.hpp"
 #include "undertow/io/table.hpp"
 #include "undertow/scenario/scenario.hpp"
 
@@ -30,7 +31,8 @@ struct WholeRunResult {
   std::size_t measured_sources = 0;
   std::vector<std::array<double, 3>> pulls; // (U, V, W) per measured source, local comparison
   std::size_t outliers = 0;                 // measured sources beyond 3 sigma
-  io::Table global;                         // the global comparison (comparison-global.csv)
+  compare::GlobalComparison comparison;     // the global comparison, as values
+  io::Table global;                         // its table view (comparison-global.csv)
   std::string summary;                      // the text of summary.txt
 };
 
