@@ -67,21 +67,7 @@ std::optional<int> run_fit_command(const FitArgs& a) {
   const auto sel = select_sources(f, cat);
   for (const auto& e : sel.excluded)
     std::cout << "left out: " << e << "\n";
-  // the range of the global parallax zero point the quadrature must cover
-  Likelihood::Offset off;
-  for (const auto& q : f.spec.params)
-    if (q.param == Param::parallax_offset) {
-      off.value = q.value;
-      if (q.free) {
-        off.free = true;
-        const auto& p = q.prior;
-        off.min = std::isfinite(p.min) ? p.min : p.mean - 5 * p.sigma;
-        off.max = std::isfinite(p.max) ? p.max : p.mean + 5 * p.sigma;
-        if (p.kind == Prior::Kind::flat && !(std::isfinite(p.min) && std::isfinite(p.max)))
-          throw InputError(q.place, "a free parallax zero point needs bounds (min, max) or a "
-                                    "Gaussian prior");
-      }
-    }
+  const auto off = offset_range(f.spec);
   const Likelihood L(sel.used, f.spec.model, off);
   std::vector<std::string> warnings;
   {
@@ -89,12 +75,7 @@ std::optional<int> run_fit_command(const FitArgs& a) {
     KinematicModel m2 = f.spec.model;
     m2.nodes = std::min(1024, 2 * m2.nodes);
     const Likelihood L2(sel.used, m2, off);
-    const auto free = free_params(f.spec);
-    std::vector<double> x;
-    for (Param p : free)
-      for (const auto& q : f.spec.params)
-        if (q.param == p) x.push_back(q.value);
-    const auto p = full_from_free(f.spec, free, x.data());
+    const auto p = start_values(f.spec);
     const double d = std::fabs(L(p) - L2(p));
     if (d > 0.1)
       warnings.push_back("ln L changes by " + detail::num(d) + " from " +

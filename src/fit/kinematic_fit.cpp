@@ -87,6 +87,30 @@ std::vector<Param> free_params(const FitSpec& s) {
   return f;
 }
 
+FullParams start_values(const FitSpec& s) {
+  const auto free = free_params(s);
+  std::vector<double> x;
+  for (Param p : free)
+    x.push_back(find(s, p)->value);
+  return full_from_free(s, free, x.data());
+}
+
+Likelihood::Offset offset_range(const FitSpec& s) {
+  Likelihood::Offset off;
+  const auto* q = find(s, Param::parallax_offset);
+  if (!q) return off;
+  off.value = q->value;
+  if (!q->free) return off;
+  const auto& p = q->prior;
+  if (p.kind == Prior::Kind::flat && !(std::isfinite(p.min) && std::isfinite(p.max)))
+    throw InputError(q->place, "a free parallax zero point needs bounds (min, max) or a "
+                               "Gaussian prior");
+  off.free = true;
+  off.min = std::isfinite(p.min) ? p.min : p.mean - 5 * p.sigma;
+  off.max = std::isfinite(p.max) ? p.max : p.mean + 5 * p.sigma;
+  return off;
+}
+
 FullParams full_from_free(const FitSpec& s, const std::vector<Param>& free, const double* x) {
   FullParams p{};
   p[std::size_t(Param::r0)] = 8;
@@ -163,13 +187,9 @@ FitResult run_fit(const FitSpec& s, const Likelihood& L, const std::atomic<bool>
                      "the starting values have zero posterior probability (outside a bound, or "
                      "a source impossible under them)");
   double best = -INFINITY;
-  long evals = 0;
   for (int round = 0; round < 8; ++round) {
     nlopt::opt o(nlopt::LN_NELDERMEAD, unsigned(nf));
-    std::function<double(const double*)> fobj = [&](const double* xx) {
-      ++evals;
-      return lpost(xx, true);
-    };
+    std::function<double(const double*)> fobj = [&](const double* xx) { return lpost(xx, true); };
     o.set_max_objective(
         [](unsigned, const double* xx, double*, void* data) {
           const double v = (*static_cast<std::function<double(const double*)>*>(data))(xx);
@@ -300,9 +320,9 @@ FitResult run_fit(const FitSpec& s, const Likelihood& L, const std::atomic<bool>
   sampler.start(start);
   const long max_steps = s.sampler.steps_max;
   while (true) {
-    const long todo = std::min<long>(s.sampler.chunk, max_steps - sampler.steps());
-    if (todo <= 0) break;
-    if (!sampler.run(int(todo), stop, [&](long done) {
+    const long steps_now = std::min<long>(s.sampler.chunk, max_steps - sampler.steps());
+    if (steps_now <= 0) break;
+    if (!sampler.run(int(steps_now), stop, [&](long done) {
           if (progress) progress("sampling", done, max_steps);
         })) {
       r.interrupted = true;
@@ -401,7 +421,6 @@ FitResult run_fit(const FitSpec& s, const Likelihood& L, const std::atomic<bool>
     r.derived.back().map = maps[k];
   }
   r.seconds = std::chrono::duration<double>(std::chrono::steady_clock::now() - t0).count();
-  (void)evals;
   return r;
 }
 

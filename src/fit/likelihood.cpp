@@ -305,16 +305,16 @@ Likelihood::Likelihood(const residuals::Catalog& c, KinematicModel m, Offset off
     p[std::size_t(Param::r0)] = 8;
     p[std::size_t(Param::parallax_offset)] = off.value;
     ln_z_const_.resize(n_);
-    for (std::size_t i = 0; i < n_; ++i) {
-      norm_varies_ = true; // compute once
-      ln_z_const_[i] = ln_normalisation(i, p);
-      norm_varies_ = false;
-    }
+    for (std::size_t i = 0; i < n_; ++i)
+      ln_z_const_[i] = integrate_normalisation(i, p);
   }
 }
 
 double Likelihood::ln_normalisation(std::size_t i, const FullParams& p) const {
-  if (!norm_varies_) return ln_z_const_[i];
+  return norm_varies_ ? integrate_normalisation(i, p) : ln_z_const_[i];
+}
+
+double Likelihood::integrate_normalisation(std::size_t i, const FullParams& p) const {
   const std::size_t b = i * std::size_t(norm_nodes_);
   double buf[kMaxNodes];
   const double n[3] = {nx_[i], ny_[i], nz_[i]};

@@ -23,15 +23,6 @@ double at(const FullParams& p, Param k) {
   return p[std::size_t(k)];
 }
 
-FullParams start_params(const FitSpec& s) {
-  const auto free = free_params(s);
-  std::vector<double> x;
-  for (Param p : free)
-    for (const auto& q : s.params)
-      if (q.param == p) x.push_back(q.value);
-  return full_from_free(s, free, x.data());
-}
-
 residuals::ResidualSettings settings_for(const std::shared_ptr<const KinematicModel>& mp,
                                          const FullParams& p) {
   const KinematicModel& m = *mp;
@@ -58,14 +49,10 @@ DistancePrior prior_at(const KinematicModel& m, const FullParams& p) {
 Selection select_sources(const FitFile& f, const residuals::Catalog& c) {
   Selection sel;
   sel.used.file = c.file;
-  const FullParams p = start_params(f.spec);
   const auto& prior = f.spec.model.prior;
   const double cos_cut = std::cos(f.longitude_min_deg * units::deg);
-  double omin = at(p, Param::parallax_offset), omax = omin;
-  for (const auto& q : f.spec.params)
-    if (q.param == Param::parallax_offset && q.free)
-      omin = std::isfinite(q.prior.min) ? q.prior.min : q.prior.mean - 5 * q.prior.sigma,
-      omax = std::isfinite(q.prior.max) ? q.prior.max : q.prior.mean + 5 * q.prior.sigma;
+  const auto off = offset_range(f.spec);
+  const double omin = off.free ? off.min : off.value, omax = off.free ? off.max : off.value;
   for (const auto& s : c.sources) {
     const sky::Vec3 n = sky::galactic_direction(s.ra_deg, s.dec_deg);
     if (f.longitude_min_deg > 0 && n[0] > cos_cut) {

@@ -44,6 +44,11 @@ std::vector<std::string> degeneracies(const FitSpec& s);
 // The free parameters in a fixed order, and the full vector from a free one.
 std::vector<Param> free_params(const FitSpec& s);
 FullParams full_from_free(const FitSpec& s, const std::vector<Param>& free, const double* x);
+// Every parameter at its fixed value or start value.
+FullParams start_values(const FitSpec& s);
+// The range of the global parallax zero point the fit may visit (the likelihood's nodes cover
+// it); throws InputError at the key for a free zero point with an unbounded flat prior.
+Likelihood::Offset offset_range(const FitSpec& s);
 
 // ln prior + ln L; -inf outside a bound or the model's domain. Thread-safe.
 double log_posterior(const FitSpec& s, const std::vector<Param>& free, const Likelihood& L,

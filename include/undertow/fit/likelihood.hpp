@@ -41,7 +41,8 @@ public:
 
 private:
   void source_terms(std::size_t i, const FullParams& p, double& ln_good, double& ln_bad) const;
-  double ln_normalisation(std::size_t i, const FullParams& p) const;
+  double ln_normalisation(std::size_t i, const FullParams& p) const; // cached when constant
+  double integrate_normalisation(std::size_t i, const FullParams& p) const;
 
   KinematicModel m_;
   std::size_t n_ = 0;
