@@ -12,7 +12,6 @@
 namespace undertow::fit {
 namespace {
 
-constexpr int kMaxNodes = 1024;
 constexpr double kLn2Pi = 1.8378770664093453;
 
 // Everything a source's node loop needs that depends on θ but not on the node.
@@ -214,68 +213,16 @@ double get(const FullParams& p, Param k) {
 } // namespace
 
 Likelihood::Likelihood(const residuals::Catalog& c, KinematicModel m, Offset off)
-    : m_(std::move(m)), n_(c.sources.size()), nodes_(m_.nodes) {
-  m_.prior.validate();
-  if (nodes_ < 4 || nodes_ > kMaxNodes)
-    throw InputError(SourcePlace{{}, 0, 0, "nodes"},
-                     "must lie between 4 and " + std::to_string(kMaxNodes));
+    : m_(std::move(m)), s_(c, m_.prior, m_.nodes, m_.lsr, off.free ? off.min : off.value,
+                           off.free ? off.max : off.value),
+      n_(s_.n), nodes_(s_.nodes) {
   if (m_.rotation == RotationForm::model && m_.model_vc_kms.size() < 2)
     throw InputError("the model rotation curve needs a tabulated circular speed");
-  const auto& R = sky::icrs_to_galactic_matrix();
-  const auto& gl = gauss_legendre(nodes_);
   const auto& gn = gauss_legendre(norm_nodes_);
   const double dmin = m_.prior.distance_min_kpc, dmax = m_.prior.distance_max_kpc;
-  const double omin = off.free ? off.min : off.value, omax = off.free ? off.max : off.value;
-  for (auto* v : {&nx_, &ny_, &nz_,  &ex_,  &ey_,  &ez_,  &qx_,  &qy_,  &qz_,  &lsr_, &w_, &a_,
-                  &dd_, &v_,  &off_, &cww_, &cwa_, &cwd_, &caa_, &cad_, &cdd_, &cvv_, &sw_})
-    v->resize(n_);
-  node_u_.resize(n_ * std::size_t(nodes_));
-  node_d_.resize(n_ * std::size_t(nodes_));
-  node_lnw_.resize(n_ * std::size_t(nodes_));
-  if (m_.prior.kind == DistancePrior::Kind::table) node_table_.resize(node_lnw_.size());
   norm_d_.resize(n_ * std::size_t(norm_nodes_));
   norm_lnw_.resize(n_ * std::size_t(norm_nodes_));
   for (std::size_t i = 0; i < n_; ++i) {
-    const auto& s = c.sources[i];
-    const double ra = s.ra_deg * units::deg, dec = s.dec_deg * units::deg;
-    const sky::Vec3 n{std::cos(dec) * std::cos(ra), std::cos(dec) * std::sin(ra), std::sin(dec)};
-    const sky::Vec3 e{-std::sin(ra), std::cos(ra), 0};
-    const sky::Vec3 q{-std::sin(dec) * std::cos(ra), -std::sin(dec) * std::sin(ra), std::cos(dec)};
-    const auto ng = sky::mul(R, n), eg = sky::mul(R, e), qg = sky::mul(R, q);
-    nx_[i] = ng[0], ny_[i] = ng[1], nz_[i] = ng[2];
-    ex_[i] = eg[0], ey_[i] = eg[1], ez_[i] = eg[2];
-    qx_[i] = qg[0], qy_[i] = qg[1], qz_[i] = qg[2];
-    lsr_[i] = sky::lsr_correction_kms(s.ra_deg, s.dec_deg, m_.lsr);
-    w_[i] = s.parallax_mas, a_[i] = s.pmra_masyr, dd_[i] = s.pmdec_masyr, v_[i] = s.vlsr_kms;
-    off_[i] = s.parallax_offset_mas;
-    const double sw = s.parallax_err_mas, sa = s.pmra_err_masyr, sd = s.pmdec_err_masyr;
-    sw_[i] = sw;
-    cww_[i] = sw * sw, caa_[i] = sa * sa, cdd_[i] = sd * sd;
-    cvv_[i] = s.vlsr_err_kms * s.vlsr_err_kms;
-    cwa_[i] = s.corr_w_pa * sw * sa, cwd_[i] = s.corr_w_pd * sw * sd, cad_[i] = s.corr_pm * sa * sd;
-    // nodes in true parallax: the likelihood's ±7σ around the measured value (widened by the
-    // zero point's range), cut to the prior's distance range
-    const double wlo = s.parallax_mas - s.parallax_offset_mas - omax,
-                 whi = s.parallax_mas - s.parallax_offset_mas - omin;
-    const double u_lo = std::max(1 / dmax, wlo - 7 * sw);
-    const double u_hi = std::min(dmin > 0 ? 1 / dmin : INFINITY, whi + 7 * sw);
-    if (!(u_hi > u_lo))
-      throw InputError(SourcePlace{c.file, s.line, 0, "parallax_mas"},
-                       "source " + s.name + ": parallax " + detail::num(s.parallax_mas) + " ± " +
-                           detail::num(sw) + " mas leaves no probability between " +
-                           detail::num(dmin) + " and " + detail::num(dmax) +
-                           " kpc (the distance prior's range)");
-    const double mid = 0.5 * (u_hi + u_lo), half = 0.5 * (u_hi - u_lo);
-    for (int j = 0; j < nodes_; ++j) {
-      const double u = mid + half * gl.nodes[std::size_t(j)];
-      node_u_[i * std::size_t(nodes_) + std::size_t(j)] = u;
-      node_d_[i * std::size_t(nodes_) + std::size_t(j)] = 1 / u;
-      // dd = du / u^2, and the prior's volume factor d^2 = u^-2
-      node_lnw_[i * std::size_t(nodes_) + std::size_t(j)] =
-          std::log(gl.weights[std::size_t(j)] * half) - 4 * std::log(u);
-      if (m_.prior.kind == DistancePrior::Kind::table)
-        node_table_[i * std::size_t(nodes_) + std::size_t(j)] = m_.prior.ln_density(1 / u, 0, 0);
-    }
     const double dm = 0.5 * (dmax + dmin), dh = 0.5 * (dmax - dmin);
     for (int j = 0; j < norm_nodes_; ++j) {
       const double d = dm + dh * gn.nodes[std::size_t(j)];
@@ -292,7 +239,7 @@ Likelihood::Likelihood(const residuals::Catalog& c, KinematicModel m, Offset off
       for (int j = 0; j < norm_nodes_; ++j) {
         const std::size_t k = i * std::size_t(norm_nodes_) + std::size_t(j);
         norm_lns_[k] =
-            ln_phi((1 / norm_d_[k] + off_[i] + off.value) / sw_[i] - m_.prior.parallax_snr_min);
+            ln_phi((1 / norm_d_[k] + s_.off[i] + off.value) / s_.sw[i] - m_.prior.parallax_snr_min);
       }
   }
   if (!norm_lns_.empty()) {
@@ -317,7 +264,7 @@ double Likelihood::ln_normalisation(std::size_t i, const FullParams& p) const {
 double Likelihood::integrate_normalisation(std::size_t i, const FullParams& p) const {
   const std::size_t b = i * std::size_t(norm_nodes_);
   double buf[kMaxNodes];
-  const double n[3] = {nx_[i], ny_[i], nz_[i]};
+  const double n[3] = {s_.nx[i], s_.ny[i], s_.nz[i]};
   const DistancePrior& prior = m_.prior;
   const double hr = get(p, Param::disk_scale_length), hz = get(p, Param::disk_scale_height);
   const bool disk = prior.kind == DistancePrior::Kind::disk;
@@ -337,9 +284,10 @@ double Likelihood::integrate_normalisation(std::size_t i, const FullParams& p) c
       v += prior.ln_density(d, 0, 0);
     }
     if (snr)
-      v += norm_lns_.empty() ? ln_phi((1 / d + off_[i] + get(p, Param::parallax_offset)) / sw_[i] -
-                                      prior.parallax_snr_min)
-                             : norm_lns_[b + std::size_t(j)];
+      v += norm_lns_.empty()
+               ? ln_phi((1 / d + s_.off[i] + get(p, Param::parallax_offset)) / s_.sw[i] -
+                        prior.parallax_snr_min)
+               : norm_lns_[b + std::size_t(j)];
     buf[j] = v;
   }
   return log_sum_exp(buf, norm_nodes_);
@@ -354,9 +302,9 @@ void Likelihood::source_terms(std::size_t i, const FullParams& p, double& ln_goo
   const auto tilt = [&](double x, double y, double z, double& ox, double& oy, double& oz) {
     ox = c * x + s * z, oy = y, oz = -s * x + c * z;
   };
-  tilt(nx_[i], ny_[i], nz_[i], in.nx, in.ny, in.nz);
-  tilt(ex_[i], ey_[i], ez_[i], in.ex, in.ey, in.ez);
-  tilt(qx_[i], qy_[i], qz_[i], in.qx, in.qy, in.qz);
+  tilt(s_.nx[i], s_.ny[i], s_.nz[i], in.nx, in.ny, in.nz);
+  tilt(s_.ex[i], s_.ey[i], s_.ez[i], in.ex, in.ey, in.ez);
+  tilt(s_.qx[i], s_.qy[i], s_.qz[i], in.qx, in.qy, in.qz);
   tilt(-r0, 0, 0, in.sx, in.sy, in.sz);
   in.th0 = m_.theta0(p);
   in.vsx = get(p, Param::u_sun), in.vsy = in.th0 + get(p, Param::v_sun),
@@ -372,19 +320,19 @@ void Likelihood::source_terms(std::size_t i, const FullParams& p, double& ln_goo
   in.hr = m_.prior.kind == DistancePrior::Kind::edsd ? m_.prior.edsd_length_kpc
                                                      : get(p, Param::disk_scale_length);
   in.hz = get(p, Param::disk_scale_height);
-  in.offset = off_[i] + get(p, Param::parallax_offset);
-  in.w = w_[i], in.a = a_[i], in.dd = dd_[i], in.v = v_[i], in.lsr = lsr_[i];
-  in.cww = cww_[i], in.cwa = cwa_[i], in.cwd = cwd_[i], in.caa = caa_[i], in.cad = cad_[i],
-  in.cdd = cdd_[i], in.cvv = cvv_[i];
+  in.offset = s_.off[i] + get(p, Param::parallax_offset);
+  in.w = s_.w[i], in.a = s_.a[i], in.dd = s_.dd[i], in.v = s_.v[i], in.lsr = s_.lsr[i];
+  in.cww = s_.cww[i], in.cwa = s_.cwa[i], in.cwd = s_.cwd[i], in.caa = s_.caa[i],
+  in.cad = s_.cad[i], in.cdd = s_.cdd[i], in.cvv = s_.cvv[i];
   in.model_vc = m_.model_vc_kms.data();
   in.model_step = m_.model_step_kpc;
   in.model_n = int(m_.model_vc_kms.size());
   const NodeFn fn = pick(m_.rotation, m_.anisotropic, m_.prior.kind);
-  const double* u = node_u_.data() + i * std::size_t(nodes_);
-  const double* lnw = node_lnw_.data() + i * std::size_t(nodes_);
-  const double* dist = node_d_.data() + i * std::size_t(nodes_);
+  const double* u = s_.node_u.data() + i * std::size_t(nodes_);
+  const double* lnw = s_.node_lnw.data() + i * std::size_t(nodes_);
+  const double* dist = s_.node_d.data() + i * std::size_t(nodes_);
   const double* table =
-      node_table_.empty() ? nullptr : node_table_.data() + i * std::size_t(nodes_);
+      s_.node_table.empty() ? nullptr : s_.node_table.data() + i * std::size_t(nodes_);
   double buf[kMaxNodes];
   ln_good = fn(in, u, dist, lnw, table, nodes_, buf);
   ln_bad = -INFINITY;

@@ -62,13 +62,9 @@ Selection select_sources(const FitFile& f, const residuals::Catalog& c) {
       continue;
     }
     // the likelihood's own test: the parallax within 7 sigma of the prior's range
-    const double w = s.parallax_mas - s.parallax_offset_mas, sw = s.parallax_err_mas;
-    const double u_lo = std::max(1 / prior.distance_max_kpc, w - omax - 7 * sw);
-    const double u_hi = std::min(prior.distance_min_kpc > 0 ? 1 / prior.distance_min_kpc : INFINITY,
-                                 w - omin + 7 * sw);
-    if (!(u_hi > u_lo)) {
+    if (!parallax_within_prior(s, prior, omin, omax)) {
       sel.excluded.push_back(s.name + ": parallax " + detail::num(s.parallax_mas) + " ± " +
-                             detail::num(sw) + " mas is more than 7 sigma from the prior's range " +
+                             detail::num(s.parallax_err_mas) + " mas is more than 7 sigma from the prior's range " +
                              detail::num(prior.distance_min_kpc) + "-" +
                              detail::num(prior.distance_max_kpc) + " kpc");
       continue;

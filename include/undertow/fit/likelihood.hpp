@@ -14,6 +14,7 @@
 #include <vector>
 
 #include "undertow/fit/kinematic_model.hpp"
+#include "undertow/fit/measured_sources.hpp"
 #include "undertow/residuals/catalog.hpp"
 
 namespace undertow::fit {
@@ -45,19 +46,13 @@ private:
   double integrate_normalisation(std::size_t i, const FullParams& p) const;
 
   KinematicModel m_;
+  MeasuredSources s_;
   std::size_t n_ = 0;
   int nodes_ = 0, norm_nodes_ = 48;
-  // per source (SoA): directions in heliocentric Galactic axes (line of sight n, ICRS east e and
-  // north q), LSR correction, measured values and measurement covariance
-  std::vector<double> nx_, ny_, nz_, ex_, ey_, ez_, qx_, qy_, qz_, lsr_;
-  std::vector<double> w_, a_, dd_, v_, off_;
-  std::vector<double> cww_, cwa_, cwd_, caa_, cad_, cdd_, cvv_, sw_;
-  std::vector<double> node_u_, node_d_, node_lnw_; // n_ × nodes_: u, 1/u, ln weight
-  std::vector<double> node_table_;                 // ln ρ of a tabulated prior at the nodes
-  std::vector<double> norm_d_, norm_lnw_;          // n_ × norm_nodes_ (ln w includes 2 ln d)
-  std::vector<double> norm_lns_;                   // ln S(d) when the zero point is fixed
-  std::vector<double> norm_lnw_s_;                 // norm_lnw_ + norm_lns_
-  std::vector<double> ln_z_const_;                 // per source, when the normalisation is constant
+  std::vector<double> norm_d_, norm_lnw_; // n_ × norm_nodes_ (ln w includes 2 ln d)
+  std::vector<double> norm_lns_;          // ln S(d) when the zero point is fixed
+  std::vector<double> norm_lnw_s_;        // norm_lnw_ + norm_lns_
+  std::vector<double> ln_z_const_;        // per source, when the normalisation is constant
   bool norm_varies_ = false;
 };
 
