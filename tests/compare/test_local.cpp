@@ -3,6 +3,7 @@
 #include <cmath>
 #include <random>
 
+#include "support/sample_moments.hpp"
 #include "undertow/compare/local.hpp"
 #include "undertow/compare/statistics.hpp"
 #include "undertow/error.hpp"
@@ -45,15 +46,9 @@ TEST_CASE("Under the true model the pulls have mean 0 and dispersion 1 and chi^2
     pulls.insert(pulls.end(), s.pull.begin(), s.pull.end());
     chi2 += s.chi2;
   }
-  double m = 0, v = 0;
-  for (double p : pulls)
-    m += p;
-  m /= double(pulls.size());
-  for (double p : pulls)
-    v += (p - m) * (p - m);
-  v /= double(pulls.size() - 1);
+  const auto [m, sd] = test::mean_sd(pulls);
   CHECK(std::fabs(m) < 4 / std::sqrt(double(pulls.size())));
-  CHECK(std::sqrt(v) == Approx(1.0).margin(0.06));
+  CHECK(sd == Approx(1.0).margin(0.06));
   INFO("mean chi2 " << chi2 / 2000);
   CHECK(chi2 / 2000 == Approx(3.0).margin(0.2)); // sampling error 0.055; estimated S adds ~2%
 }
@@ -90,4 +85,32 @@ TEST_CASE("A source with no simulated neighbours stops the comparison with its n
   CHECK_THROWS_WITH(compare_locally(meas, draw(rng, 5000, 0, 0), nb),
                     Catch::Contains("source 'far-away' has 0 simulated young sources nearby"));
   CHECK_THROWS_AS(compare_locally(meas, {}, nb), InputError);
+}
+
+TEST_CASE("Predictive distribution from k neighbours: held-out simulated sources of the same "
+          "population give standard normal pulls and uniform tail probabilities for k = 6, 10 "
+          "and 30 (Student-t predictive, Gelman et al. 2013 BDA3 sec. 3.6, Hotelling's T^2)",
+          "[compare]") {
+  for (std::size_t k : {6, 10, 30}) {
+    std::mt19937_64 rng(100 + k);
+    const auto sim = draw(rng, 20000, -7, 0);
+    const auto held_out = draw(rng, 4000, -7, 0); // no measurement errors: the exact case
+    Neighbourhood nb;
+    nb.k = k;
+    const auto r = compare_locally(held_out, sim, nb);
+    std::vector<double> pulls;
+    std::size_t beyond = 0, below_tenth = 0;
+    for (const auto& s : r.sources) {
+      pulls.insert(pulls.end(), s.pull.begin(), s.pull.end());
+      beyond += s.p_value < kThreeSigmaTail;
+      below_tenth += s.p_value < 0.1;
+    }
+    const auto [m, sd] = test::mean_sd(pulls);
+    INFO("k = " << k << ": pull mean " << m << ", dispersion " << sd << ", " << beyond
+                << " of 4000 beyond 3 sigma, " << below_tenth << " with p < 0.1");
+    CHECK(std::fabs(m) < 0.05);                  // 12 000 pulls, shared neighbours
+    CHECK(sd == Approx(1.0).margin(0.04));
+    CHECK(beyond <= 25);                          // expected 10.8 (binomial sd 3.3)
+    CHECK(double(below_tenth) / 4000 == Approx(0.1).margin(0.02)); // binomial sd 0.005
+  }
 }

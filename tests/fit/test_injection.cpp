@@ -10,6 +10,7 @@
 #include <iostream>
 
 #include "support/kinematic_truth.hpp"
+#include "support/sample_moments.hpp"
 #include "undertow/fit/likelihood.hpp"
 #include "undertow/tracers/random.hpp"
 
@@ -59,13 +60,7 @@ TEST_CASE("Injection and recovery over many simulated catalogs: calibrated pulls
   for (std::size_t j = 0; j < checked.size(); ++j) {
     const auto& p = pulls[j];
     REQUIRE(p.size() == std::size_t(trials));
-    double mean = 0, var = 0;
-    for (double x : p)
-      mean += x;
-    mean /= double(p.size());
-    for (double x : p)
-      var += (x - mean) * (x - mean);
-    const double sd = std::sqrt(var / double(p.size() - 1));
+    const auto [mean, sd] = test::mean_sd(p);
     const double coverage = double(covered[j]) / trials;
     // binomial error of a 68.27 % coverage over this many trials
     const double cov_err = std::sqrt(0.6827 * 0.3173 / trials);
