@@ -92,6 +92,11 @@ std::vector<std::string> TableReader::strings(std::string_view key) const {
   return out;
 }
 
+bool TableReader::is_array(std::string_view key) const {
+  const toml::node* n = get(key);
+  return n && n->is_array();
+}
+
 std::vector<double> TableReader::numbers(std::string_view key) const {
   const toml::node* n = get(key);
   if (!n) fail("", "missing required key '" + std::string(key) + "'");

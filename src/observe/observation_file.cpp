@@ -70,6 +70,27 @@ ObservationSpec observation_from_table(const toml::table& t, const std::string& 
                      " (posterior median; Theta0 the model's v_c(R0), V_sun set so that "
                      "Theta0 + V_sun = " +
                      detail::num(g.model.theta0(p) + at(fit::Param::v_sun)) + " km/s as fitted)";
+      // the posterior covariance of the Sun's velocity, for the verdict's nuisance
+      if (g.samples.size() > 10) {
+        std::vector<std::array<double, 3>> v;
+        for (const auto& x : g.samples)
+          v.push_back({x[std::size_t(fit::Param::u_sun)],
+                       g.model.theta0(x) + x[std::size_t(fit::Param::v_sun)],
+                       x[std::size_t(fit::Param::w_sun)]});
+        std::array<double, 3> mean{};
+        for (const auto& x : v)
+          for (std::size_t a = 0; a < 3; ++a)
+            mean[a] += x[a] / double(v.size());
+        std::array<double, 9> cov{};
+        for (const auto& x : v)
+          for (std::size_t a = 0; a < 3; ++a)
+            for (std::size_t b = 0; b < 3; ++b)
+              cov[3 * a + b] += (x[a] - mean[a]) * (x[b] - mean[b]) / double(v.size() - 1);
+        // a component the fit held fixed has no spread: give it 0.01 km/s, not a singular prior
+        for (std::size_t a = 0; a < 3; ++a)
+          cov[4 * a] = std::max(cov[4 * a], 1e-4);
+        s.sun_velocity_cov = cov;
+      }
       q.finish({"from_fit"});
       try {
         s.sun.validate();

@@ -10,8 +10,11 @@
 
 #include "undertow/compare/global.hpp"
 #include "undertow/compare/local.hpp"
+#include "undertow/compare/realisations.hpp"
+#include "undertow/compare/verdict.hpp"
 #include "undertow/dynamics/frequencies.hpp"
 #include "undertow/error.hpp"
+#include "undertow/fit/measured_sources.hpp"
 #include "undertow/io/digest.hpp"
 #include "undertow/io/table_hdf5.hpp"
 #include "undertow/io/text_file.hpp"
@@ -63,8 +66,8 @@ std::string sun_description(const scenario::Scenario& s) {
   d.precision(15);
   d << "R0 " << o.sun.r0_kpc << " kpc, z_sun " << o.sun.z_sun_kpc << " kpc, Theta0 "
     << o.sun.theta0_kms << " km/s, solar motion (" << o.sun.u_sun_kms << ", " << o.sun.v_sun_kms
-    << ", " << o.sun.w_sun_kms << ") km/s, LSR " << (o.lsr == sky::LsrForm::apex ? "apex" : "components")
-    << ", from " << o.sun_source;
+    << ", " << o.sun.w_sun_kms << ") km/s, LSR "
+    << (o.lsr == sky::LsrForm::apex ? "apex" : "components") << ", from " << o.sun_source;
   return d.str();
 }
 
@@ -75,14 +78,33 @@ std::string selection_description(const scenario::Scenario& s) {
   const auto& c = *s.comparison;
   std::ostringstream d;
   d.precision(15);
-  d << "distance " << x.distance_min_kpc << "-" << x.distance_max_kpc << " kpc, |b| <= "
-    << x.latitude_max_deg << " deg, dec " << x.dec_min_deg << " to " << x.dec_max_deg
-    << " deg, parallax S/N >= " << x.parallax_snr_min << ", parallax " << x.parallax_min_mas
-    << " to " << x.parallax_max_mas << " mas, at most " << x.max_sources << " sources; errors "
-    << int(e.kind) << " (" << e.parallax_mas << " mas, " << e.parallax_fraction << ", "
-    << e.pm_masyr << " mas/yr, " << e.vlsr_kms << " km/s); measured: distance "
-    << int(c.distance) << ", S/N >= " << c.min_parallax_snr;
+  d << "distance " << x.distance_min_kpc << "-" << x.distance_max_kpc
+    << " kpc, |b| <= " << x.latitude_max_deg << " deg, dec " << x.dec_min_deg << " to "
+    << x.dec_max_deg << " deg, parallax S/N >= " << x.parallax_snr_min << ", parallax "
+    << x.parallax_min_mas << " to " << x.parallax_max_mas << " mas, at most " << x.max_sources
+    << " sources; errors " << int(e.kind) << " (" << e.parallax_mas << " mas, "
+    << e.parallax_fraction << ", " << e.pm_masyr << " mas/yr, " << e.vlsr_kms
+    << " km/s); measured: distance " << int(c.distance) << ", S/N >= " << c.min_parallax_snr;
   return d.str();
+}
+
+// Indices in window.back() of young tracers drawn by the observation's weighted selection, with
+// the selection's geometry replaced by `sel` (no errors are used).
+std::vector<std::size_t> young_indices(const scenario::Scenario& s,
+                                       const std::vector<double>& weights,
+                                       const std::vector<io::Snapshot>& window,
+                                       const observe::Selection& sel) {
+  auto settings = s.observation->settings;
+  settings.selection = sel;
+  const auto mock = observe::observe(window.back(), weights, settings);
+  const auto& t = window.back().tracers;
+  std::map<std::uint64_t, std::size_t> index;
+  for (std::size_t i = 0; i < t.size(); ++i)
+    index[t.id[i]] = i;
+  std::vector<std::size_t> out;
+  for (auto id : mock.tracer_ids)
+    out.push_back(index.at(id));
+  return out;
 }
 
 // The young tracers that predict the local distributions: the observation's weighted selection
@@ -90,26 +112,89 @@ std::string selection_description(const scenario::Scenario& s) {
 std::vector<compare::PlanePoint> predictions(const scenario::Scenario& s,
                                              const std::vector<double>& weights,
                                              const std::vector<io::Snapshot>& window) {
-  auto settings = s.observation->settings;
-  settings.selection.max_sources = s.comparison->prediction_sources;
-  settings.selection.parallax_snr_min = 0;
-  const auto mock = observe::observe(window.back(), weights, settings);
+  auto sel = s.observation->settings.selection;
+  sel.max_sources = s.comparison->prediction_sources;
+  sel.parallax_snr_min = 0;
+  sel.parallax_min_mas = -1e300, sel.parallax_max_mas = 1e300;
   const auto rs = residual_settings(s);
   const auto& t = window.back().tracers;
-  std::map<std::uint64_t, std::size_t> index;
-  for (std::size_t i = 0; i < t.size(); ++i)
-    index[t.id[i]] = i;
   std::vector<compare::PlanePoint> out;
-  for (auto id : mock.tracer_ids) {
-    const std::size_t i = index.at(id);
+  for (auto i : young_indices(s, weights, window, sel)) {
     sky::Observed o;
     const double d = sky::from_galactocentric(
         {{t.x[i], t.y[i], t.z[i]}, {t.vx[i], t.vy[i], t.vz[i]}}, rs.sun, o);
     compare::PlanePoint p;
     p.x = t.x[i], p.y = t.y[i];
     p.uvw = residuals::peculiar_motion(o, d, rs);
-    p.name = "T" + std::to_string(id);
+    p.name = "T" + std::to_string(t.id[i]);
     out.push_back(p);
+  }
+  return out;
+}
+
+// The young sources the verdict draws on: the weighted selection over the whole sky out to 3 kpc
+// beyond the survey's reach, without any cut on observed quantities (the model's prediction
+// does not depend on where the survey could look).
+compare::SimulatedYoung verdict_young(const scenario::Scenario& s,
+                                      const std::vector<double>& weights,
+                                      const std::vector<io::Snapshot>& window) {
+  observe::Selection sel;
+  sel.distance_max_kpc = s.observation->settings.selection.distance_max_kpc + 3;
+  sel.max_sources = s.comparison->verdict_sources;
+  const auto& t = window.back().tracers;
+  compare::SimulatedYoung y;
+  for (auto i : young_indices(s, weights, window, sel)) {
+    y.x.push_back(t.x[i]), y.y.push_back(t.y[i]), y.z.push_back(t.z[i]);
+    y.vx.push_back(t.vx[i]), y.vy.push_back(t.vy[i]), y.vz.push_back(t.vz[i]);
+  }
+  return y;
+}
+
+compare::VerdictSettings verdict_settings(const scenario::Scenario& s) {
+  const auto& c = *s.comparison;
+  const auto& ob = s.observation->settings;
+  compare::VerdictSettings v;
+  v.neighbours = c.neighbours;
+  v.prior = c.prior;
+  v.prior.parallax_snr_min = 0; // the verdict is conditional on the parallax
+  v.lsr = ob.lsr;
+  v.tails = c.student_tails ? compare::VerdictSettings::Tails::student
+                            : compare::VerdictSettings::Tails::gaussian;
+  v.floor_min_kms = c.floor_min_kms, v.floor_max_kms = c.floor_max_kms;
+  v.r0_kpc = ob.sun.r0_kpc, v.z_sun_kpc = ob.sun.z_sun_kpc;
+  v.sun_velocity_kms = {ob.sun.u_sun_kms, ob.sun.theta0_kms + ob.sun.v_sun_kms, ob.sun.w_sun_kms};
+  v.marginalise_sun = c.marginalise_sun;
+  if (ob.sun_velocity_cov)
+    for (int a = 0; a < 3; ++a)
+      for (int b = 0; b < 3; ++b)
+        v.sun_velocity_cov(a, b) = (*ob.sun_velocity_cov)[std::size_t(3 * a + b)];
+  else
+    v.sun_velocity_cov = Eigen::Vector3d(c.sun_velocity_err_kms[0], c.sun_velocity_err_kms[1],
+                                         c.sun_velocity_err_kms[2])
+                             .array()
+                             .square()
+                             .matrix()
+                             .asDiagonal();
+  return v;
+}
+
+// The measured sources the verdict judges: the comparison's parallax signal-to-noise cut, and a
+// parallax that leaves probability inside the distance prior's range.
+residuals::Catalog verdict_catalog(const scenario::Scenario& s, const residuals::Catalog& c,
+                                   std::vector<std::string>& excluded) {
+  residuals::Catalog out;
+  out.file = c.file;
+  const auto& cm = *s.comparison;
+  for (const auto& src : c.sources) {
+    if (cm.min_parallax_snr > 0 &&
+        !(src.parallax_mas >= cm.min_parallax_snr * src.parallax_err_mas))
+      continue; // the residuals' own cut, listed there
+    if (!fit::parallax_within_prior(src, cm.prior, 0, 0)) {
+      excluded.push_back(src.name + ": parallax more than 7 sigma outside the distance prior's "
+                                    "range");
+      continue;
+    }
+    out.sources.push_back(src);
   }
   return out;
 }
@@ -130,7 +215,7 @@ std::vector<compare::PlanePoint> plane_points(const residuals::ResidualResult& r
 
 io::Table local_table(const compare::LocalResult& l) {
   io::Table t;
-  t.title = "Measured sources against the simulated young sources near them";
+  t.title = "Measured sources against the simulated young sources near them (descriptive)";
   t.label_header = "name";
   t.columns = {{"neighbours", "N", "N", "", 5},
                {"U_pred_kms", "U_{\\rm pred}", "U_pred", "km/s", 4},
@@ -139,15 +224,62 @@ io::Table local_table(const compare::LocalResult& l) {
                {"pull_U", "p_U", "pull_U", "", 3},
                {"pull_V", "p_V", "pull_V", "", 3},
                {"pull_W", "p_W", "pull_W", "", 3},
-               {"chi2", "\\chi^2", "χ²", "", 4},
-               {"log_likelihood", "\\ln L", "ln L", "", 5}};
+               {"dof", "\\nu", "ν", "", 4},
+               {"q", "Q", "Q", "", 4},
+               {"p_value", "p", "p", "", 3},
+               {"log_likelihood", "\\ln p", "ln p", "", 5}};
   for (const auto& s : l.sources) {
     t.row_labels.push_back(s.name);
     t.add_row({double(s.neighbours), s.predicted[0], s.predicted[1], s.predicted[2], s.pull[0],
-               s.pull[1], s.pull[2], s.chi2, s.log_likelihood});
+               s.pull[1], s.pull[2], s.dof, s.chi2, s.p_value, s.log_likelihood});
   }
+  t.notes.push_back(
+      "predictions: the Student-t predictive of the k simulated neighbours (their "
+      "sampling noise; Gelman et al. 2013, sec. 3.6), widened by the measurement "
+      "errors (Satterthwaite dof); pulls are standard normal deviates of the same "
+      "probability; Q/3 ~ F(3, dof). A descriptive table: the verdict is verdict.csv");
   for (const auto& o : l.outliers)
     t.notes.push_back("beyond 3 sigma: " + o);
+  return t;
+}
+
+// One row per realisation, then the notes that say what the verdict rests on.
+io::Table verdict_table(const scenario::Scenario& s, const std::vector<compare::VerdictResult>& v,
+                        const compare::RealisationSummary& sum,
+                        const std::vector<std::string>& excluded) {
+  io::Table t;
+  t.title = "Verdict: ln p(proper motions, v_LSR | parallax) of the measured sources, per "
+            "realisation";
+  t.label_header = "realisation";
+  t.columns = {{"tracer_seed", "{\\rm seed}", "seed", "", 10},
+               {"log_likelihood", "\\ln L", "ln L", "", 8},
+               {"log_likelihood_max", "\\ln L_{\\rm max}", "ln L_max", "", 8},
+               {"floor_kms", "\\sigma_{\\rm int}", "σ_int", "km/s", 3},
+               {"floor_mean_kms", "\\langle\\sigma_{\\rm int}\\rangle", "⟨σ_int⟩", "km/s", 3},
+               {"u_sun_kms", "U_\\odot", "U☉", "km/s", 4},
+               {"sun_vphi_kms", "\\Theta_0 + V_\\odot", "Θ0+V☉", "km/s", 5},
+               {"w_sun_kms", "W_\\odot", "W☉", "km/s", 4},
+               {"far_share", "f_{\\rm far}", "f_far", "", 3}};
+  for (std::size_t r = 0; r < v.size(); ++r) {
+    t.row_labels.push_back(std::to_string(r));
+    t.add_row({double(s.seed + r), v[r].log_likelihood, v[r].log_likelihood_at_best, v[r].floor_kms,
+               v[r].floor_mean_kms, v[r].sun_velocity_kms[0], v[r].sun_velocity_kms[1],
+               v[r].sun_velocity_kms[2], v[r].far_share});
+  }
+  char b[256];
+  std::snprintf(b, sizeof b, "ln L = %.2f, scatter %.2f over %zu realisation(s), %zu sources",
+                sum.mean, sum.scatter, sum.count, sum.names.size());
+  t.notes.push_back(b);
+  t.notes.push_back("ln L: marginal over sigma_int (uniform prior) and, when so said below, the "
+                    "Sun's velocity; ln L_max, sigma_int and the Sun's velocity: at the maximum");
+  std::vector<std::string> seen;
+  for (const auto& r : v)
+    for (const auto& n : r.notes)
+      if (std::find(seen.begin(), seen.end(), n) == seen.end()) seen.push_back(n);
+  for (const auto& n : seen)
+    t.notes.push_back(n);
+  for (const auto& e : excluded)
+    t.notes.push_back("not judged: " + e);
   return t;
 }
 
@@ -171,26 +303,49 @@ WholeRunResult run_all(const scenario::Scenario& s, const WholeRunOptions& o) {
     if (o.log) *o.log << t << "\n";
   };
 
-  // 1. orbits
-  const fs::path orbits = dir / "orbits.h5";
-  const auto orbits_key = stored_key(dir / ".keys/orbits");
-  if (reusable(orbits_key, s.orbit_key, orbits, o.force)) {
-    res.reused.push_back("orbits");
-    note("orbits: reused " + orbits.string());
-  } else {
+  // 1. orbits, for each realisation: the run's seed in the run folder, seed + r in
+  // realisations/r<r>/ (each stage reused when its inputs have not changed)
+  const auto realisation_scenario = [&](std::size_t r) {
+    scenario::Scenario sr = s;
+    sr.seed = s.seed + r;
+    if (r > 0)
+      sr.orbit_key += "\n# realisation " + std::to_string(r) + ", tracer seed " +
+                      std::to_string(sr.seed) + "\n";
+    return sr;
+  };
+  const auto orbits_of = [&](std::size_t r) {
+    return r == 0 ? dir / "orbits.h5"
+                  : dir / "realisations" / ("r" + std::to_string(r)) / "orbits.h5";
+  };
+  const auto orbit_stage = [&](std::size_t r) {
+    const auto sr = realisation_scenario(r);
+    const fs::path orbits = orbits_of(r);
+    const fs::path key = dir / ".keys" / (r == 0 ? "orbits" : "orbits-r" + std::to_string(r));
+    const auto orbits_key = stored_key(key);
+    if (reusable(orbits_key, sr.orbit_key, orbits, o.force)) {
+      res.reused.push_back(r == 0 ? "orbits" : "orbits-r" + std::to_string(r));
+      note("orbits: reused " + orbits.string());
+      return true;
+    }
+    fs::create_directories(orbits.parent_path());
     EnsembleOptions eo;
     eo.output = orbits.string();
-    eo.restart = o.force || (orbits_key && *orbits_key != s.orbit_key);
+    eo.restart = o.force || (orbits_key && *orbits_key != sr.orbit_key);
     eo.progress = o.progress;
     eo.stop = o.stop;
     eo.log = o.log;
-    fs::remove(dir / ".keys/orbits", ec);
-    const auto r = run_ensemble(s, eo);
-    if (!r.complete) return res;
-    write_text(dir / ".keys/orbits", s.orbit_key);
-    note("orbits: " + std::to_string(r.tracers) + " tracers to t = " + detail::num(s.end_myr) +
-         " Myr");
-  }
+    std::error_code e2;
+    fs::remove(key, e2);
+    const auto er = run_ensemble(sr, eo);
+    if (!er.complete) return false;
+    write_text(key, sr.orbit_key);
+    note("orbits: " + std::to_string(er.tracers) + " tracers to t = " + detail::num(s.end_myr) +
+         " Myr (realisation " + std::to_string(r) + ", seed " + std::to_string(sr.seed) + ")");
+    return true;
+  };
+  const std::size_t K = s.comparison->realisations;
+  if (!orbit_stage(0)) return res; // the other realisations after the comparison's checks
+  const fs::path orbits = orbits_of(0);
 
   // 2. the mock observation
   const io::SnapshotReader rd(orbits.string());
@@ -239,7 +394,7 @@ WholeRunResult run_all(const scenario::Scenario& s, const WholeRunOptions& o) {
       meas_res, mock_res, {s.comparison->radius_bins_kpc, s.comparison->azimuth_bins_deg},
       s.comparison->bootstrap, s.comparison->seed);
   const auto global = compare::global_table(gc);
-  const auto& all_v = gc.all().uvw[1], &all_u = gc.all().uvw[0];
+  const auto &all_v = gc.all().uvw[1], &all_u = gc.all().uvw[0];
   compare::Neighbourhood nb;
   nb.kind = s.comparison->nearest ? compare::Neighbourhood::Kind::nearest
                                   : compare::Neighbourhood::Kind::radius;
@@ -249,14 +404,51 @@ WholeRunResult run_all(const scenario::Scenario& s, const WholeRunOptions& o) {
   const auto local =
       compare::compare_locally(plane_points(meas_res), predictions(s, weights, window), nb);
   const auto ltab = local_table(local);
+
+  // 5. the verdict, for each realisation
+  for (std::size_t r = 1; r < K; ++r)
+    if (!orbit_stage(r)) return res;
+  std::vector<std::string> verdict_excluded;
+  const auto judged = verdict_catalog(s, measured, verdict_excluded);
+  if (judged.sources.size() < 3)
+    throw InputError(SourcePlace{s.comparison->catalog, 0, 0, {}},
+                     std::to_string(judged.sources.size()) +
+                         " measured sources are left for the verdict (3 or more needed)");
+  const auto vs = verdict_settings(s);
+  std::vector<compare::VerdictResult> verdicts;
+  for (std::size_t r = 0; r < K; ++r) {
+    if (o.stop && o.stop->load()) return res;
+    if (r == 0) {
+      verdicts.push_back(compare::judge(judged, verdict_young(s, weights, window), vs));
+    } else {
+      const io::SnapshotReader rr(orbits_of(r).string());
+      const auto pr = observe::prepare(rr, *s.observation, s.model,
+                                       SourcePlace{s.path, 0, 0, "observation.time_myr"});
+      verdicts.push_back(compare::judge(judged, verdict_young(s, pr.weights, pr.window), vs));
+    }
+    note("verdict: realisation " + std::to_string(r) + " (seed " + std::to_string(s.seed + r) +
+         "): ln L = " + detail::num(verdicts.back().log_likelihood));
+  }
+  std::vector<double> totals;
+  std::vector<std::vector<double>> per_source;
+  for (const auto& v : verdicts)
+    totals.push_back(v.log_likelihood), per_source.push_back(v.source_log_likelihood);
+  const auto summary = compare::summarise_realisations(totals, per_source, verdicts[0].names);
+  const auto vtab = verdict_table(s, verdicts, summary, verdict_excluded);
+
   io::write_table_files((dir / "comparison-global").string(), global);
   io::write_table_files((dir / "comparison-local").string(), ltab);
+  io::write_table_files((dir / "verdict").string(), vtab);
   io::h5::File::write_atomically((dir / "comparison.h5").string(), [&](const io::h5::File& f) {
     io::h5::set_attr(f, f.id(), "undertow_format", std::string("comparison"));
     io::h5::set_attr(f, f.id(), "scenario", s.text);
-    io::h5::set_attr(f, f.id(), "log_likelihood", local.log_likelihood);
+    io::h5::set_attr(f, f.id(), "log_likelihood", summary.mean);
+    io::h5::set_attr(f, f.id(), "log_likelihood_scatter", summary.scatter);
+    io::h5::set_attr(f, f.id(), "realisations", std::int64_t(K));
+    io::h5::set_attr(f, f.id(), "local_log_likelihood", local.log_likelihood);
     io::h5::set_attr(f, f.id(), "chi2", local.chi2);
     io::h5::set_attr(f, f.id(), "measured_sources", std::int64_t(meas_res.sources.size()));
+    io::h5::set_attr(f, f.id(), "judged_sources", std::int64_t(judged.sources.size()));
     // what 'versus' requires runs to share before it sets them side by side
     io::h5::set_attr(f, f.id(), "run_name", s.name);
     io::h5::set_attr(f, f.id(), "catalog_digest",
@@ -268,9 +460,20 @@ WholeRunResult run_all(const scenario::Scenario& s, const WholeRunOptions& o) {
     io::h5::set_attr(f, f.id(), "mean_V_significance", all_v.significance);
     io::write_table_group(f, "global", global);
     io::write_table_group(f, "local", ltab);
+    io::write_table_group(f, "verdict_table", vtab);
+    const auto g = io::h5::create_group(f, "verdict");
+    io::h5::write_strings(f, g.id(), "source", summary.names, "the judged measured sources");
+    io::h5::write_doubles(f, g.id(), "realisation_log_likelihood", totals, 1, "",
+                          "ln L of each realisation, nuisances marginalised");
+    std::vector<double> flat;
+    for (const auto& v : per_source)
+      flat.insert(flat.end(), v.begin(), v.end());
+    io::h5::write_doubles(f, g.id(), "source_log_likelihood", flat, summary.names.size(), "",
+                          "ln p(pm, v_LSR | parallax) per realisation (rows) and source "
+                          "(columns), at the maximum over the nuisances");
   });
   const auto& sun = s.observation->settings.sun;
-  char b[2048];
+  char b[3072];
   std::snprintf(
       b, sizeof b,
       "scenario %s (%s)\n"
@@ -280,20 +483,29 @@ WholeRunResult run_all(const scenario::Scenario& s, const WholeRunOptions& o) {
       "mock catalog: %zu sources observed at t = %g Myr\n"
       "mean V_s: measured %.2f +- %.2f km/s, simulated %.2f +- %.2f km/s, difference %.1f sigma\n"
       "mean U_s: measured %.2f +- %.2f km/s, simulated %.2f +- %.2f km/s\n"
-      "local comparison: sum ln L = %.2f, sum chi^2 = %.1f for %zu sources (%zu beyond 3 sigma)\n",
+      "verdict: ln L = %.1f, scatter %.1f over %zu realisation%s (tracer seeds %llu-%llu), %zu "
+      "sources; sigma_int %.1f km/s; the Sun's velocity %s\n"
+      "local table: %zu of %zu sources beyond 3 sigma of their Student-t prediction\n",
       s.name.c_str(), s.path.c_str(), sun.r0_kpc, sun.z_sun_kpc, sun.theta0_kms, sun.u_sun_kms,
       sun.v_sun_kms, sun.w_sun_kms, s.observation->settings.sun_source.c_str(),
-      s.comparison->catalog.c_str(), meas_res.sources.size(),
-      mock_res.sources.size(), prep.time_myr, all_v.measured.mean, all_v.measured.mean_err,
-      all_v.simulated.mean, all_v.simulated.mean_err, all_v.significance, all_u.measured.mean,
-      all_u.measured.mean_err, all_u.simulated.mean, all_u.simulated.mean_err,
-      local.log_likelihood, local.chi2, local.sources.size(),
-      local.outliers.size());
+      s.comparison->catalog.c_str(), meas_res.sources.size(), mock_res.sources.size(),
+      prep.time_myr, all_v.measured.mean, all_v.measured.mean_err, all_v.simulated.mean,
+      all_v.simulated.mean_err, all_v.significance, all_u.measured.mean, all_u.measured.mean_err,
+      all_u.simulated.mean, all_u.simulated.mean_err, summary.mean, summary.scatter, K,
+      K == 1 ? "" : "s", (unsigned long long)s.seed, (unsigned long long)(s.seed + K - 1),
+      judged.sources.size(), verdicts[0].floor_mean_kms,
+      vs.marginalise_sun ? "marginalised" : "held fixed", local.outliers.size(),
+      local.sources.size());
   res.summary = b;
+  if (K == 1)
+    res.summary += "note: one realisation: the verdict's realisation noise is not known; set "
+                   "[comparison] realisations = 4 or more\n";
   write_text(dir / "summary.txt", res.summary);
   write_text(dir / "scenario.toml", s.text);
   res.complete = true;
-  res.log_likelihood = local.log_likelihood;
+  res.log_likelihood = summary.mean;
+  res.log_likelihood_scatter = summary.scatter;
+  res.realisations = K;
   res.chi2 = local.chi2;
   for (const auto& src : local.sources)
     res.pulls.push_back(src.pull);
@@ -307,27 +519,32 @@ WholeRunResult run_all(const scenario::Scenario& s, const WholeRunOptions& o) {
 io::Table compare_runs(const std::vector<std::string>& folders) {
   if (folders.size() < 2) throw InputError("give two or more run folders to compare");
   io::Table t;
-  t.title = "Models against one catalog (differences against the first)";
+  t.title = "Models against one catalog: the verdict, differences against the first";
   t.label_header = "run";
   t.columns = {{"n", "N", "N", "", 5},
-               {"log_likelihood", "\\ln L", "ln L", "", 6},
-               {"delta_log_likelihood", "\\Delta\\ln L", "Δ ln L", "", 5},
-               {"chi2", "\\chi^2", "χ²", "", 6},
-               {"delta_chi2", "\\Delta\\chi^2", "Δχ²", "", 5},
+               {"realisations", "K", "K", "", 3},
+               {"log_likelihood", "\\ln L", "ln L", "", 8},
+               {"log_likelihood_scatter", "s_{\\ln L}", "scatter", "", 3},
+               {"delta_log_likelihood", "\\Delta\\ln L", "Δ ln L", "", 6},
+               {"delta_err", "\\sigma_\\Delta", "σ_Δ", "", 3},
+               {"delta_sources_err", "\\sigma_{\\rm src}", "σ_src", "", 3},
+               {"delta_realisations_err", "\\sigma_{\\rm real}", "σ_real", "", 3},
+               {"delta_significance", "\\Delta/\\sigma_\\Delta", "Δ/σ_Δ", "", 3},
                {"mean_V_measured_kms", "\\langle V_s\\rangle_{\\rm obs}", "⟨V_s⟩_obs", "km/s", 4},
                {"mean_V_simulated_kms", "\\langle V_s\\rangle_{\\rm sim}", "⟨V_s⟩_sim", "km/s", 4},
-               {"mean_V_significance", "\\Delta/\\sigma", "Δ/σ", "", 3}};
-  double l0 = 0, c0 = 0;
+               {"mean_V_significance", "\\Delta V/\\sigma", "ΔV/σ", "", 3}};
   std::string first_catalog, first_sun, first_selection;
   std::vector<std::string> names;
+  std::vector<compare::RealisationSummary> sums;
+  std::vector<std::array<double, 4>> extra; // n, mean V measured, simulated, significance
   for (std::size_t i = 0; i < folders.size(); ++i) {
     const fs::path p = fs::path(folders[i]) / "comparison.h5";
     const auto f = io::h5::File::open_read(p.string());
-    for (const char* a : {"run_name", "catalog_digest", "sun", "selection"})
+    for (const char* a : {"run_name", "catalog_digest", "sun", "selection", "realisations"})
       if (!io::h5::has_attr(f.id(), a))
         throw InputError(SourcePlace{p.string(), 0, 0, a},
                          "written by an older undertow: run it again ('undertow run') so that "
-                         "versus can check what the runs share");
+                         "versus can check what the runs share and weigh their realisations");
     const std::string cat = io::h5::get_attr_string(f, f.id(), "catalog_digest"),
                       sun = io::h5::get_attr_string(f, f.id(), "sun"),
                       sel = io::h5::get_attr_string(f, f.id(), "selection");
@@ -345,24 +562,61 @@ io::Table compare_runs(const std::vector<std::string>& folders) {
       differ("sun", sun, first_sun);
       differ("selection", sel, first_selection);
     }
-    const double l = io::h5::get_attr_double(f, f.id(), "log_likelihood");
-    const double c = io::h5::get_attr_double(f, f.id(), "chi2");
-    if (i == 0) l0 = l, c0 = c;
+    const auto g = io::h5::open_group(f, "verdict");
+    const auto totals = io::h5::read_doubles(f, g.id(), "realisation_log_likelihood", 1);
+    const std::size_t n = std::size_t(io::h5::get_attr_int(f, f.id(), "judged_sources"));
+    std::size_t rows = 0;
+    const auto flat = io::h5::read_doubles(f, g.id(), "source_log_likelihood", n, &rows);
+    std::vector<std::vector<double>> per(rows);
+    for (std::size_t r = 0; r < rows; ++r)
+      per[r].assign(flat.begin() + long(r * n), flat.begin() + long((r + 1) * n));
+    // the sources are the same in every run: the catalog and the selection were checked above
+    std::vector<std::string> idx(n);
+    for (std::size_t k = 0; k < n; ++k)
+      idx[k] = std::to_string(k);
+    sums.push_back(compare::summarise_realisations(totals, per, idx));
     names.push_back(io::h5::get_attr_string(f, f.id(), "run_name"));
-    t.add_row({double(io::h5::get_attr_int(f, f.id(), "measured_sources")), l, l - l0, c, c - c0,
-               io::h5::get_attr_double(f, f.id(), "mean_V_measured_kms"),
-               io::h5::get_attr_double(f, f.id(), "mean_V_simulated_kms"),
-               io::h5::get_attr_double(f, f.id(), "mean_V_significance")});
+    extra.push_back({double(n), io::h5::get_attr_double(f, f.id(), "mean_V_measured_kms"),
+                     io::h5::get_attr_double(f, f.id(), "mean_V_simulated_kms"),
+                     io::h5::get_attr_double(f, f.id(), "mean_V_significance")});
   }
   // rows by run name; runs that share a name also get their folder
   for (std::size_t i = 0; i < names.size(); ++i)
     t.row_labels.push_back(std::count(names.begin(), names.end(), names[i]) > 1
                                ? names[i] + " (" + folders[i] + ")"
                                : names[i]);
-  t.notes.push_back("Delta ln L > 0: the run explains the catalog better than the first; a "
-                    "difference of a few units is not significant. The runs share the measured "
-                    "catalog (by content), the Sun and the selection, checked.");
-  t.notes.push_back("the Sun: " + first_sun);
+  bool unknown_noise = false;
+  for (std::size_t i = 0; i < sums.size(); ++i) {
+    compare::ModelDifference d;
+    if (i > 0) d = compare::difference(sums[0], sums[i]);
+    if (i > 0 && !d.realisation_noise_known) unknown_noise = true;
+    t.add_row({extra[i][0], double(sums[i].count), sums[i].mean, sums[i].scatter, d.delta, d.sigma,
+               d.sigma_sources, d.sigma_realisations, d.sigma > 0 ? d.delta / d.sigma : 0.0,
+               extra[i][1], extra[i][2], extra[i][3]});
+    if (i == 0) continue;
+    char b[512];
+    if (d.distinguished)
+      std::snprintf(b, sizeof b,
+                    "%s against %s: Delta ln L = %+.1f +- %.1f: the catalog prefers %s "
+                    "(|Delta| > 2 sigma)",
+                    t.row_labels[i].c_str(), t.row_labels[0].c_str(), d.delta, d.sigma,
+                    d.delta > 0 ? t.row_labels[i].c_str() : t.row_labels[0].c_str());
+    else
+      std::snprintf(b, sizeof b,
+                    "%s against %s: Delta ln L = %+.1f +- %.1f: NOT distinguished by this "
+                    "catalog (|Delta| within 2 sigma)",
+                    t.row_labels[i].c_str(), t.row_labels[0].c_str(), d.delta, d.sigma);
+    t.notes.push_back(b);
+  }
+  t.notes.push_back("sigma_Delta adds the catalog's sampling (bootstrap over sources, closed "
+                    "form) and the realisations' scatter (s^2/K of each run) in quadrature");
+  if (unknown_noise)
+    t.notes.push_back("WARNING: runs with one realisation each: the realisation noise is not "
+                      "known and sigma_Delta holds the catalog's sampling only; set [comparison] "
+                      "realisations = 4 or more");
+  t.notes.push_back("the runs share the measured catalog (by content), the Sun and the "
+                    "selection, checked; the Sun: " +
+                    first_sun);
   return t;
 }
 

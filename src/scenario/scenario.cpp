@@ -214,7 +214,9 @@ Scenario parse_scenario(const std::string& text, const std::string& path) {
                   "distance_min_kpc", "distance_max_kpc", "disk_scale_length_kpc",
                   "disk_scale_height_kpc", "min_parallax_snr", "draws",
                   "bootstrap", "seed", "neighbourhood", "neighbours", "min_neighbours",
-                  "radius_kpc", "prediction_sources", "radius_bins_kpc", "azimuth_bins_deg"});
+                  "radius_kpc", "prediction_sources", "radius_bins_kpc", "azimuth_bins_deg",
+                  "realisations", "verdict_sources", "verdict_tails", "floor_kms",
+                  "sun_nuisance", "sun_velocity_err_kms"});
     Comparison c;
     c.catalog = io::path_beside(path, q.string("catalog"));
     try {
@@ -265,6 +267,42 @@ Scenario parse_scenario(const std::string& text, const std::string& path) {
         if (!((*e)[i] > (*e)[i - 1]))
           q.fail(e == &c.radius_bins_kpc ? "radius_bins_kpc" : "azimuth_bins_deg",
                  "bin edges must increase");
+    c.realisations = std::size_t(whole("realisations", 4, 1));
+    c.verdict_sources = std::size_t(whole("verdict_sources", 20000, 100));
+    const std::string tails = q.string_or("verdict_tails", "student");
+    if (tails != "student" && tails != "gaussian")
+      q.fail("verdict_tails", "must be \"student\" or \"gaussian\"");
+    c.student_tails = tails == "student";
+    if (q.has("floor_kms")) {
+      std::vector<double> f;
+      if (q.is_array("floor_kms"))
+        f = q.numbers("floor_kms");
+      else
+        f = {q.number("floor_kms")};
+      if (f.size() == 1) f.push_back(f[0]);
+      if (f.size() != 2 || !(f[0] >= 0) || !(f[1] >= f[0]) || !(f[1] <= 200))
+        q.fail("floor_kms", "must be one value or [minimum, maximum] in km/s, 0 <= min <= max "
+                            "<= 200");
+      c.floor_min_kms = f[0], c.floor_max_kms = f[1];
+    }
+    const bool sun_from_fit = s.observation && s.observation->settings.sun_velocity_cov;
+    if (q.has("sun_velocity_err_kms")) {
+      const auto e = q.numbers("sun_velocity_err_kms");
+      if (e.size() != 3 || !(e[0] > 0 && e[1] > 0 && e[2] > 0))
+        q.fail("sun_velocity_err_kms", "must hold three positive numbers: U, Theta0 + V, W");
+      if (sun_from_fit)
+        q.fail("sun_velocity_err_kms", "the Sun comes from a fit, whose posterior gives these");
+      c.sun_velocity_err_kms = {e[0], e[1], e[2]};
+    }
+    const std::string nuis =
+        q.string_or("sun_nuisance", sun_from_fit || q.has("sun_velocity_err_kms") ? "marginalise"
+                                                                                 : "fixed");
+    if (nuis != "fixed" && nuis != "marginalise")
+      q.fail("sun_nuisance", "must be \"marginalise\" or \"fixed\"");
+    c.marginalise_sun = nuis == "marginalise";
+    if (c.marginalise_sun && !sun_from_fit && !q.has("sun_velocity_err_kms"))
+      q.fail("sun_nuisance", "marginalising the Sun's velocity needs its uncertainty: "
+                             "[observation.sun] from_fit, or sun_velocity_err_kms");
     s.comparison = c;
     s.comparison_key = s.observation_key + canon({"comparison"});
   }

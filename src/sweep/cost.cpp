@@ -24,6 +24,9 @@ CostGuess guess_cost(const scenario::Scenario& s) {
   }
   // Each snapshot holds position and velocity (6 doubles) and a few per-tracer columns.
   c.orbit_file_bytes = tracers * double(s.output.times_myr.size() + 1) * 64;
+  // a whole run integrates each of its realisations
+  const double k = s.comparison ? double(s.comparison->realisations) : 1.0;
+  c.orbit_steps *= k, c.gas_cloud_passes *= k, c.core_seconds *= k, c.orbit_file_bytes *= k;
   return c;
 }
 

@@ -66,6 +66,8 @@ std::string finished_text(const Point& q, const PointResult& r,
   t.insert("scenario_fnv1a", io::hex64(io::fnv1a64(q.scenario)));
   toml::table res;
   res.insert("log_likelihood", r.log_likelihood);
+  res.insert("log_likelihood_scatter", r.log_likelihood_scatter);
+  res.insert("realisations", std::int64_t(r.realisations));
   res.insert("chi2", r.chi2);
   res.insert("measured_sources", std::int64_t(r.measured_sources));
   res.insert("outliers", std::int64_t(r.outliers));
@@ -96,6 +98,8 @@ PointResult read_result(const toml::table& t, const std::string& path) {
   io::TableReader r(t, path, "result");
   PointResult x;
   x.log_likelihood = r.number("log_likelihood");
+  x.log_likelihood_scatter = r.number_or("log_likelihood_scatter", 0.0);
+  x.realisations = std::size_t(r.number_or("realisations", 1));
   x.chi2 = r.number("chi2");
   x.measured_sources = std::size_t(r.number("measured_sources"));
   x.outliers = std::size_t(r.number("outliers"));
@@ -113,6 +117,8 @@ PointResult read_result(const toml::table& t, const std::string& path) {
 PointResult result_of(const run::WholeRunResult& w) {
   PointResult r;
   r.log_likelihood = w.log_likelihood;
+  r.log_likelihood_scatter = w.log_likelihood_scatter;
+  r.realisations = w.realisations;
   r.chi2 = w.chi2;
   r.measured_sources = w.measured_sources;
   r.outliers = w.outliers;
@@ -372,6 +378,9 @@ PointOutcome run_point(const Plan& p, const Point& q, const PointRunOptions& o) 
     if (!p.keep_orbits) { // the largest file by far; keep_orbits = true in the sweep keeps it
       fs::remove(partial / "orbits.h5");
       fs::remove(partial / ".keys" / "orbits");
+      fs::remove_all(partial / "realisations"); // the other realisations' orbits
+      for (const auto& e : fs::directory_iterator(partial / ".keys"))
+        if (e.path().filename().string().rfind("orbits-r", 0) == 0) fs::remove(e.path());
     }
     remove_stale_temporaries(partial);
     if (digest_inputs() != inputs)

@@ -30,10 +30,23 @@ for f in galaxy-profile.md versus.md spiral/summary.txt spiral/comparison-global
          axisymmetric/summary.txt axisymmetric/measured-residuals-summary.md; do
   [ -s "$work/demo/$f" ] || fail "demo output $f missing"
 done
-# The spiral row of the model-vs-model table: Delta ln L (column 5) far above zero.
-dll=$(awk -F'|' '$2 ~ /^ *spiral *$/ {gsub(/ /, "", $5); print $5}' "$work/demo/versus.md")
-[ -n "$dll" ] || fail "no spiral row in versus.md"
-awk -v d="$dll" 'BEGIN { exit !(d > 100) }' || fail "spiral Delta ln L = $dll, expected > 100"
+# The spiral row of the model-vs-model table: Delta ln L (column 7) beyond twice its uncertainty
+# (column 8), and the verdict says so.
+dll=$(awk -F'|' '$2 ~ /^ *spiral *$/ {gsub(/ /, "", $7); print $7}' "$work/demo/versus.md")
+err=$(awk -F'|' '$2 ~ /^ *spiral *$/ {gsub(/ /, "", $8); print $8}' "$work/demo/versus.md")
+[ -n "$dll" ] && [ -n "$err" ] || fail "no spiral row in versus.md"
+awk -v d="$dll" -v e="$err" 'BEGIN { exit !(e > 0 && d > 2 * e) }' ||
+  fail "spiral Delta ln L = $dll +- $err, expected beyond 2 sigma"
+grep -q "the catalog prefers spiral" "$work/demo/versus.md" || fail "versus.md gives no verdict"
+grep -q "^verdict: ln L = .* over 4 realisations" "$work/demo/spiral/summary.txt" ||
+  fail "the spiral run's summary has no verdict over its realisations"
+# the demo never compares a model with the realisation its catalog was drawn from
+truth_seed=$(awk '/^seed/ {print $3; exit}' "$src/demo/truth/orbits.toml")
+for m in spiral axisymmetric; do
+  s=$(awk '/^seed/ {print $3; exit}' "$src/demo/$m.toml")
+  [ "$s" -gt "$((truth_seed + 3))" ] || [ "$((s + 3))" -lt "$truth_seed" ] ||
+    fail "demo/$m.toml's realisations (seeds $s-$((s + 3))) include the truth's seed $truth_seed"
+done
 grep -q "mean V_s: measured -" "$work/demo/spiral/summary.txt" || fail "the survey shows no lag"
 grep -q "^the Sun: R0 = 8.1 kpc.* from fixed values" "$work/demo/spiral/summary.txt" ||
   fail "the whole run's summary does not say where its Galactic parameters came from"
@@ -77,4 +90,10 @@ sed 's/^neighbourhood = "nearest"/neighbourhood = "radius"\nradius_kpc = 0.001/'
 if "$undertow" run lonely.toml -o lonely-out > lonely.log 2> lonely.err; then fail "a source without simulated neighbours was compared"; fi
 grep -q "neighbour" lonely.err || { cat lonely.err; fail "no clear message for a source without neighbours"; }
 ! ls lonely-out/comparison-* > /dev/null 2>&1 || fail "comparison tables were written without neighbours"
-echo "bad whole-run input refused: misspelled key, empty selection, source without neighbours"
+# No realisation at all.
+sed 's/^neighbors = 30/neighbours = 30/; s/^realisations = 4/realisations = 0/' typo.toml > zero.toml
+if "$undertow" run zero.toml -o zero-out > zero.log 2> zero.err; then fail "K = 0 realisations was accepted"; fi
+grep -q "zero.toml:[0-9]*.*comparison.realisations" zero.err || { cat zero.err; fail "no clear message for K = 0"; }
+[ "$(wc -l < zero.err)" -eq 1 ] || { cat zero.err; fail "K = 0: more than one line"; }
+[ ! -e zero-out ] || fail "K = 0 left an output folder"
+echo "bad whole-run input refused: misspelled key, empty selection, source without neighbours, K = 0"

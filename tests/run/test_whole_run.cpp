@@ -55,6 +55,8 @@ draws = 20
 bootstrap = 100
 neighbours = 20
 radius_bins_kpc = [4, 8, 12]
+realisations = 2
+verdict_sources = 2000
 )";
 }
 } // namespace
@@ -94,7 +96,10 @@ TEST_CASE("A whole run writes every stage into one folder, reuses finished stage
                         "comparison.h5", "summary.txt", "scenario.toml"})
     CHECK(fs::exists(d / "spiral" / f));
   const auto r2 = run::run_all(spiral, o);
-  CHECK(r2.reused == std::vector<std::string>{"orbits", "mock"});
+  CHECK(r2.reused == std::vector<std::string>{"orbits", "mock", "orbits-r1"});
+  CHECK(fs::exists(d / "spiral" / "realisations" / "r1" / "orbits.h5"));
+  CHECK(fs::exists(d / "spiral" / "verdict.csv"));
+  CHECK(r1.realisations == 2);
   CHECK(r2.log_likelihood == r1.log_likelihood);
   o.force = true;
   CHECK(run::run_all(spiral, o).reused.empty());
@@ -106,7 +111,8 @@ TEST_CASE("A whole run writes every stage into one folder, reuses finished stage
   REQUIRE(run::run_all(axi, o).complete);
   const auto table = run::compare_runs({(d / "spiral").string(), (d / "axi").string()});
   REQUIRE(table.rows.size() == 2);
-  CHECK(table.rows[0][2] == 0);                                   // Delta ln L of the first
+  CHECK(table.rows[0][4] == 0); // Delta ln L of the first
+  CHECK(table.rows[1][5] > 0);  // its uncertainty
   CHECK(table.row_labels[1].find((d / "axi").string()) != std::string::npos); // same run name
   // a run against another catalog is refused: Delta ln L would compare different data
   const auto other = scenario::parse_scenario(

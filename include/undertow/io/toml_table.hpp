@@ -28,6 +28,7 @@ public:
   std::string string_or(std::string_view key, std::string fallback) const;
   std::vector<std::string> strings(std::string_view key) const;
   std::vector<double> numbers(std::string_view key) const; // array of finite numbers
+  bool is_array(std::string_view key) const;               // present and an array
   bool boolean_or(std::string_view key, bool fallback) const;
   const toml::table* table(std::string_view key) const;           // optional sub-table
   const toml::array* array_of_tables(std::string_view key) const; // optional [[key]]

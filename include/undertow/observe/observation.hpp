@@ -4,6 +4,7 @@
 // optionally young-source weights), an error model (fixed, fractional, or copied per source
 // from a measured catalog by nearest position on the sky), and a mock catalog written in
 // exactly the measured-catalog format (docs/observation.md).
+#include <array>
 #include <cstdint>
 #include <optional>
 #include <string>
@@ -54,6 +55,8 @@ struct ErrorModel {
 struct ObservationSettings {
   sky::SolarFrame sun;
   std::string sun_source = "fixed values"; // where the Sun's parameters came from, for outputs
+  // from a fit: the posterior covariance of the Sun's velocity (U, Θ0 + V, W), (km/s)², row-major
+  std::optional<std::array<double, 9>> sun_velocity_cov;
   sky::LsrForm lsr = sky::LsrForm::apex;
   Selection selection;
   std::optional<YoungWeights> young;

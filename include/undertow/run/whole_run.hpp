@@ -27,7 +27,10 @@ struct WholeRunOptions {
 struct WholeRunResult {
   bool complete = false;
   std::vector<std::string> reused; // stage names
-  double log_likelihood = 0, chi2 = 0;
+  double log_likelihood = 0;         // the verdict's, mean over realisations
+  double log_likelihood_scatter = 0; // its scatter over realisations
+  std::size_t realisations = 1;
+  double chi2 = 0; // the local table's sum of Q
   std::size_t measured_sources = 0;
   std::vector<std::array<double, 3>> pulls; // (U, V, W) per measured source, local comparison
   std::size_t outliers = 0;                 // measured sources beyond 3 sigma

@@ -2,6 +2,7 @@
 // A scenario: one TOML file holding a whole run (docs/scenarios.md). This part: the
 // run, the galaxy, the tracers, the integration and the snapshot output. Unknown keys are
 // errors, with file, line and key path.
+#include <array>
 #include <cstdint>
 #include <optional>
 #include <string>
@@ -42,6 +43,13 @@ struct Comparison {
   std::size_t neighbours = 30, min_neighbours = 5, prediction_sources = 5000;
   double radius_kpc = 1.0;
   std::vector<double> radius_bins_kpc, azimuth_bins_deg;
+  // the verdict (compare/verdict.hpp; docs/scenarios.md)
+  std::size_t realisations = 4;        // K: the model run with tracer seeds seed, seed + 1, ...
+  std::size_t verdict_sources = 20000; // simulated young sources the verdict draws on
+  bool student_tails = true;           // false: Gaussian, the simulation's sampling noise ignored
+  double floor_min_kms = 0, floor_max_kms = 15; // σ_int's uniform prior; equal: fixed
+  bool marginalise_sun = false;
+  std::array<double, 3> sun_velocity_err_kms{}; // a Gaussian prior without a fit, (U, Θ0+V, W)
 };
 
 struct Scenario {

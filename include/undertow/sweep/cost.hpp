@@ -6,6 +6,7 @@
 
 namespace undertow::sweep {
 
+// All realisations of the run ([comparison] realisations) together.
 struct CostGuess {
   double orbit_steps = 0;      // tracers x steps
   double gas_cloud_passes = 0; // clouds x collision intervals

@@ -19,6 +19,8 @@ namespace undertow::sweep {
 // What a finished point measured (from its whole run), as gathered.
 struct PointResult {
   double log_likelihood = 0, chi2 = 0;
+  double log_likelihood_scatter = 0; // over the point's realisations
+  std::size_t realisations = 1;
   std::size_t measured_sources = 0, outliers = 0;
   // (U, V, W): measured mean and error, simulated mean and error, difference / sigma
   double mean_measured[3] = {}, mean_measured_err[3] = {}, mean_simulated[3] = {},
