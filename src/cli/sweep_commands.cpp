@@ -229,6 +229,8 @@ int do_gather(const SweepArgs& a) {
   o.order = a.order;
   o.partial = a.partial;
   o.prefix = a.output;
+  o.posterior_required = a.posterior;
+  o.edge_mass = a.edge_mass;
   const auto r = gather(plan, o);
   for (const auto& m : r.missing)
     std::cout << "missing: " << m << "\n";
@@ -247,6 +249,7 @@ int do_gather(const SweepArgs& a) {
   for (const auto& f : r.files)
     std::cout << " " << f;
   std::cout << "\n";
+  if (!r.posterior_refused.empty()) std::cout << "no posterior: " << r.posterior_refused << "\n";
   return 0;
 }
 
@@ -329,6 +332,14 @@ void add_sweep_commands(CLI::App& app, SweepArgs& a) {
   a.gather->add_option("--order", a.order, "ascending or descending (default: best first)")
       ->check(CLI::IsMember({"ascending", "descending"}));
   a.gather->add_flag("--partial", a.partial, "Gather even when points are missing or failed");
+  a.gather->add_flag("--posterior", a.posterior,
+                     "Require the posterior over the swept parameters: stop with nothing "
+                     "written when it cannot be made (one point, mass at a grid edge)");
+  a.gather
+      ->add_option("--edge-mass", a.edge_mass,
+                   "Refuse a posterior whose outermost grid cells hold more than this share "
+                   "of its mass (default 0.05)")
+      ->check(CLI::Range(0.0, 1.0));
   a.gather->add_option("-o,--output", a.output,
                        "Output prefix (default: "
                        "<plan>/<name>-results)");

@@ -23,6 +23,8 @@ struct SweepArgs {
   // gather
   std::string sort, order;
   bool partial = false, all = false;
+  bool posterior = false;
+  double edge_mass = 0.05;
 };
 
 void add_sweep_commands(CLI::App& app, SweepArgs& a);

@@ -3,12 +3,16 @@
 #include <algorithm>
 #include <cmath>
 #include <filesystem>
+#include <map>
 #include <numeric>
+#include <optional>
 
 #include "undertow/io/hdf5.hpp"
 #include "undertow/io/table.hpp"
+#include "undertow/io/table_hdf5.hpp"
 #include "undertow/io/toml_writer.hpp"
 #include "undertow/sweep/key_path.hpp"
+#include "undertow/sweep/posterior.hpp"
 
 namespace undertow::sweep {
 namespace {
@@ -32,6 +36,9 @@ const Stat stats[] = {
     {"delta_log_likelihood", "\\Delta\\ln L", "Δ ln L", "", 7, true,
      [](R r, double ref) { return r.log_likelihood - ref; }},
     {"log_likelihood", "\\ln L", "ln L", "", 8, true, [](R r, double) { return r.log_likelihood; }},
+    {"log_likelihood_scatter", "s_{\\ln L}", "scatter", "", 3, false,
+     [](R r, double) { return r.log_likelihood_scatter; }},
+    {"realisations", "K", "K", "", 3, false, [](R r, double) { return double(r.realisations); }},
     {"chi2", "\\chi^2", "χ²", "", 7, false, [](R r, double) { return r.chi2; }},
     {"measured_sources", "N", "N", "", 6, false,
      [](R r, double) { return double(r.measured_sources); }},
@@ -143,6 +150,64 @@ GatherReport gather(const Plan& p, const GatherOptions& o) {
     }
   }
   const bool whole = rep.missing.empty() && rep.failed.empty();
+  if (!whole && !o.partial && !o.posterior_required) return rep;
+
+  // The posterior, made before anything is written so that a required one that fails leaves
+  // nothing behind.
+  std::optional<SweepPosterior> post;
+  std::vector<std::string> post_keys, post_units;
+  try {
+    if (!whole)
+      throw InputError(SourcePlace{"", 0, 0, "posterior"},
+                       "the sweep is incomplete; a posterior needs every point");
+    for (std::size_t j = 0; j < p.parameters.size(); ++j) {
+      if (!numeric_parameter(p, j))
+        throw InputError(SourcePlace{"", 0, 0, "posterior"},
+                         "'" + p.parameters[j] + "' has values that are not numbers");
+      post_keys.push_back(p.parameters[j]);
+      post_units.push_back(unit_of(parse_key_path(p.parameters[j]).back().key));
+    }
+    // replicates of one parameter set are one point: their mean ln L; its error from each
+    // run's realisations (scatter^2 / K) or, with one realisation each, from the replicates
+    std::map<std::vector<double>, std::vector<const PointResult*>> groups;
+    for (std::size_t i = 0; i < p.points.size(); ++i) {
+      if (p.points[i].reference) continue;
+      std::vector<double> v;
+      for (std::size_t j = 0; j < p.parameters.size(); ++j)
+        v.push_back(parameter_value(p.points[i], j));
+      groups[v].push_back(&status[i].result);
+    }
+    std::vector<PosteriorPoint> pts;
+    for (const auto& [v, rs] : groups) {
+      PosteriorPoint q;
+      q.values = v;
+      double var_real = 0, m = 0;
+      for (const auto* r : rs) {
+        m += r->log_likelihood / double(rs.size());
+        if (r->realisations > 1)
+          var_real += r->log_likelihood_scatter * r->log_likelihood_scatter /
+                      double(r->realisations) / double(rs.size() * rs.size());
+      }
+      double var_rep = 0;
+      if (rs.size() > 1) {
+        for (const auto* r : rs)
+          var_rep += (r->log_likelihood - m) * (r->log_likelihood - m);
+        var_rep /= double(rs.size() - 1) * double(rs.size());
+      }
+      q.log_likelihood = m;
+      q.error = std::sqrt(std::max(var_real, var_rep));
+      pts.push_back(q);
+    }
+    PosteriorOptions po;
+    po.grid = p.design == "grid";
+    po.edge_mass = o.edge_mass;
+    post = sweep_posterior(post_keys, post_units, pts, po);
+  } catch (const InputError& e) {
+    std::string why = e.what();
+    if (why.rfind("posterior: ", 0) == 0) why = why.substr(11);
+    if (o.posterior_required) throw InputError(SourcePlace{p.file, 0, 0, "posterior"}, why);
+    rep.posterior_refused = why;
+  }
   if (!whole && !o.partial) return rep;
   double ref_log_l = NAN;
   std::string sort_by = sort;
@@ -210,8 +275,10 @@ GatherReport gather(const Plan& p, const GatherOptions& o) {
                       "ln L instead");
   if (has_ref)
     t.notes.push_back("Δ ln L > 0: the point explains the measured catalog better than the "
-                      "reference model (point 0); a difference of a few units is not significant, "
-                      "and every point shares the base scenario's other settings.");
+                      "reference model (point 0); whether a difference is significant depends on "
+                      "the points' scatter over realisations (column scatter; undertow versus "
+                      "on two point folders gives Delta ln L with its uncertainty), and every "
+                      "point shares the base scenario's other settings.");
   if (!whole) {
     t.notes.push_back("PARTIAL SWEEP: " + std::to_string(rep.missing.size()) + " missing and " +
                       std::to_string(rep.failed.size()) + " failed points are not in this table");
@@ -222,7 +289,57 @@ GatherReport gather(const Plan& p, const GatherOptions& o) {
   }
   const std::string prefix =
       o.prefix.empty() ? (fs::path(p.folder) / (p.name + "-results")).string() : o.prefix;
+  io::Table post_table, marg_table;
+  if (post) {
+    post_table.title = "Posterior over the swept parameters (uniform prior over the swept box)";
+    post_table.label_header = "parameter";
+    post_table.columns = {{"best", "\\hat\\theta", "best", "", 6},
+                          {"median", "{\\rm median}", "median", "", 6},
+                          {"lo68", "68\\%_{\\rm lo}", "68%lo", "", 6},
+                          {"hi68", "68\\%_{\\rm hi}", "68%hi", "", 6},
+                          {"lo95", "95\\%_{\\rm lo}", "95%lo", "", 6},
+                          {"hi95", "95\\%_{\\rm hi}", "95%hi", "", 6},
+                          {"mass_low_edge", "m_{\\rm low}", "m_low", "", 3},
+                          {"mass_high_edge", "m_{\\rm high}", "m_high", "", 3}};
+    marg_table.title = "Marginal posterior and profile ln L per swept value";
+    marg_table.label_header = "parameter";
+    marg_table.columns = {
+        {"value", "\\theta", "value", "", 6},
+        {"marginal", "p", "p", "", 4},
+        {"profile_delta_log_likelihood", "\\Delta\\ln L_{\\rm prof}", "Δ ln L_prof", "", 5}};
+    for (const auto& pp : post->parameters) {
+      post_table.row_labels.push_back(pp.key + (pp.unit.empty() ? "" : " [" + pp.unit + "]"));
+      post_table.add_row({pp.best, pp.median, pp.lo68, pp.hi68, pp.lo95, pp.hi95, pp.mass_low_edge,
+                          pp.mass_high_edge});
+      if (p.design == "grid")
+        for (std::size_t k = 0; k < pp.values.size(); ++k) {
+          marg_table.row_labels.push_back(pp.key);
+          marg_table.add_row({pp.values[k], pp.marginal[k], pp.profile[k]});
+        }
+    }
+    std::string best = "best point:";
+    for (const auto& pp : post->parameters)
+      best += " " + pp.key + " = " + detail::num(pp.best) + (pp.unit.empty() ? "" : " " + pp.unit) +
+              ";";
+    char b[96];
+    std::snprintf(b, sizeof b, " best in %.0f %% of the redraws of ln L within its error",
+                  100 * post->best_probability);
+    post_table.notes.push_back(best + b);
+    for (const auto& n : post->notes)
+      post_table.notes.push_back(n);
+    marg_table.notes = post->notes;
+    t.notes.push_back("posterior over the swept parameters: " + prefix + "-posterior.*");
+  } else if (!rep.posterior_refused.empty()) {
+    t.notes.push_back("no posterior written: " + rep.posterior_refused);
+  }
   rep.files = io::write_table_files(prefix, t);
+  if (post) {
+    for (const auto& f : io::write_table_files(prefix + "-posterior", post_table))
+      rep.files.push_back(f);
+    if (!marg_table.rows.empty())
+      for (const auto& f : io::write_table_files(prefix + "-marginals", marg_table))
+        rep.files.push_back(f);
+  }
 
   // HDF5: every point in plan order, with its status; NaN where a point has no result.
   const std::string h5 = prefix + ".h5";
@@ -269,6 +386,10 @@ GatherReport gather(const Plan& p, const GatherOptions& o) {
       for (const auto& q : p.points)
         r.push_back(q.replicate);
       h::write_u64(f, pg.id(), "replicate", r, "replicate (seeds derived from it)");
+    }
+    if (post) {
+      io::write_table_group(f, "posterior", post_table);
+      if (!marg_table.rows.empty()) io::write_table_group(f, "marginals", marg_table);
     }
     const auto sg = h::create_group(f, "statistics");
     for (const auto* s : columns) {

@@ -146,6 +146,42 @@ grep -q "^missing: point" gather.out || fail "gather did not list the missing po
 grep -q "PARTIAL" one/ci-results.md || fail "partial table not marked"
 mv "$W/set-aside" "$victim"
 
+# 5b. The posterior. This grid is too coarse (force ratio: two values, both edge cells), so the
+# posterior is refused: gather still writes its table and says why; --posterior stops with one line,
+# exit 2 and nothing written.
+"$U" sweep gather one >post.out || fail "gather failed on a sweep without a posterior"
+grep -q "^no posterior: .*edge of '.*'.*extend the grid" post.out ||
+  { cat post.out; fail "gather did not say why there is no posterior"; }
+grep -q "no posterior written" one/ci-results.md || fail "the results table does not say why there is no posterior"
+set +e
+"$U" sweep gather one --posterior -o "$W/required/x" >req.out 2>req.err
+code=$?
+set -e
+[ "$code" = 2 ] || fail "gather --posterior on an edge-heavy grid exited $code, expected 2"
+[ "$(wc -l <req.err)" = 1 ] || { cat req.err; fail "gather --posterior: more than one line"; }
+[ ! -e "$W/required" ] || fail "gather --posterior wrote something"
+# A one-point grid: one value of one parameter.
+cat >"$W/one-point.toml" <<ONE
+[sweep]
+name = "onept"
+base = "$SRC/tests/sweep/small-spiral.toml"
+design = "grid"
+[[parameter]]
+key = "galaxy.pattern[arms].pattern_speed_kms_kpc"
+values = [21]
+ONE
+"$U" sweep plan "$W/one-point.toml" -o onept >/dev/null
+"$U" sweep run onept >/dev/null 2>&1
+set +e
+"$U" sweep gather onept --posterior -o "$W/onept-out/x" >onept.out 2>onept.err
+code=$?
+set -e
+[ "$code" = 2 ] || fail "a one-point posterior exited $code, expected 2"
+grep -q "takes one value only\|at least two points" onept.err || { cat onept.err; fail "no clear message for a one-point posterior"; }
+[ "$(wc -l <onept.err)" = 1 ] || { cat onept.err; fail "one-point posterior: more than one line"; }
+[ ! -e "$W/onept-out" ] || fail "a one-point posterior wrote something"
+echo "posterior: refused at a grid edge and on a one-point grid, with nothing written"
+
 # 6. A corrupted point folder is detected and redone, to the same bytes.
 good=$(cat "$victim/comparison-global.csv")
 printf 'garbage' >"$victim/comparison-global.csv"

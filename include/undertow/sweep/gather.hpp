@@ -15,12 +15,19 @@ struct GatherOptions {
   std::string order;    // "ascending", "descending", or empty for the statistic's own default
   bool partial = false; // write the tables even when points are missing or failed
   std::string prefix;   // output files <prefix>.csv/.md/.tex/.h5; empty: <plan>/<name>-results
+  // The posterior over the swept parameters (sweep/posterior.hpp), written as
+  // <prefix>-posterior.* and <prefix>-marginals.* whenever it can be; required: a posterior that
+  // cannot be made (one point, a grid edge holding mass, a partial sweep) stops the gather with
+  // nothing written.
+  bool posterior_required = false;
+  double edge_mass = 0.05;
 };
 
 struct GatherReport {
   std::size_t complete = 0;
   std::vector<std::string> missing, failed; // "point N (id): detail"
   std::vector<std::string> files;           // written; empty when nothing was written
+  std::string posterior_refused;            // why no posterior was written, if none was
 };
 
 GatherReport gather(const Plan& p, const GatherOptions& o);
