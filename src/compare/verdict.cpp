@@ -80,7 +80,7 @@ double source_ln_l(const Term* terms, std::size_t n, const Vector3d& v) {
   return m + std::log(s);
 }
 
-Term make_term(const Source& src, const Node& nd, double s2, bool student) {
+Term make_term(const Source& src, const Node& nd, double s2, const VerdictSettings& st) {
   Matrix3d cov = nd.plp + s2 * nd.ppt + src.c;
   cov -= src.cw * src.cw.transpose() / src.cww; // conditional on the parallax error
   const Eigen::LLT<Matrix3d> llt(cov);
@@ -100,7 +100,9 @@ Term make_term(const Source& src, const Node& nd, double s2, bool student) {
   }
   const double lndet = 2 * std::log(L(0, 0) * L(1, 1) * L(2, 2));
   const double added = 3 * s2 + (src.c(0, 0) + src.c(1, 1)) / (nd.k * nd.k) + src.c(2, 2);
-  t.nu = student ? effective_dof(nd.nu, nd.tr, added) : INFINITY;
+  t.nu = st.tails == VerdictSettings::Tails::gaussian ? INFINITY
+                                                      : effective_dof(nd.nu, nd.tr, added);
+  if (st.tails == VerdictSettings::Tails::robust) t.nu = std::min(t.nu, st.robust_dof);
   t.lnc = nd.lnw + ln_t3(0, lndet, t.nu); // ln t3 at Q = 0; the Q-dependent part is added later
   return t;
 }
@@ -109,6 +111,8 @@ Term make_term(const Source& src, const Node& nd, double s2, bool student) {
 
 VerdictResult judge(const residuals::Catalog& used, const SimulatedYoung& sim,
                     const VerdictSettings& st) {
+  if (st.tails == VerdictSettings::Tails::robust && !(st.robust_dof >= 1))
+    throw InputError(SourcePlace{{}, 0, 0, "robust_dof"}, "must be at least 1");
   if (st.neighbours < 5)
     throw InputError(SourcePlace{{}, 0, 0, "neighbours"}, "the verdict needs at least 5");
   if (sim.x.size() < st.neighbours)
@@ -198,7 +202,6 @@ VerdictResult judge(const residuals::Catalog& used, const SimulatedYoung& sim,
     floors.push_back(st.floor_min_kms), lnfw.push_back(0);
   }
   const std::size_t G = floors.size();
-  const bool student = st.tails == VerdictSettings::Tails::student;
   // every (source, σ_int node, line-of-sight node) reduced once to its Term
   std::vector<std::vector<Term>> terms(ms.n * G);
 #pragma omp parallel for schedule(dynamic)
@@ -206,7 +209,7 @@ VerdictResult judge(const residuals::Catalog& used, const SimulatedYoung& sim,
     for (std::size_t g = 0; g < G; ++g) {
       auto& tv = terms[std::size_t(ii) * G + g];
       for (const auto& nd : src[std::size_t(ii)].nodes)
-        tv.push_back(make_term(src[std::size_t(ii)], nd, floors[g] * floors[g], student));
+        tv.push_back(make_term(src[std::size_t(ii)], nd, floors[g] * floors[g], st));
     }
   // per σ_int node: Σ_i ln L_i (sources in parallel, summed in a fixed order)
   const auto totals = [&](const Vector3d& vs, std::vector<double>* per_source, std::size_t g_only) {

@@ -158,8 +158,10 @@ compare::VerdictSettings verdict_settings(const scenario::Scenario& s) {
   v.prior = c.prior;
   v.prior.parallax_snr_min = 0; // the verdict is conditional on the parallax
   v.lsr = ob.lsr;
-  v.tails = c.student_tails ? compare::VerdictSettings::Tails::student
-                            : compare::VerdictSettings::Tails::gaussian;
+  v.tails = c.tails == "gaussian" ? compare::VerdictSettings::Tails::gaussian
+            : c.tails == "robust"   ? compare::VerdictSettings::Tails::robust
+                                    : compare::VerdictSettings::Tails::student;
+  v.robust_dof = c.robust_dof;
   v.floor_min_kms = c.floor_min_kms, v.floor_max_kms = c.floor_max_kms;
   v.r0_kpc = ob.sun.r0_kpc, v.z_sun_kpc = ob.sun.z_sun_kpc;
   v.sun_velocity_kms = {ob.sun.u_sun_kms, ob.sun.theta0_kms + ob.sun.v_sun_kms, ob.sun.w_sun_kms};

@@ -215,7 +215,7 @@ Scenario parse_scenario(const std::string& text, const std::string& path) {
                   "disk_scale_height_kpc", "min_parallax_snr", "draws",
                   "bootstrap", "seed", "neighbourhood", "neighbours", "min_neighbours",
                   "radius_kpc", "prediction_sources", "radius_bins_kpc", "azimuth_bins_deg",
-                  "realisations", "verdict_sources", "verdict_tails", "floor_kms",
+                  "realisations", "verdict_sources", "verdict_tails", "robust_dof", "floor_kms",
                   "sun_nuisance", "sun_velocity_err_kms"});
     Comparison c;
     c.catalog = io::path_beside(path, q.string("catalog"));
@@ -269,10 +269,11 @@ Scenario parse_scenario(const std::string& text, const std::string& path) {
                  "bin edges must increase");
     c.realisations = std::size_t(whole("realisations", 4, 1));
     c.verdict_sources = std::size_t(whole("verdict_sources", 20000, 100));
-    const std::string tails = q.string_or("verdict_tails", "student");
-    if (tails != "student" && tails != "gaussian")
-      q.fail("verdict_tails", "must be \"student\" or \"gaussian\"");
-    c.student_tails = tails == "student";
+    c.tails = q.string_or("verdict_tails", "student");
+    if (c.tails != "student" && c.tails != "gaussian" && c.tails != "robust")
+      q.fail("verdict_tails", "must be \"student\", \"gaussian\" or \"robust\"");
+    c.robust_dof = q.number_or("robust_dof", 4);
+    if (!(c.robust_dof >= 1 && c.robust_dof <= 1000)) q.fail("robust_dof", "must lie in [1, 1000]");
     if (q.has("floor_kms")) {
       std::vector<double> f;
       if (q.is_array("floor_kms"))

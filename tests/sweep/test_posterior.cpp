@@ -65,7 +65,7 @@ TEST_CASE("Sweep posterior: over 60 injections on a grid the 68 % and 95 % inter
   }
 }
 
-TEST_CASE("Sweep posterior: mass at a grid edge is refused with the direction to extend; a "
+TEST_CASE("Sweep posterior: mass at a grid edge is refused with the direction to extend, and a "
           "one-value parameter and a single point are refused",
           "[sweep][posterior]") {
   std::mt19937_64 rng(7);

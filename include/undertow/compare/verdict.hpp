@@ -39,7 +39,11 @@ struct VerdictSettings {
   int nodes = 24;              // along each line of sight
   fit::DistancePrior prior;
   sky::LsrForm lsr = sky::LsrForm::apex;
-  enum class Tails { student, gaussian } tails = Tails::student; // gaussian: sampling noise ignored
+  // student: the predictive t of the neighbours (sampling noise); gaussian: that noise ignored;
+  // robust: the t's degrees of freedom capped at robust_dof, heavy tails whatever k, so a few
+  // sources the model cannot hold (a misassociated maser, a wrong v_LSR) do not decide the verdict
+  enum class Tails { student, gaussian, robust } tails = Tails::student;
+  double robust_dof = 4;
   double floor_min_kms = 0, floor_max_kms = 15;
   int floor_nodes = 12;
   double r0_kpc = 8.1, z_sun_kpc = 0;

@@ -46,7 +46,8 @@ struct Comparison {
   // the verdict (compare/verdict.hpp; docs/scenarios.md)
   std::size_t realisations = 4;        // K: the model run with tracer seeds seed, seed + 1, ...
   std::size_t verdict_sources = 20000; // simulated young sources the verdict draws on
-  bool student_tails = true;           // false: Gaussian, the simulation's sampling noise ignored
+  std::string tails = "student";       // "student", "gaussian" or "robust" (compare/verdict.hpp)
+  double robust_dof = 4;
   double floor_min_kms = 0, floor_max_kms = 15; // σ_int's uniform prior; equal: fixed
   bool marginalise_sun = false;
   std::array<double, 3> sun_velocity_err_kms{}; // a Gaussian prior without a fit, (U, Θ0+V, W)
