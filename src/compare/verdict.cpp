@@ -100,8 +100,8 @@ Term make_term(const Source& src, const Node& nd, double s2, const VerdictSettin
   }
   const double lndet = 2 * std::log(L(0, 0) * L(1, 1) * L(2, 2));
   const double added = 3 * s2 + (src.c(0, 0) + src.c(1, 1)) / (nd.k * nd.k) + src.c(2, 2);
-  t.nu = st.tails == VerdictSettings::Tails::gaussian ? INFINITY
-                                                      : effective_dof(nd.nu, nd.tr, added);
+  t.nu =
+      st.tails == VerdictSettings::Tails::gaussian ? INFINITY : effective_dof(nd.nu, nd.tr, added);
   if (st.tails == VerdictSettings::Tails::robust) t.nu = std::min(t.nu, st.robust_dof);
   t.lnc = nd.lnw + ln_t3(0, lndet, t.nu); // ln t3 at Q = 0; the Q-dependent part is added later
   return t;
@@ -109,8 +109,11 @@ Term make_term(const Source& src, const Node& nd, double s2, const VerdictSettin
 
 } // namespace
 
-VerdictResult judge(const residuals::Catalog& used, const SimulatedYoung& sim,
-                    const VerdictSettings& st) {
+namespace {
+
+// The verdict at the settings' R0.
+VerdictResult judge_at_r0(const residuals::Catalog& used, const SimulatedYoung& sim,
+                          const VerdictSettings& st) {
   if (st.tails == VerdictSettings::Tails::robust && !(st.robust_dof >= 1))
     throw InputError(SourcePlace{{}, 0, 0, "robust_dof"}, "must be at least 1");
   if (st.neighbours < 5)
@@ -277,7 +280,8 @@ VerdictResult judge(const residuals::Catalog& used, const SimulatedYoung& sim,
     const Vector3d dv = vbest - st.sun_velocity_kms;
     const double pull = std::sqrt(dv.dot(pl.solve(dv)));
     if (pull > 3)
-      out.notes.push_back("the data pull the Sun's velocity " + detail::num(pull) +
+      out.notes.push_back("the data pull the Sun's velocity " +
+                          detail::num(std::round(10 * pull) / 10) +
                           " sigma from its prior mean: the model lacks a motion that the Sun's "
                           "velocity absorbs (see u_sun_kms, sun_vphi_kms, w_sun_kms)");
     // Laplace: ln Z = F(v̂) + (3/2) ln 2π - ½ ln det(-H), H by central differences
@@ -334,6 +338,7 @@ VerdictResult judge(const residuals::Catalog& used, const SimulatedYoung& sim,
   out.log_likelihood_at_best = t[gbest];
   out.floor_kms = floors[gbest];
   out.sun_velocity_kms = {vbest[0], vbest[1], vbest[2]};
+  out.r0_kpc = st.r0_kpc;
   for (const auto& s : used.sources)
     out.names.push_back(s.name);
   out.far_share = ms.n ? far_w / double(ms.n) : 0;
@@ -350,6 +355,45 @@ VerdictResult judge(const residuals::Catalog& used, const SimulatedYoung& sim,
     out.notes.push_back(detail::num(100 * out.far_share) +
                         " % of the weight rests on predictions whose neighbours lie farther than " +
                         detail::num(st.far_kpc) + " kpc: simulate more young sources there");
+  return out;
+}
+
+} // namespace
+
+VerdictResult judge(const residuals::Catalog& used, const SimulatedYoung& sim,
+                    const VerdictSettings& st) {
+  if (!st.marginalise_r0) return judge_at_r0(used, sim, st);
+  if (!(st.r0_err_kpc > 0))
+    throw InputError(SourcePlace{{}, 0, 0, "r0_err_kpc"}, "must be positive to marginalise R0");
+  const auto& gh = fit::gauss_hermite(std::max(1, st.r0_nodes));
+  std::vector<VerdictResult> at;
+  std::vector<double> lnz;
+  const double var_r = st.r0_err_kpc * st.r0_err_kpc;
+  for (std::size_t q = 0; q < gh.nodes.size(); ++q) {
+    VerdictSettings s = st;
+    s.marginalise_r0 = false;
+    s.r0_kpc = st.r0_kpc + std::sqrt(2.0) * st.r0_err_kpc * gh.nodes[q];
+    // the Sun's velocity given R0: the conditional of the joint Gaussian
+    s.sun_velocity_kms =
+        st.sun_velocity_kms + st.sun_velocity_r0_cov * (s.r0_kpc - st.r0_kpc) / var_r;
+    s.sun_velocity_cov =
+        st.sun_velocity_cov - st.sun_velocity_r0_cov * st.sun_velocity_r0_cov.transpose() / var_r;
+    for (int a = 0; a < 3; ++a)
+      s.sun_velocity_cov(a, a) = std::max(s.sun_velocity_cov(a, a), 1e-4);
+    at.push_back(judge_at_r0(used, sim, s));
+    lnz.push_back(std::log(gh.weights[q] / std::sqrt(M_PI)) + at.back().log_likelihood);
+  }
+  const std::size_t best = std::size_t(std::max_element(lnz.begin(), lnz.end()) - lnz.begin());
+  VerdictResult out = at[best];
+  out.log_likelihood = log_sum_exp(lnz);
+  out.notes.push_back(
+      "R0 marginalised over " + detail::num(st.r0_kpc) + " +- " + detail::num(st.r0_err_kpc) +
+      " kpc by " + std::to_string(gh.nodes.size()) +
+      "-point Gauss-Hermite quadrature; the values at the maximum are those at R0 = " +
+      detail::num(out.r0_kpc) + " kpc");
+  if (best == 0 || best + 1 == gh.nodes.size())
+    out.notes.push_back("the catalog prefers an R0 at the edge of the quadrature (" +
+                        detail::num(out.r0_kpc) + " kpc): R0's prior and the model disagree");
   return out;
 }
 

@@ -1,5 +1,6 @@
 #include "undertow/fit/quadrature.hpp"
 
+#include <Eigen/Dense>
 #include <cmath>
 #include <map>
 #include <mutex>
@@ -50,6 +51,28 @@ const GaussLegendre& gauss_legendre(int n) {
   auto it = cache.find(n);
   if (it == cache.end()) it = cache.emplace(n, compute(n)).first;
   return it->second;
+}
+
+const GaussHermite& gauss_hermite(int n) {
+  if (n < 1 || n > 64) throw std::invalid_argument("gauss_hermite: n must lie in [1, 64]");
+  static std::mutex m;
+  static std::map<int, GaussHermite> cache;
+  std::lock_guard<std::mutex> lock(m);
+  auto it = cache.find(n);
+  if (it != cache.end()) return it->second;
+  // the recurrence of the orthonormal Hermite polynomials: x p_k = b_k p_{k-1} + b_{k+1} p_{k+1},
+  // b_k = sqrt(k / 2)
+  Eigen::MatrixXd J = Eigen::MatrixXd::Zero(n, n);
+  for (int k = 1; k < n; ++k)
+    J(k, k - 1) = J(k - 1, k) = std::sqrt(k / 2.0);
+  const Eigen::SelfAdjointEigenSolver<Eigen::MatrixXd> es(J);
+  GaussHermite g;
+  for (int k = 0; k < n; ++k) {
+    g.nodes.push_back(es.eigenvalues()[k]);
+    const double v = es.eigenvectors()(0, k);
+    g.weights.push_back(std::sqrt(units::pi) * v * v);
+  }
+  return cache.emplace(n, std::move(g)).first->second;
 }
 
 } // namespace undertow::fit

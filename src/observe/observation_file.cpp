@@ -70,26 +70,33 @@ ObservationSpec observation_from_table(const toml::table& t, const std::string& 
                      " (posterior median; Theta0 the model's v_c(R0), V_sun set so that "
                      "Theta0 + V_sun = " +
                      detail::num(g.model.theta0(p) + at(fit::Param::v_sun)) + " km/s as fitted)";
-      // the posterior covariance of the Sun's velocity, for the verdict's nuisance
+      // the posterior covariance of (R0, U, Θ0 + V, W), for the verdict's nuisances
       if (g.samples.size() > 10) {
-        std::vector<std::array<double, 3>> v;
+        std::vector<std::array<double, 4>> v;
         for (const auto& x : g.samples)
-          v.push_back({x[std::size_t(fit::Param::u_sun)],
+          v.push_back({x[std::size_t(fit::Param::r0)], x[std::size_t(fit::Param::u_sun)],
                        g.model.theta0(x) + x[std::size_t(fit::Param::v_sun)],
                        x[std::size_t(fit::Param::w_sun)]});
-        std::array<double, 3> mean{};
+        std::array<double, 4> mean{};
         for (const auto& x : v)
-          for (std::size_t a = 0; a < 3; ++a)
+          for (std::size_t a = 0; a < 4; ++a)
             mean[a] += x[a] / double(v.size());
-        std::array<double, 9> cov{};
+        std::array<double, 16> cov{};
         for (const auto& x : v)
-          for (std::size_t a = 0; a < 3; ++a)
-            for (std::size_t b = 0; b < 3; ++b)
-              cov[3 * a + b] += (x[a] - mean[a]) * (x[b] - mean[b]) / double(v.size() - 1);
+          for (std::size_t a = 0; a < 4; ++a)
+            for (std::size_t b = 0; b < 4; ++b)
+              cov[4 * a + b] += (x[a] - mean[a]) * (x[b] - mean[b]) / double(v.size() - 1);
         // a component the fit held fixed has no spread: give it 0.01 km/s, not a singular prior
+        std::array<double, 9> vel{};
         for (std::size_t a = 0; a < 3; ++a)
-          cov[4 * a] = std::max(cov[4 * a], 1e-4);
-        s.sun_velocity_cov = cov;
+          for (std::size_t b = 0; b < 3; ++b)
+            vel[3 * a + b] = cov[4 * (a + 1) + b + 1];
+        for (std::size_t a = 0; a < 3; ++a)
+          vel[4 * a] = std::max(vel[4 * a], 1e-4);
+        s.sun_velocity_cov = vel;
+        s.r0_err_kpc = std::sqrt(cov[0]);
+        for (std::size_t a = 0; a < 3; ++a)
+          s.sun_velocity_r0_cov[a] = cov[4 * (a + 1)];
       }
       q.finish({"from_fit"});
       try {

@@ -159,8 +159,8 @@ compare::VerdictSettings verdict_settings(const scenario::Scenario& s) {
   v.prior.parallax_snr_min = 0; // the verdict is conditional on the parallax
   v.lsr = ob.lsr;
   v.tails = c.tails == "gaussian" ? compare::VerdictSettings::Tails::gaussian
-            : c.tails == "robust"   ? compare::VerdictSettings::Tails::robust
-                                    : compare::VerdictSettings::Tails::student;
+            : c.tails == "robust" ? compare::VerdictSettings::Tails::robust
+                                  : compare::VerdictSettings::Tails::student;
   v.robust_dof = c.robust_dof;
   v.floor_min_kms = c.floor_min_kms, v.floor_max_kms = c.floor_max_kms;
   v.r0_kpc = ob.sun.r0_kpc, v.z_sun_kpc = ob.sun.z_sun_kpc;
@@ -177,6 +177,11 @@ compare::VerdictSettings verdict_settings(const scenario::Scenario& s) {
                              .square()
                              .matrix()
                              .asDiagonal();
+  v.marginalise_r0 = c.marginalise_r0;
+  v.r0_err_kpc = c.r0_err_kpc;
+  if (ob.sun_velocity_cov)
+    v.sun_velocity_r0_cov = Eigen::Vector3d(ob.sun_velocity_r0_cov[0], ob.sun_velocity_r0_cov[1],
+                                            ob.sun_velocity_r0_cov[2]);
   return v;
 }
 
@@ -261,25 +266,33 @@ io::Table verdict_table(const scenario::Scenario& s, const std::vector<compare::
                {"u_sun_kms", "U_\\odot", "U☉", "km/s", 4},
                {"sun_vphi_kms", "\\Theta_0 + V_\\odot", "Θ0+V☉", "km/s", 5},
                {"w_sun_kms", "W_\\odot", "W☉", "km/s", 4},
+               {"r0_kpc", "R_0", "R0", "kpc", 4},
                {"far_share", "f_{\\rm far}", "f_far", "", 3}};
   for (std::size_t r = 0; r < v.size(); ++r) {
     t.row_labels.push_back(std::to_string(r));
     t.add_row({double(s.seed + r), v[r].log_likelihood, v[r].log_likelihood_at_best, v[r].floor_kms,
                v[r].floor_mean_kms, v[r].sun_velocity_kms[0], v[r].sun_velocity_kms[1],
-               v[r].sun_velocity_kms[2], v[r].far_share});
+               v[r].sun_velocity_kms[2], v[r].r0_kpc, v[r].far_share});
   }
   char b[256];
   std::snprintf(b, sizeof b, "ln L = %.2f, scatter %.2f over %zu realisation(s), %zu sources",
                 sum.mean, sum.scatter, sum.count, sum.names.size());
   t.notes.push_back(b);
   t.notes.push_back("ln L: marginal over sigma_int (uniform prior) and, when so said below, the "
-                    "Sun's velocity; ln L_max, sigma_int and the Sun's velocity: at the maximum");
-  std::vector<std::string> seen;
-  for (const auto& r : v)
-    for (const auto& n : r.notes)
-      if (std::find(seen.begin(), seen.end(), n) == seen.end()) seen.push_back(n);
-  for (const auto& n : seen)
-    t.notes.push_back(n);
+                    "Sun's velocity and R0; ln L_max, sigma_int, the Sun's velocity and R0: at the "
+                    "maximum");
+  // each note once, with the realisations it holds for
+  std::vector<std::pair<std::string, std::string>> seen; // note, realisations
+  for (std::size_t r = 0; r < v.size(); ++r)
+    for (const auto& n : v[r].notes) {
+      auto it = std::find_if(seen.begin(), seen.end(), [&](const auto& x) { return x.first == n; });
+      if (it == seen.end())
+        seen.emplace_back(n, std::to_string(r));
+      else
+        it->second += ", " + std::to_string(r);
+    }
+  for (const auto& [n, rs] : seen)
+    t.notes.push_back((v.size() > 1 ? "realisation " + rs + ": " : std::string()) + n);
   for (const auto& e : excluded)
     t.notes.push_back("not judged: " + e);
   return t;
@@ -486,7 +499,7 @@ WholeRunResult run_all(const scenario::Scenario& s, const WholeRunOptions& o) {
       "mean V_s: measured %.2f +- %.2f km/s, simulated %.2f +- %.2f km/s, difference %.1f sigma\n"
       "mean U_s: measured %.2f +- %.2f km/s, simulated %.2f +- %.2f km/s\n"
       "verdict: ln L = %.1f, scatter %.1f over %zu realisation%s (tracer seeds %llu-%llu), %zu "
-      "sources; sigma_int %.1f km/s; the Sun's velocity %s\n"
+      "sources; sigma_int %.1f km/s; the Sun's velocity %s; R0 %s\n"
       "local table: %zu of %zu sources beyond 3 sigma of their Student-t prediction\n",
       s.name.c_str(), s.path.c_str(), sun.r0_kpc, sun.z_sun_kpc, sun.theta0_kms, sun.u_sun_kms,
       sun.v_sun_kms, sun.w_sun_kms, s.observation->settings.sun_source.c_str(),
@@ -496,7 +509,8 @@ WholeRunResult run_all(const scenario::Scenario& s, const WholeRunOptions& o) {
       all_u.simulated.mean, all_u.simulated.mean_err, summary.mean, summary.scatter, K,
       K == 1 ? "" : "s", (unsigned long long)s.seed, (unsigned long long)(s.seed + K - 1),
       judged.sources.size(), verdicts[0].floor_mean_kms,
-      vs.marginalise_sun ? "marginalised" : "held fixed", local.outliers.size(),
+      vs.marginalise_sun ? "marginalised" : "held fixed",
+      vs.marginalise_r0 ? "marginalised" : "held fixed", local.outliers.size(),
       local.sources.size());
   res.summary = b;
   if (K == 1)

@@ -210,13 +210,34 @@ Scenario parse_scenario(const std::string& text, const std::string& path) {
   }
   if (const toml::table* cm = r.table("comparison")) {
     TableReader q(*cm, path, "comparison");
-    q.check_keys({"catalog", "distance", "edsd_length_kpc", "distance_prior",
-                  "distance_min_kpc", "distance_max_kpc", "disk_scale_length_kpc",
-                  "disk_scale_height_kpc", "min_parallax_snr", "draws",
-                  "bootstrap", "seed", "neighbourhood", "neighbours", "min_neighbours",
-                  "radius_kpc", "prediction_sources", "radius_bins_kpc", "azimuth_bins_deg",
-                  "realisations", "verdict_sources", "verdict_tails", "robust_dof", "floor_kms",
-                  "sun_nuisance", "sun_velocity_err_kms"});
+    q.check_keys({"catalog",
+                  "distance",
+                  "edsd_length_kpc",
+                  "distance_prior",
+                  "distance_min_kpc",
+                  "distance_max_kpc",
+                  "disk_scale_length_kpc",
+                  "disk_scale_height_kpc",
+                  "min_parallax_snr",
+                  "draws",
+                  "bootstrap",
+                  "seed",
+                  "neighbourhood",
+                  "neighbours",
+                  "min_neighbours",
+                  "radius_kpc",
+                  "prediction_sources",
+                  "radius_bins_kpc",
+                  "azimuth_bins_deg",
+                  "realisations",
+                  "verdict_sources",
+                  "verdict_tails",
+                  "robust_dof",
+                  "floor_kms",
+                  "sun_nuisance",
+                  "sun_velocity_err_kms",
+                  "r0_nuisance",
+                  "r0_err_kpc"});
     Comparison c;
     c.catalog = io::path_beside(path, q.string("catalog"));
     try {
@@ -230,8 +251,10 @@ Scenario parse_scenario(const std::string& text, const std::string& path) {
     } catch (const InputError& e) {
       q.fail("distance_prior", e.what());
     }
-    if (c.prior.kind == fit::DistancePrior::Kind::table || c.prior.kind == fit::DistancePrior::Kind::edsd)
-      q.fail("distance_prior", "must be \"uniform\" or \"disk\" (edsd: distance = \"edsd-median\")");
+    if (c.prior.kind == fit::DistancePrior::Kind::table ||
+        c.prior.kind == fit::DistancePrior::Kind::edsd)
+      q.fail("distance_prior",
+             "must be \"uniform\" or \"disk\" (edsd: distance = \"edsd-median\")");
     c.prior.distance_min_kpc = q.number_or("distance_min_kpc", 0.0);
     c.prior.distance_max_kpc = q.number_or("distance_max_kpc", 20.0);
     c.prior.disk_scale_length_kpc = q.number_or("disk_scale_length_kpc", 3.0);
@@ -295,15 +318,29 @@ Scenario parse_scenario(const std::string& text, const std::string& path) {
         q.fail("sun_velocity_err_kms", "the Sun comes from a fit, whose posterior gives these");
       c.sun_velocity_err_kms = {e[0], e[1], e[2]};
     }
-    const std::string nuis =
-        q.string_or("sun_nuisance", sun_from_fit || q.has("sun_velocity_err_kms") ? "marginalise"
-                                                                                 : "fixed");
+    const std::string nuis = q.string_or(
+        "sun_nuisance", sun_from_fit || q.has("sun_velocity_err_kms") ? "marginalise" : "fixed");
     if (nuis != "fixed" && nuis != "marginalise")
       q.fail("sun_nuisance", "must be \"marginalise\" or \"fixed\"");
     c.marginalise_sun = nuis == "marginalise";
     if (c.marginalise_sun && !sun_from_fit && !q.has("sun_velocity_err_kms"))
       q.fail("sun_nuisance", "marginalising the Sun's velocity needs its uncertainty: "
                              "[observation.sun] from_fit, or sun_velocity_err_kms");
+    const double fit_r0_err = s.observation ? s.observation->settings.r0_err_kpc : 0.0;
+    if (q.has("r0_err_kpc")) {
+      c.r0_err_kpc = q.number("r0_err_kpc");
+      if (!(c.r0_err_kpc > 0 && c.r0_err_kpc < 5)) q.fail("r0_err_kpc", "must lie in (0, 5) kpc");
+      if (fit_r0_err > 0)
+        q.fail("r0_err_kpc", "the Sun comes from a fit, whose posterior gives it");
+    }
+    const std::string r0n = q.string_or("r0_nuisance", "fixed");
+    if (r0n != "fixed" && r0n != "marginalise")
+      q.fail("r0_nuisance", "must be \"marginalise\" or \"fixed\"");
+    c.marginalise_r0 = r0n == "marginalise";
+    if (c.marginalise_r0 && !(fit_r0_err > 0) && !q.has("r0_err_kpc"))
+      q.fail("r0_nuisance", "marginalising R0 needs its uncertainty: [observation.sun] from_fit "
+                            "with R0 free, or r0_err_kpc");
+    if (fit_r0_err > 0) c.r0_err_kpc = fit_r0_err;
     s.comparison = c;
     s.comparison_key = s.observation_key + canon({"comparison"});
   }

@@ -164,3 +164,38 @@ TEST_CASE("[comparison] takes a posterior-median distance with its prior and ran
   CHECK_THROWS_WITH(with("distance_min_kpc = 5\ndistance_max_kpc = 4\n"),
                     Catch::Contains("distance_max_kpc"));
 }
+
+TEST_CASE("[comparison] verdict keys: realisations, tails, floor and the Sun's and R0's "
+          "nuisances are read, and bad values are refused at their key",
+          "[run]") {
+  std::string text = scenario_text("kestrel.toml", "/nonexistent.csv", 1);
+  // the test scenario sets realisations and verdict_sources: replace them here
+  for (const char* k : {"realisations = 2\n", "verdict_sources = 2000\n"})
+    text.erase(text.find(k), std::string(k).size());
+  const auto with = [&](const std::string& extra) {
+    return scenario::parse_scenario(text + extra, "/tmp/verdict.toml");
+  };
+  const auto d = with("");
+  CHECK(d.comparison->realisations == 4);
+  CHECK(d.comparison->tails == "student");
+  CHECK(d.comparison->floor_max_kms == 15);
+  CHECK_FALSE(d.comparison->marginalise_sun); // no fit, no widths: fixed, and outputs say so
+  CHECK_FALSE(d.comparison->marginalise_r0);
+  const auto m = with("floor_kms = 4\nsun_velocity_err_kms = [1, 3, 0.5]\n"
+                      "r0_nuisance = \"marginalise\"\nr0_err_kpc = 0.2\nverdict_tails = \"robust\"\n");
+  CHECK(m.comparison->floor_min_kms == 4);
+  CHECK(m.comparison->floor_max_kms == 4);
+  CHECK(m.comparison->marginalise_sun);
+  CHECK(m.comparison->marginalise_r0);
+  CHECK(m.comparison->tails == "robust");
+  CHECK_THROWS_WITH(with("realisations = 0\n"), Catch::Contains("comparison.realisations"));
+  CHECK_THROWS_WITH(with("floor_kms = [5, 2]\n"), Catch::Contains("comparison.floor_kms"));
+  CHECK_THROWS_WITH(with("verdict_tails = \"cauchy\"\n"),
+                    Catch::Contains("comparison.verdict_tails"));
+  CHECK_THROWS_WITH(with("sun_nuisance = \"marginalise\"\n"),
+                    Catch::Contains("comparison.sun_nuisance"));
+  CHECK_THROWS_WITH(with("r0_nuisance = \"marginalise\"\n"),
+                    Catch::Contains("comparison.r0_nuisance"));
+  CHECK_THROWS_WITH(with("sun_velocity_err_kms = [1, -3, 0.5]\n"),
+                    Catch::Contains("comparison.sun_velocity_err_kms"));
+}

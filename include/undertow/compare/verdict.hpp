@@ -16,7 +16,8 @@
 // Gauss-Legendre quadrature (fixed when the two are equal). The Sun's velocity (U☉, Θ0 + V☉,
 // W☉), on which every prediction depends linearly, is marginalised over a Gaussian prior (a
 // kinematic fit's posterior) by Laplace's method (MacKay 2003, Information Theory, Inference and
-// Learning Algorithms, ch. 27), or held fixed, and the result says which. R0 and z☉ are fixed.
+// Learning Algorithms, ch. 27), or held fixed, and the result says which. R0 is fixed, or
+// marginalised over a Gaussian by Gauss-Hermite quadrature; z☉ is fixed.
 #include <array>
 #include <string>
 #include <vector>
@@ -51,6 +52,13 @@ struct VerdictSettings {
   bool marginalise_sun = false;
   Eigen::Matrix3d sun_velocity_cov = Eigen::Matrix3d::Identity(); // (km/s)²
   double far_kpc = 1.5; // a node whose k-th neighbour is farther than this is reported
+  // R0 marginalised over N(r0_kpc, r0_err_kpc) by Gauss-Hermite quadrature on r0_nodes values,
+  // the Sun's velocity prior taken conditional on R0 through their covariance (a fit's joint
+  // posterior); each value of R0 moves every line-of-sight node, so each is a whole verdict.
+  bool marginalise_r0 = false;
+  double r0_err_kpc = 0;
+  Eigen::Vector3d sun_velocity_r0_cov = Eigen::Vector3d::Zero(); // cov((U, Θ0+V, W), R0), km/s kpc
+  int r0_nodes = 5;
 };
 
 struct VerdictResult {
@@ -59,6 +67,7 @@ struct VerdictResult {
   double floor_kms = 0;              // σ_int at that maximum
   double floor_mean_kms = 0;         // its posterior mean
   std::array<double, 3> sun_velocity_kms{}; // at the maximum
+  double r0_kpc = 0;                        // the R0 node of the largest posterior weight
   std::vector<std::string> names;
   std::vector<double> source_log_likelihood; // per source, at the maximum
   double far_share = 0; // posterior-weighted share of nodes beyond far_kpc from their neighbours

@@ -55,8 +55,11 @@ struct ErrorModel {
 struct ObservationSettings {
   sky::SolarFrame sun;
   std::string sun_source = "fixed values"; // where the Sun's parameters came from, for outputs
-  // from a fit: the posterior covariance of the Sun's velocity (U, Θ0 + V, W), (km/s)², row-major
+  // from a fit: the posterior covariance of the Sun's velocity (U, Θ0 + V, W), (km/s)², row-major;
+  // R0's posterior standard deviation (kpc) and its covariance with that velocity (km/s kpc)
   std::optional<std::array<double, 9>> sun_velocity_cov;
+  double r0_err_kpc = 0;
+  std::array<double, 3> sun_velocity_r0_cov{};
   sky::LsrForm lsr = sky::LsrForm::apex;
   Selection selection;
   std::optional<YoungWeights> young;

@@ -51,6 +51,8 @@ struct Comparison {
   double floor_min_kms = 0, floor_max_kms = 15; // σ_int's uniform prior; equal: fixed
   bool marginalise_sun = false;
   std::array<double, 3> sun_velocity_err_kms{}; // a Gaussian prior without a fit, (U, Θ0+V, W)
+  bool marginalise_r0 = false;
+  double r0_err_kpc = 0; // R0's prior width: the fit's posterior, or given
 };
 
 struct Scenario {
