@@ -250,6 +250,13 @@ io::Table local_table(const compare::LocalResult& l) {
   return t;
 }
 
+// How far realisation r turns the spiral patterns (deg): stratified over the range, if any.
+double arm_shift_deg(const scenario::Scenario& s, std::size_t r) {
+  const auto& a = s.comparison->arm_phase_range_deg;
+  if (!a) return 0;
+  return (*a)[0] + ((*a)[1] - (*a)[0]) * (double(r) + 0.5) / double(s.comparison->realisations);
+}
+
 // One row per realisation, then the notes that say what the verdict rests on.
 io::Table verdict_table(const scenario::Scenario& s, const std::vector<compare::VerdictResult>& v,
                         const compare::RealisationSummary& sum,
@@ -267,12 +274,13 @@ io::Table verdict_table(const scenario::Scenario& s, const std::vector<compare::
                {"sun_vphi_kms", "\\Theta_0 + V_\\odot", "Θ0+V☉", "km/s", 5},
                {"w_sun_kms", "W_\\odot", "W☉", "km/s", 4},
                {"r0_kpc", "R_0", "R0", "kpc", 4},
+               {"arm_shift_deg", "\\Delta\\phi_{\\rm arm}", "Δφ_arm", "deg", 4},
                {"far_share", "f_{\\rm far}", "f_far", "", 3}};
   for (std::size_t r = 0; r < v.size(); ++r) {
     t.row_labels.push_back(std::to_string(r));
     t.add_row({double(s.seed + r), v[r].log_likelihood, v[r].log_likelihood_at_best, v[r].floor_kms,
                v[r].floor_mean_kms, v[r].sun_velocity_kms[0], v[r].sun_velocity_kms[1],
-               v[r].sun_velocity_kms[2], v[r].r0_kpc, v[r].far_share});
+               v[r].sun_velocity_kms[2], v[r].r0_kpc, arm_shift_deg(s, r), v[r].far_share});
   }
   char b[256];
   std::snprintf(b, sizeof b, "ln L = %.2f, scatter %.2f over %zu realisation(s), %zu sources",
@@ -326,6 +334,14 @@ WholeRunResult run_all(const scenario::Scenario& s, const WholeRunOptions& o) {
     if (r > 0)
       sr.orbit_key += "\n# realisation " + std::to_string(r) + ", tracer seed " +
                       std::to_string(sr.seed) + "\n";
+    if (s.comparison->arm_phase_range_deg) {
+      const double shift = arm_shift_deg(s, r);
+      for (auto& pt : sr.model.patterns)
+        if (!std::holds_alternative<potential::DehnenBar>(pt.shape)) pt.phase += shift * units::deg;
+      char b[96];
+      std::snprintf(b, sizeof b, "# spiral patterns turned by %.17g deg\n", shift);
+      sr.orbit_key += b;
+    }
     return sr;
   };
   const auto orbits_of = [&](std::size_t r) {
@@ -364,13 +380,15 @@ WholeRunResult run_all(const scenario::Scenario& s, const WholeRunOptions& o) {
 
   // 2. the mock observation
   const io::SnapshotReader rd(orbits.string());
-  const auto prep = observe::prepare(rd, *s.observation, s.model,
+  const auto prep = observe::prepare(rd, *s.observation, realisation_scenario(0).model,
                                      SourcePlace{s.path, 0, 0, "observation.time_myr"});
   const auto& window = prep.window;
   const auto& weights = prep.weights;
   const auto& ob = s.observation->settings;
   const fs::path mock_path = dir / "mock-catalog.csv";
-  if (reusable(stored_key(dir / ".keys/mock"), s.observation_key, mock_path, o.force)) {
+  // the mock depends on realisation 0's orbits (its seed and any turn of the arms) too
+  const std::string mock_key = s.observation_key + realisation_scenario(0).orbit_key;
+  if (reusable(stored_key(dir / ".keys/mock"), mock_key, mock_path, o.force)) {
     res.reused.push_back("mock");
     note("mock catalog: reused " + mock_path.string());
   } else {
@@ -379,7 +397,7 @@ WholeRunResult run_all(const scenario::Scenario& s, const WholeRunOptions& o) {
       throw InputError(SourcePlace{s.path, 0, 0, "observation.selection"},
                        "no simulated tracer passes the selection; nothing compared");
     residuals::write_catalog(mock_path.string(), mock.catalog);
-    write_text(dir / ".keys/mock", s.observation_key);
+    write_text(dir / ".keys/mock", mock_key);
     note("mock catalog: " + std::to_string(mock.catalog.sources.size()) + " sources");
   }
 
@@ -437,7 +455,7 @@ WholeRunResult run_all(const scenario::Scenario& s, const WholeRunOptions& o) {
       verdicts.push_back(compare::judge(judged, verdict_young(s, weights, window), vs));
     } else {
       const io::SnapshotReader rr(orbits_of(r).string());
-      const auto pr = observe::prepare(rr, *s.observation, s.model,
+      const auto pr = observe::prepare(rr, *s.observation, realisation_scenario(r).model,
                                        SourcePlace{s.path, 0, 0, "observation.time_myr"});
       verdicts.push_back(compare::judge(judged, verdict_young(s, pr.weights, pr.window), vs));
     }

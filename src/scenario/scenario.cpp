@@ -237,7 +237,8 @@ Scenario parse_scenario(const std::string& text, const std::string& path) {
                   "sun_nuisance",
                   "sun_velocity_err_kms",
                   "r0_nuisance",
-                  "r0_err_kpc"});
+                  "r0_err_kpc",
+                  "arm_phase_range_deg"});
     Comparison c;
     c.catalog = io::path_beside(path, q.string("catalog"));
     try {
@@ -341,6 +342,17 @@ Scenario parse_scenario(const std::string& text, const std::string& path) {
       q.fail("r0_nuisance", "marginalising R0 needs its uncertainty: [observation.sun] from_fit "
                             "with R0 free, or r0_err_kpc");
     if (fit_r0_err > 0) c.r0_err_kpc = fit_r0_err;
+    if (q.has("arm_phase_range_deg")) {
+      const auto a = q.numbers("arm_phase_range_deg");
+      if (a.size() != 2 || !(a[0] <= a[1]) || !(a[0] >= -180) || !(a[1] <= 180))
+        q.fail("arm_phase_range_deg", "must be [low, high] in degrees, -180 <= low <= high <= 180");
+      bool spiral = false;
+      for (const auto& pt : s.model.patterns)
+        spiral = spiral || std::holds_alternative<potential::LogSpiral>(pt.shape) ||
+                 std::holds_alternative<potential::CoxGomezSpiral>(pt.shape);
+      if (!spiral) q.fail("arm_phase_range_deg", "the galaxy has no spiral pattern to turn");
+      c.arm_phase_range_deg = std::array<double, 2>{a[0], a[1]};
+    }
     s.comparison = c;
     s.comparison_key = s.observation_key + canon({"comparison"});
   }

@@ -198,4 +198,13 @@ TEST_CASE("[comparison] verdict keys: realisations, tails, floor and the Sun's a
                     Catch::Contains("comparison.r0_nuisance"));
   CHECK_THROWS_WITH(with("sun_velocity_err_kms = [1, -3, 0.5]\n"),
                     Catch::Contains("comparison.sun_velocity_err_kms"));
+  const auto arms = with("arm_phase_range_deg = [-20, 20]\n");
+  REQUIRE(arms.comparison->arm_phase_range_deg);
+  CHECK((*arms.comparison->arm_phase_range_deg)[1] == 20);
+  CHECK_THROWS_WITH(with("arm_phase_range_deg = [20, -20]\n"),
+                    Catch::Contains("comparison.arm_phase_range_deg"));
+  std::string smooth = scenario_text("kestrel-axisymmetric.toml", "/nonexistent.csv", 1);
+  CHECK_THROWS_WITH(
+      scenario::parse_scenario(smooth + "arm_phase_range_deg = [-20, 20]\n", "/tmp/smooth.toml"),
+      Catch::Contains("no spiral pattern to turn"));
 }

@@ -53,6 +53,9 @@ struct Comparison {
   std::array<double, 3> sun_velocity_err_kms{}; // a Gaussian prior without a fit, (U, Θ0+V, W)
   bool marginalise_r0 = false;
   double r0_err_kpc = 0; // R0's prior width: the fit's posterior, or given
+  // Realisation r of K turns every spiral pattern by lo + (hi - lo)(r + 1/2)/K degrees (the arm
+  // phase spread over a range, stratified); empty: the model's own phase.
+  std::optional<std::array<double, 2>> arm_phase_range_deg;
 };
 
 struct Scenario {
