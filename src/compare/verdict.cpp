@@ -168,7 +168,7 @@ VerdictResult judge_at_r0(const residuals::Catalog& used, const SimulatedYoung& 
     for (int j = 0; j < ms.nodes; ++j) {
       const std::size_t k = i * std::size_t(ms.nodes) + std::size_t(j);
       const double w = lnw[std::size_t(j)] - norm;
-      if (w < -30) continue; // below 1e-13 of the whole: nothing to add
+      if (w < -50) continue; // below 1e-21 of the whole (beyond the ±7σ the nodes span)
       Node nd;
       nd.lnw = w;
       nd.k = ms.node_u[k] / sky::kKappa;
@@ -275,6 +275,9 @@ VerdictResult judge_at_r0(const residuals::Catalog& used, const SimulatedYoung& 
     try {
       o.optimize(x, fmax);
     } catch (const nlopt::roundoff_limited&) {
+    } catch (const std::exception& e) {
+      out.notes.push_back(std::string("the Sun's velocity: the optimiser stopped early (") +
+                          e.what() + "); the values at the maximum are where it stopped");
     }
     vbest = Vector3d(x[0], x[1], x[2]);
     const Vector3d dv = vbest - st.sun_velocity_kms;
@@ -369,6 +372,12 @@ VerdictResult judge(const residuals::Catalog& used, const SimulatedYoung& sim,
   std::vector<VerdictResult> at;
   std::vector<double> lnz;
   const double var_r = st.r0_err_kpc * st.r0_err_kpc;
+  const double r0_low = st.r0_kpc + std::sqrt(2.0) * st.r0_err_kpc * gh.nodes.front();
+  if (!(r0_low > std::fabs(st.z_sun_kpc) + 0.5))
+    throw InputError(SourcePlace{{}, 0, 0, "r0_err_kpc"},
+                     "too wide for R0 = " + detail::num(st.r0_kpc) +
+                         " kpc: the quadrature would place the Sun at R0 = " + detail::num(r0_low) +
+                         " kpc");
   for (std::size_t q = 0; q < gh.nodes.size(); ++q) {
     VerdictSettings s = st;
     s.marginalise_r0 = false;
@@ -391,7 +400,7 @@ VerdictResult judge(const residuals::Catalog& used, const SimulatedYoung& sim,
       " kpc by " + std::to_string(gh.nodes.size()) +
       "-point Gauss-Hermite quadrature; the values at the maximum are those at R0 = " +
       detail::num(out.r0_kpc) + " kpc");
-  if (best == 0 || best + 1 == gh.nodes.size())
+  if (gh.nodes.size() > 1 && (best == 0 || best + 1 == gh.nodes.size()))
     out.notes.push_back("the catalog prefers an R0 at the edge of the quadrature (" +
                         detail::num(out.r0_kpc) + " kpc): R0's prior and the model disagree");
   return out;

@@ -88,6 +88,24 @@ std::string selection_description(const scenario::Scenario& s) {
   return d.str();
 }
 
+// The verdict's own settings, every digit: runs whose verdicts 'versus' sets side by side must
+// share them, or their ln L measure different things.
+std::string verdict_description(const scenario::Scenario& s) {
+  const auto& c = *s.comparison;
+  std::ostringstream d;
+  d.precision(15);
+  d << "distance prior " << fit::distance_prior_name(c.prior.kind) << " "
+    << c.prior.distance_min_kpc << "-" << c.prior.distance_max_kpc << " kpc (scales "
+    << c.prior.disk_scale_length_kpc << ", " << c.prior.disk_scale_height_kpc << " kpc), "
+    << c.neighbours << " neighbours of " << c.verdict_sources << " young sources, tails " << c.tails
+    << " (" << c.robust_dof << "), floor " << c.floor_min_kms << "-" << c.floor_max_kms
+    << " km/s, Sun's velocity " << (c.marginalise_sun ? "marginalised" : "fixed") << " ("
+    << c.sun_velocity_err_kms[0] << ", " << c.sun_velocity_err_kms[1] << ", "
+    << c.sun_velocity_err_kms[2] << "), R0 " << (c.marginalise_r0 ? "marginalised" : "fixed")
+    << " (" << c.r0_err_kpc << ")";
+  return d.str();
+}
+
 // Indices in window.back() of young tracers drawn by the observation's weighted selection, with
 // the selection's geometry replaced by `sel` (no errors are used).
 std::vector<std::size_t> young_indices(const scenario::Scenario& s,
@@ -488,6 +506,11 @@ WholeRunResult run_all(const scenario::Scenario& s, const WholeRunOptions& o) {
                      io::hex64(io::digest_file(s.comparison->catalog).fnv1a));
     io::h5::set_attr(f, f.id(), "sun", sun_description(s));
     io::h5::set_attr(f, f.id(), "selection", selection_description(s));
+    io::h5::set_attr(f, f.id(), "verdict", verdict_description(s));
+    std::string names;
+    for (const auto& n : summary.names)
+      names += n + "\n";
+    io::h5::set_attr(f, f.id(), "judged_sources_digest", io::hex64(io::fnv1a64(names)));
     io::h5::set_attr(f, f.id(), "mean_V_measured_kms", all_v.measured.mean);
     io::h5::set_attr(f, f.id(), "mean_V_simulated_kms", all_v.simulated.mean);
     io::h5::set_attr(f, f.id(), "mean_V_significance", all_v.significance);
@@ -567,23 +590,27 @@ io::Table compare_runs(const std::vector<std::string>& folders) {
                {"mean_V_measured_kms", "\\langle V_s\\rangle_{\\rm obs}", "⟨V_s⟩_obs", "km/s", 4},
                {"mean_V_simulated_kms", "\\langle V_s\\rangle_{\\rm sim}", "⟨V_s⟩_sim", "km/s", 4},
                {"mean_V_significance", "\\Delta V/\\sigma", "ΔV/σ", "", 3}};
-  std::string first_catalog, first_sun, first_selection;
+  std::string first_catalog, first_sun, first_selection, first_verdict, first_judged;
   std::vector<std::string> names;
   std::vector<compare::RealisationSummary> sums;
   std::vector<std::array<double, 4>> extra; // n, mean V measured, simulated, significance
   for (std::size_t i = 0; i < folders.size(); ++i) {
     const fs::path p = fs::path(folders[i]) / "comparison.h5";
     const auto f = io::h5::File::open_read(p.string());
-    for (const char* a : {"run_name", "catalog_digest", "sun", "selection", "realisations"})
+    for (const char* a : {"run_name", "catalog_digest", "sun", "selection", "realisations",
+                          "verdict", "judged_sources_digest"})
       if (!io::h5::has_attr(f.id(), a))
         throw InputError(SourcePlace{p.string(), 0, 0, a},
                          "written by an older undertow: run it again ('undertow run') so that "
                          "versus can check what the runs share and weigh their realisations");
     const std::string cat = io::h5::get_attr_string(f, f.id(), "catalog_digest"),
                       sun = io::h5::get_attr_string(f, f.id(), "sun"),
-                      sel = io::h5::get_attr_string(f, f.id(), "selection");
+                      sel = io::h5::get_attr_string(f, f.id(), "selection"),
+                      ver = io::h5::get_attr_string(f, f.id(), "verdict"),
+                      judged = io::h5::get_attr_string(f, f.id(), "judged_sources_digest");
     if (i == 0) {
       first_catalog = cat, first_sun = sun, first_selection = sel;
+      first_verdict = ver, first_judged = judged;
     } else {
       const auto differ = [&](const char* what, const std::string& a, const std::string& b) {
         if (a != b)
@@ -595,6 +622,8 @@ io::Table compare_runs(const std::vector<std::string>& folders) {
       differ("catalog", cat, first_catalog);
       differ("sun", sun, first_sun);
       differ("selection", sel, first_selection);
+      differ("verdict", ver, first_verdict);
+      differ("judged sources", judged, first_judged);
     }
     const auto g = io::h5::open_group(f, "verdict");
     const auto totals = io::h5::read_doubles(f, g.id(), "realisation_log_likelihood", 1);
@@ -604,7 +633,7 @@ io::Table compare_runs(const std::vector<std::string>& folders) {
     std::vector<std::vector<double>> per(rows);
     for (std::size_t r = 0; r < rows; ++r)
       per[r].assign(flat.begin() + long(r * n), flat.begin() + long((r + 1) * n));
-    // the sources are the same in every run: the catalog and the selection were checked above
+    // the same sources in the same order in every run: their names' digest was checked above
     std::vector<std::string> idx(n);
     for (std::size_t k = 0; k < n; ++k)
       idx[k] = std::to_string(k);
@@ -643,7 +672,9 @@ io::Table compare_runs(const std::vector<std::string>& folders) {
     t.notes.push_back(b);
   }
   t.notes.push_back("sigma_Delta adds the catalog's sampling (bootstrap over sources, closed "
-                    "form) and the realisations' scatter (s^2/K of each run) in quadrature");
+                    "form, from the per-source ln L at each realisation's maximum) and the "
+                    "realisations' scatter (s^2/K of each run) in quadrature; as the per-source "
+                    "values also carry realisation noise, it errs on the large side");
   if (unknown_noise)
     t.notes.push_back("WARNING: runs with one realisation each: the realisation noise is not "
                       "known and sigma_Delta holds the catalog's sampling only; set [comparison] "

@@ -85,30 +85,55 @@ SweepPosterior sweep_posterior(const std::vector<std::string>& keys,
   }
   for (const auto& p : pts)
     if (!std::isfinite(p.log_likelihood)) throw InputError(where, "a point has no finite ln L");
+  if (o.grid)
+    for (std::size_t j = 0; j < np; ++j)
+      if (distinct[j].size() < 3)
+        throw InputError(where, "'" + keys[j] + "' takes " + std::to_string(distinct[j].size()) +
+                                    " values: a grid posterior needs at least 3 of each "
+                                    "parameter, so that its mass can lie away from the edges");
 
   SweepPosterior out;
   out.noise_known = std::any_of(pts.begin(), pts.end(), [](auto& p) { return p.error > 0; });
   // the posterior weights, averaged over redraws of ln L within its error
-  std::vector<double> lnl(n), w(n, 0.0), w0;
-  for (std::size_t i = 0; i < n; ++i)
+  // ln L plus the log of each point's prior volume: on a grid the product of its cells' widths
+  // (so that an uneven or geometric grid still means a uniform prior); a hypercube's points
+  // carry equal shares of its own sampling density
+  std::vector<double> lnl(n), w(n, 0.0);
+  for (std::size_t i = 0; i < n; ++i) {
     lnl[i] = pts[i].log_likelihood;
-  w0 = weights_of(lnl);
+    if (o.grid)
+      for (std::size_t j = 0; j < np; ++j) {
+        const auto e = cell_edges(distinct[j]);
+        const std::size_t k =
+            std::size_t(std::lower_bound(distinct[j].begin(), distinct[j].end(), pts[i].values[j]) -
+                        distinct[j].begin());
+        lnl[i] += std::log(e[k + 1] - e[k]);
+      }
+  }
   std::vector<std::size_t> best_count(n, 0);
   const int draws = out.noise_known ? std::max(1, o.noise_draws) : 1;
   std::mt19937_64 rng(o.seed);
   std::normal_distribution<double> g(0, 1);
   for (int d = 0; d < draws; ++d) {
-    std::vector<double> x(n);
-    for (std::size_t i = 0; i < n; ++i)
-      x[i] = lnl[i] + (out.noise_known ? pts[i].error * g(rng) : 0.0);
+    std::vector<double> noise(n), x(n);
+    for (std::size_t i = 0; i < n; ++i) {
+      noise[i] = out.noise_known ? pts[i].error * g(rng) : 0.0;
+      x[i] = lnl[i] + noise[i];
+    }
     const auto wd = weights_of(x);
     for (std::size_t i = 0; i < n; ++i)
       w[i] += wd[i] / draws;
-    ++best_count[std::size_t(std::max_element(x.begin(), x.end()) - x.begin())];
+    std::size_t bi = 0; // the best by likelihood alone, within the redrawn noise
+    for (std::size_t i = 1; i < n; ++i)
+      if (pts[i].log_likelihood + noise[i] > pts[bi].log_likelihood + noise[bi]) bi = i;
+    ++best_count[bi];
   }
-  out.best_point = std::size_t(std::max_element(lnl.begin(), lnl.end()) - lnl.begin());
-  out.best_probability = double(best_count[out.best_point]) / draws;
-  const double lmax = lnl[out.best_point];
+  std::size_t best = 0;
+  for (std::size_t i = 1; i < n; ++i)
+    if (pts[i].log_likelihood > pts[best].log_likelihood) best = i;
+  out.best_point = best;
+  out.best_probability = double(best_count[best]) / draws;
+  const double lmax = pts[best].log_likelihood;
 
   for (std::size_t j = 0; j < np; ++j) {
     ParameterPosterior pp;
@@ -123,7 +148,7 @@ SweepPosterior sweep_posterior(const std::vector<std::string>& keys,
       const std::size_t k =
           std::size_t(std::lower_bound(xs.begin(), xs.end(), pts[i].values[j]) - xs.begin());
       pp.marginal[k] += w[i];
-      pp.profile[k] = std::max(pp.profile[k], lnl[i] - lmax);
+      pp.profile[k] = std::max(pp.profile[k], pts[i].log_likelihood - lmax);
     }
     if (o.grid) {
       const auto e = cell_edges(xs);
@@ -167,8 +192,12 @@ SweepPosterior sweep_posterior(const std::vector<std::string>& keys,
     out.notes.push_back("realisation noise propagated: the posterior is the average over " +
                         std::to_string(draws) + " redraws of every point's ln L within its error");
   if (o.grid)
-    out.notes.push_back("grid: each value's mass is spread over its cell (midpoints to the "
-                        "neighbours); intervals are no finer than the grid's spacing");
+    out.notes.push_back("prior uniform over the swept box; grid: each value's mass is spread over "
+                        "its cell (midpoints to the neighbours); intervals are no finer than the "
+                        "grid's spacing");
+  else
+    out.notes.push_back("prior: the hypercube's own sampling density (uniform, or uniform in the "
+                        "logarithm of log-scaled parameters)");
   return out;
 }
 

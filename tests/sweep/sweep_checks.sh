@@ -146,11 +146,11 @@ grep -q "^missing: point" gather.out || fail "gather did not list the missing po
 grep -q "PARTIAL" one/ci-results.md || fail "partial table not marked"
 mv "$W/set-aside" "$victim"
 
-# 5b. The posterior. This grid is too coarse (force ratio: two values, both edge cells), so the
+# 5b. The posterior. This grid is too coarse (force ratio: two values, both of them edges), so the
 # posterior is refused: gather still writes its table and says why; --posterior stops with one line,
 # exit 2 and nothing written.
 "$U" sweep gather one >post.out || fail "gather failed on a sweep without a posterior"
-grep -q "^no posterior: .*edge of '.*'.*extend the grid" post.out ||
+grep -q "^no posterior: .*force_ratio' takes 2 values: a grid posterior needs at least 3" post.out ||
   { cat post.out; fail "gather did not say why there is no posterior"; }
 grep -q "no posterior written" one/ci-results.md || fail "the results table does not say why there is no posterior"
 set +e

@@ -111,3 +111,25 @@ TEST_CASE("Sweep posterior on a Latin hypercube: 8000 uniform points reproduce t
   CHECK(a.hi68 == Approx(5.0).margin(0.15));
   CHECK(post.parameters[1].median == Approx(6).margin(0.2));
 }
+
+TEST_CASE("Sweep posterior: an uneven (geometric) grid still means a uniform prior over the swept "
+          "box, so a flat likelihood puts the median at the middle of the box (definition of the "
+          "uniform prior), and a two-value grid is refused",
+          "[sweep][posterior]") {
+  std::vector<PosteriorPoint> pts;
+  for (double a : {1.0, 2.0, 4.0, 8.0, 16.0})
+    for (double b : {0.0, 1.0, 2.0})
+      pts.push_back({{a, b}, 0.0, 0.0});
+  PosteriorOptions o;
+  o.edge_mass = 1; // a flat likelihood fills the edges: not what this test is about
+  const auto post = sweep_posterior({"a", "b"}, {}, pts, o);
+  // cells of a: [0.5, 1.5, 3, 6, 12, 20]: the box is 0.5 to 20 kpc, its middle 10.25
+  CHECK(post.parameters[0].median == Approx(10.25).epsilon(1e-12));
+  CHECK(post.parameters[1].median == Approx(1.0).epsilon(1e-12));
+  std::vector<PosteriorPoint> two;
+  for (double a : {1.0, 2.0, 3.0})
+    for (double b : {0.0, 1.0})
+      two.push_back({{a, b}, -a, 0.0});
+  CHECK_THROWS_WITH(sweep_posterior({"a", "force_ratio"}, {}, two, o),
+                    Catch::Contains("'force_ratio' takes 2 values"));
+}
