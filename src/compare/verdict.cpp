@@ -8,6 +8,7 @@
 #include "undertow/compare/neighbour_field.hpp"
 #include "undertow/compare/predictive.hpp"
 #include "undertow/detail/kernel.hpp"
+#include "undertow/detail/log_sum_exp.hpp"
 #include "undertow/error.hpp"
 #include "undertow/fit/measured_sources.hpp"
 #include "undertow/fit/quadrature.hpp"
@@ -26,7 +27,8 @@ struct Node {
   double k = 0;          // mas/yr per km/s at this distance
   double shift0 = 0;     // the parallax residual / σ_ϖ², for the conditional mean
   Vector3d loc;          // predicted Galactocentric velocity
-  Matrix3d plp, ppt;     // P Λ Pᵀ and P Pᵀ, P = rows (k e, k q, n)
+  Matrix3d P;            // velocity to (μα*, μδ, v_r): rows k e, k q, n
+  Matrix3d plp, ppt;     // P Λ Pᵀ and P Pᵀ
   double nu = 0, tr = 0; // the predictive's degrees of freedom and tr Λ
 };
 
@@ -38,17 +40,6 @@ struct Source {
   double cww = 0;
   std::vector<Node> nodes;
 };
-
-double log_sum_exp(const std::vector<double>& v) {
-  double m = -INFINITY;
-  for (double x : v)
-    m = std::max(m, x);
-  if (!std::isfinite(m)) return m;
-  double s = 0;
-  for (double x : v)
-    s += std::exp(x - m);
-  return m + std::log(s);
-}
 
 // One node at one value of σ_int, reduced to what varies with the Sun's velocity v: the
 // prediction is linear in v, so with the Cholesky factor L of the node's covariance the
@@ -62,7 +53,6 @@ struct Term {
 // ln p(μα*, μδ, v_LSR | ϖ) of one source from its terms at one σ_int.
 double source_ln_l(const Term* terms, std::size_t n, const Vector3d& v) {
   double buf[fit::kMaxNodes];
-  double m = -INFINITY;
   for (std::size_t j = 0; j < n; ++j) {
     const Term& t = terms[j];
     double q = 0;
@@ -71,13 +61,8 @@ double source_ln_l(const Term* terms, std::size_t n, const Vector3d& v) {
       q += y * y;
     }
     buf[j] = t.lnc + (std::isfinite(t.nu) ? -0.5 * (t.nu + 3) * std::log1p(q / t.nu) : -0.5 * q);
-    m = std::max(m, buf[j]);
   }
-  if (!std::isfinite(m)) return m;
-  double s = 0;
-  for (std::size_t j = 0; j < n; ++j)
-    s += std::exp(buf[j] - m);
-  return m + std::log(s);
+  return detail::log_sum_exp(buf, n);
 }
 
 Term make_term(const Source& src, const Node& nd, double s2, const VerdictSettings& st) {
@@ -85,10 +70,7 @@ Term make_term(const Source& src, const Node& nd, double s2, const VerdictSettin
   cov -= src.cw * src.cw.transpose() / src.cww; // conditional on the parallax error
   const Eigen::LLT<Matrix3d> llt(cov);
   const Matrix3d L = llt.matrixL();
-  Matrix3d P;
-  P.row(0) = nd.k * src.e.transpose();
-  P.row(1) = nd.k * src.q.transpose();
-  P.row(2) = src.n.transpose();
+  const Matrix3d& P = nd.P;
   const Vector3d r0 = src.meas - P * nd.loc - src.cw * nd.shift0;
   const Vector3d a = L.triangularView<Eigen::Lower>().solve(r0);
   const Matrix3d B = L.triangularView<Eigen::Lower>().solve(P);
@@ -164,7 +146,7 @@ VerdictResult judge_at_r0(const residuals::Catalog& used, const SimulatedYoung& 
           (ms.node_table.empty() ? st.prior.ln_density(ms.node_d[k], R, z) : ms.node_table[k]) -
           0.5 * r0 * r0 / ms.cww[i];
     }
-    const double norm = log_sum_exp(lnw);
+    const double norm = detail::log_sum_exp(lnw);
     for (int j = 0; j < ms.nodes; ++j) {
       const std::size_t k = i * std::size_t(ms.nodes) + std::size_t(j);
       const double w = lnw[std::size_t(j)] - norm;
@@ -181,12 +163,11 @@ VerdictResult judge_at_r0(const residuals::Catalog& used, const SimulatedYoung& 
       nd.loc = pr.location;
       nd.nu = pr.nu;
       nd.tr = pr.scale.trace();
-      Matrix3d P;
-      P.row(0) = nd.k * s.e.transpose();
-      P.row(1) = nd.k * s.q.transpose();
-      P.row(2) = s.n.transpose();
-      nd.plp = P * pr.scale * P.transpose();
-      nd.ppt = P * P.transpose();
+      nd.P.row(0) = nd.k * s.e.transpose();
+      nd.P.row(1) = nd.k * s.q.transpose();
+      nd.P.row(2) = s.n.transpose();
+      nd.plp = nd.P * pr.scale * nd.P.transpose();
+      nd.ppt = nd.P * nd.P.transpose();
       s.nodes.push_back(nd);
     }
   }
@@ -239,7 +220,7 @@ VerdictResult judge_at_r0(const residuals::Catalog& used, const SimulatedYoung& 
     auto t = totals(vs, nullptr, G);
     for (std::size_t g = 0; g < G; ++g)
       t[g] += lnfw[g];
-    return log_sum_exp(t);
+    return detail::log_sum_exp(t);
   };
 
   VerdictResult out;
@@ -333,7 +314,7 @@ VerdictResult judge_at_r0(const residuals::Catalog& used, const SimulatedYoung& 
     std::vector<double> lp(G);
     for (std::size_t g = 0; g < G; ++g)
       lp[g] = t[g] + lnfw[g];
-    const double z = log_sum_exp(lp);
+    const double z = detail::log_sum_exp(lp);
     for (std::size_t g = 0; g < G; ++g)
       out.floor_mean_kms += floors[g] * std::exp(lp[g] - z);
   }
@@ -394,7 +375,7 @@ VerdictResult judge(const residuals::Catalog& used, const SimulatedYoung& sim,
   }
   const std::size_t best = std::size_t(std::max_element(lnz.begin(), lnz.end()) - lnz.begin());
   VerdictResult out = at[best];
-  out.log_likelihood = log_sum_exp(lnz);
+  out.log_likelihood = detail::log_sum_exp(lnz);
   out.notes.push_back(
       "R0 marginalised over " + detail::num(st.r0_kpc) + " +- " + detail::num(st.r0_err_kpc) +
       " kpc by " + std::to_string(gh.nodes.size()) +

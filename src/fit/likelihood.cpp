@@ -4,6 +4,7 @@
 #include <cmath>
 
 #include "undertow/detail/kernel.hpp"
+#include "undertow/detail/log_sum_exp.hpp"
 #include "undertow/error.hpp"
 #include "undertow/fit/quadrature.hpp"
 #include "undertow/sky/solar_frame.hpp"
@@ -187,17 +188,6 @@ disk_normalisation(const double* __restrict d, const double* __restrict lnw, int
   return m + std::log(sum);
 }
 
-double log_sum_exp(const double* v, int n) {
-  double m = -INFINITY;
-  for (int j = 0; j < n; ++j)
-    m = v[j] > m ? v[j] : m;
-  if (!std::isfinite(m)) return m;
-  double s = 0;
-  for (int j = 0; j < n; ++j)
-    s += std::exp(v[j] - m);
-  return m + std::log(s);
-}
-
 // ln Φ(x), the standard normal CDF; below x = -30, where erfc underflows, the leading terms of
 // its asymptotic series (Abramowitz & Stegun 1964, 26.2.12).
 double ln_phi(double x) {
@@ -290,7 +280,7 @@ double Likelihood::integrate_normalisation(std::size_t i, const FullParams& p) c
                : norm_lns_[b + std::size_t(j)];
     buf[j] = v;
   }
-  return log_sum_exp(buf, norm_nodes_);
+  return detail::log_sum_exp(buf, std::size_t(norm_nodes_));
 }
 
 void Likelihood::source_terms(std::size_t i, const FullParams& p, double& ln_good,

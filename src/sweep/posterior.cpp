@@ -98,12 +98,16 @@ SweepPosterior sweep_posterior(const std::vector<std::string>& keys,
   // ln L plus the log of each point's prior volume: on a grid the product of its cells' widths
   // (so that an uneven or geometric grid still means a uniform prior); a hypercube's points
   // carry equal shares of its own sampling density
+  std::vector<std::vector<double>> edges(np);
+  if (o.grid)
+    for (std::size_t j = 0; j < np; ++j)
+      edges[j] = cell_edges(distinct[j]);
   std::vector<double> lnl(n), w(n, 0.0);
   for (std::size_t i = 0; i < n; ++i) {
     lnl[i] = pts[i].log_likelihood;
     if (o.grid)
       for (std::size_t j = 0; j < np; ++j) {
-        const auto e = cell_edges(distinct[j]);
+        const auto& e = edges[j];
         const std::size_t k =
             std::size_t(std::lower_bound(distinct[j].begin(), distinct[j].end(), pts[i].values[j]) -
                         distinct[j].begin());
@@ -151,7 +155,7 @@ SweepPosterior sweep_posterior(const std::vector<std::string>& keys,
       pp.profile[k] = std::max(pp.profile[k], pts[i].log_likelihood - lmax);
     }
     if (o.grid) {
-      const auto e = cell_edges(xs);
+      const auto& e = edges[j];
       pp.median = cell_quantile(e, pp.marginal, 0.5);
       pp.lo68 = cell_quantile(e, pp.marginal, 0.15865),
       pp.hi68 = cell_quantile(e, pp.marginal, 0.84135);
