@@ -1,12 +1,12 @@
 #include "undertow/gas/cloud_collisions.hpp"
 
 #include <algorithm>
-#include <array>
 #include <cmath>
 #include <cstdint>
 #include <tuple>
-#include <unordered_map>
 #include <vector>
+
+#include <omp.h>
 
 #include "undertow/detail/kernel.hpp"
 #include "undertow/units.hpp"
@@ -22,75 +22,222 @@ void CloudCollisions::validate() const {
   if (!(tangential_restitution >= 0 && tangential_restitution <= 1))
     throw detail::ParameterError("tangential_restitution",
                                  "must be from 0 to 1, got " + detail::num(tangential_restitution));
+  if (!(extent_kpc > 0))
+    throw detail::ParameterError("extent_kpc", "must be positive, got " + detail::num(extent_kpc));
 }
 
-CollisionPass collide_pairs(orbit::PhaseSpace& p, const CloudCollisions& c, double dt_myr) {
+namespace {
+
+struct Hit {
+  double t;
+  std::uint64_t ida, idb;
+  std::size_t i, j;
+  bool operator<(const Hit& o) const { return std::tie(t, ida, idb) < std::tie(o.t, o.ida, o.idb); }
+};
+
+// The first time in [0, dt] at which clouds i and j, moving straight, are 2a apart and
+// approaching (already overlapping and approaching: 0); false if none.
+bool contact(const orbit::PhaseSpace& p, std::size_t i, std::size_t j, double d2, double dt,
+             double& t) {
+  const double rx = p.x[j] - p.x[i], ry = p.y[j] - p.y[i], rz = p.z[j] - p.z[i];
+  const double ux = p.vx[j] - p.vx[i], uy = p.vy[j] - p.vy[i], uz = p.vz[j] - p.vz[i];
+  const double ru = rx * ux + ry * uy + rz * uz;
+  if (!(ru < 0)) return false; // not approaching
+  const double uu = ux * ux + uy * uy + uz * uz, rr = rx * rx + ry * ry + rz * rz;
+  // |r + u t|² = 4a²: the first root t = (-ru - sqrt(ru² - uu (rr - 4a²))) / uu
+  const double disc = ru * ru - uu * (rr - d2);
+  if (!(disc >= 0)) return false;
+  t = rr <= d2 ? 0.0 : (-ru - std::sqrt(disc)) / uu;
+  return t <= dt;
+}
+
+} // namespace
+
+CollisionPass collide_pairs(orbit::PhaseSpace& p, const CloudCollisions& c, double dt_myr,
+                            const CircularFlow& flow, std::size_t count) {
   c.validate();
-  const std::size_t n = p.x.size();
+  const std::size_t n = std::min(count, p.size());
   CollisionPass out;
   if (n < 2 || !(dt_myr > 0)) return out;
   const double dt = units::myr_to_internal(dt_myr); // kpc per (km/s): distance = v dt
-  const double d2 = 4 * c.radius_kpc * c.radius_kpc;
-  // cells wide enough that a pair colliding within dt sits in the same or adjacent cells
-  double vmax = 0;
+  const double a = c.radius_kpc, d2 = 4 * a * a;
+
+  // The reference flow and each cloud's search radius s (see the header).
+  CircularFlow ref = flow.capped(0.4 / dt);
+  double K = ref.lipschitz();
+  if (!(K * dt / 2 <= 0.25)) ref = CircularFlow(), K = 0; // too steep to help: no flow
+  const double cm = (dt / 2) / (1 - K * dt / 2), shrink = 1 - K * cm;
+  std::vector<std::size_t> active;
+  active.reserve(n);
   for (std::size_t i = 0; i < n; ++i)
-    vmax = std::max(vmax, std::sqrt(p.vx[i] * p.vx[i] + p.vy[i] * p.vy[i] + p.vz[i] * p.vz[i]));
-  const double h = 2 * c.radius_kpc + 2 * vmax * dt;
-  const auto key = [&](long i, long j, long k) {
-    return (std::uint64_t(std::uint32_t(i)) * 73856093u) ^ (std::uint64_t(std::uint32_t(j)) << 21) ^
-           (std::uint64_t(std::uint32_t(k)) << 42);
-  };
-  std::unordered_map<std::uint64_t, std::vector<std::size_t>> cells;
-  std::vector<std::array<long, 3>> at(n);
-  for (std::size_t i = 0; i < n; ++i) {
-    at[i] = {long(std::floor(p.x[i] / h)), long(std::floor(p.y[i] / h)),
-             long(std::floor(p.z[i] / h))};
-    cells[key(at[i][0], at[i][1], at[i][2])].push_back(i);
+    if (std::fabs(p.x[i]) <= c.extent_kpc && std::fabs(p.y[i]) <= c.extent_kpc &&
+        std::isfinite(p.z[i]) && std::isfinite(p.vx[i] + p.vy[i] + p.vz[i]))
+      active.push_back(i);
+  const std::size_t m = active.size();
+  if (m < 2) return out;
+  std::vector<double> px(m), py(m), pz(m), s(m);
+  for (std::size_t k = 0; k < m; ++k) {
+    const std::size_t i = active[k];
+    double fx, fy;
+    ref.at(p.x[i], p.y[i], fx, fy);
+    const double w = std::hypot(p.vx[i] - fx, p.vy[i] - fy, p.vz[i]);
+    s[k] = (a + cm * w) / shrink * (1 + 1e-9); // widened by round-off: the exact test decides
+    px[k] = p.x[i] + p.vx[i] * dt / 2, py[k] = p.y[i] + p.vy[i] * dt / 2;
+    pz[k] = p.z[i] + p.vz[i] * dt / 2;
   }
-  // every pair that comes within 2a while approaching during dt: (contact time, ids, i, j)
-  std::vector<std::tuple<double, std::uint64_t, std::uint64_t, std::size_t, std::size_t>> hits;
-  for (std::size_t i = 0; i < n; ++i)
-    for (long dx = -1; dx <= 1; ++dx)
-      for (long dy = -1; dy <= 1; ++dy)
-        for (long dz = -1; dz <= 1; ++dz) {
-          const auto it = cells.find(key(at[i][0] + dx, at[i][1] + dy, at[i][2] + dz));
-          if (it == cells.end()) continue;
-          for (std::size_t j : it->second) {
-            if (!(p.id[j] > p.id[i]) && !(p.id[j] == p.id[i] && j > i)) continue; // once per pair
-            if (at[j][0] != at[i][0] + dx || at[j][1] != at[i][1] + dy || at[j][2] != at[i][2] + dz)
-              continue; // a hash collision with a far cell
-            const double rx = p.x[j] - p.x[i], ry = p.y[j] - p.y[i], rz = p.z[j] - p.z[i];
-            const double ux = p.vx[j] - p.vx[i], uy = p.vy[j] - p.vy[i], uz = p.vz[j] - p.vz[i];
-            const double ru = rx * ux + ry * uy + rz * uz;
-            if (!(ru < 0)) continue; // not approaching
-            const double uu = ux * ux + uy * uy + uz * uz, rr = rx * rx + ry * ry + rz * rz;
-            // |r + u t|² = 4a²: the first root t = (-ru - sqrt(ru² - uu (rr - 4a²))) / uu
-            const double disc = ru * ru - uu * (rr - d2);
-            if (!(disc >= 0)) continue;
-            const double t = rr <= d2 ? 0.0 : (-ru - std::sqrt(disc)) / uu;
-            if (t > dt) continue;
-            hits.emplace_back(t, std::min(p.id[i], p.id[j]), std::max(p.id[i], p.id[j]), i, j);
-          }
+
+  // Cells of side h = twice the largest search radius of all but the fastest clouds, and no
+  // more (x, y) columns than about 4 per cloud.
+  const std::size_t n_fast_max = std::max<std::size_t>(64, m / 1000);
+  std::vector<double> sorted_s = s;
+  const std::size_t q = m > n_fast_max ? m - n_fast_max - 1 : 0;
+  std::nth_element(sorted_s.begin(), sorted_s.begin() + long(q), sorted_s.end());
+  double h = 2 * sorted_s[q];
+  double x0, x1, y0, y1;
+  for (int tries = 0;; ++tries) { // the slow clouds' box, and at most ~4 columns per cloud in it
+    x0 = y0 = INFINITY, x1 = y1 = -INFINITY;
+    for (std::size_t k = 0; k < m; ++k)
+      if (2 * s[k] <= h) {
+        x0 = std::min(x0, px[k]), x1 = std::max(x1, px[k]);
+        y0 = std::min(y0, py[k]), y1 = std::max(y1, py[k]);
+      }
+    const double h_min = std::sqrt((x1 - x0) * (y1 - y0) / (4.0 * double(m) + 1024));
+    if (h >= h_min || tries == 8) break;
+    h = h_min;
+  }
+  std::vector<std::size_t> slow, fast;
+  for (std::size_t k = 0; k < m; ++k)
+    (2 * s[k] <= h ? slow : fast).push_back(k);
+  const long nx = long((x1 - x0) / h) + 1, ny = long((y1 - y0) / h) + 1;
+  const auto column = [&](std::size_t k) {
+    return std::size_t(long((px[k] - x0) / h) * ny + long((py[k] - y0) / h));
+  };
+  // Counting sort of the slow clouds into columns, each column then ordered by z (and index).
+  std::vector<std::size_t> start(std::size_t(nx * ny) + 1, 0), order(slow.size());
+  for (std::size_t k : slow)
+    ++start[column(k) + 1];
+  for (std::size_t c2 = 1; c2 < start.size(); ++c2)
+    start[c2] += start[c2 - 1];
+  {
+    std::vector<std::size_t> fill(start.begin(), start.end() - 1);
+    for (std::size_t k : slow)
+      order[fill[column(k)]++] = k;
+  }
+  const auto by_z = [&](std::size_t u, std::size_t v) {
+    return pz[u] != pz[v] ? pz[u] < pz[v] : u < v;
+  };
+  const long ncol = nx * ny;
+#pragma omp parallel for schedule(dynamic, 4096)
+  for (long c2 = 0; c2 < ncol; ++c2)
+    std::sort(order.begin() + long(start[std::size_t(c2)]),
+              order.begin() + long(start[std::size_t(c2) + 1]), by_z);
+  // The entries of column (ix, iy) with z in [lo, hi].
+  const auto z_range = [&](long ix, long iy, double lo, double hi) {
+    const std::size_t c2 = std::size_t(ix * ny + iy);
+    const auto b = order.begin() + long(start[c2]), e = order.begin() + long(start[c2 + 1]);
+    const auto first =
+        std::lower_bound(b, e, lo, [&](std::size_t k, double z) { return pz[k] < z; });
+    const auto last =
+        std::upper_bound(first, e, hi, [&](double z, std::size_t k) { return z < pz[k]; });
+    return std::pair{first, last};
+  };
+
+  std::vector<std::vector<Hit>> found;
+  std::vector<std::size_t> tested;
+#pragma omp parallel
+  {
+#pragma omp single
+    {
+      found.resize(std::size_t(omp_get_num_threads()));
+      tested.assign(found.size(), 0);
+    }
+    std::vector<Hit>& mine = found[std::size_t(omp_get_thread_num())];
+    std::size_t& my_tests = tested[std::size_t(omp_get_thread_num())];
+    const auto test = [&](std::size_t u, std::size_t v) {
+      const double dx = px[v] - px[u], dy = py[v] - py[u], dz = pz[v] - pz[u];
+      const double reach = s[u] + s[v];
+      if (dx * dx + dy * dy + dz * dz > reach * reach) return;
+      ++my_tests;
+      const std::size_t i = active[u], j = active[v];
+      double t;
+      if (contact(p, i, j, d2, dt, t))
+        mine.push_back({t, std::min(p.id[i], p.id[j]), std::max(p.id[i], p.id[j]), i, j});
+    };
+    // Slow with slow: the column itself (later in z order) and four of its eight neighbours,
+    // so that each pair is met once.
+#pragma omp for schedule(dynamic, 1024)
+    for (long c2 = 0; c2 < ncol; ++c2) {
+      const long ix = c2 / ny, iy = c2 % ny;
+      for (std::size_t e = start[std::size_t(c2)]; e < start[std::size_t(c2) + 1]; ++e) {
+        const std::size_t u = order[e];
+        for (std::size_t f = e + 1; f < start[std::size_t(c2) + 1] && pz[order[f]] <= pz[u] + h;
+             ++f)
+          test(u, order[f]);
+        static constexpr long half[4][2] = {{1, -1}, {1, 0}, {1, 1}, {0, 1}};
+        for (const auto& d : half) {
+          const long jx = ix + d[0], jy = iy + d[1];
+          if (jx >= nx || jy < 0 || jy >= ny) continue;
+          const auto [b, e2] = z_range(jx, jy, pz[u] - h, pz[u] + h);
+          for (auto it = b; it != e2; ++it)
+            test(u, *it);
         }
+      }
+    }
+    // Each fast cloud with every slow cloud within its reach, and with the later fast ones.
+#pragma omp for schedule(dynamic, 1)
+    for (long f = 0; f < long(fast.size()); ++f) {
+      const std::size_t u = fast[std::size_t(f)];
+      const double reach = s[u] + h / 2;
+      const long ax = std::max(0L, long(std::floor((px[u] - reach - x0) / h))),
+                 bx = std::min(nx - 1, long(std::floor((px[u] + reach - x0) / h))),
+                 ay = std::max(0L, long(std::floor((py[u] - reach - y0) / h))),
+                 by = std::min(ny - 1, long(std::floor((py[u] + reach - y0) / h)));
+      if (ax <= bx && ay <= by) {
+        if (double(bx - ax + 1) * double(by - ay + 1) > double(slow.size())) {
+          for (std::size_t v : slow)
+            test(u, v);
+        } else {
+          for (long jx = ax; jx <= bx; ++jx)
+            for (long jy = ay; jy <= by; ++jy) {
+              const auto [b, e2] = z_range(jx, jy, pz[u] - reach, pz[u] + reach);
+              for (auto it = b; it != e2; ++it)
+                test(u, *it);
+            }
+        }
+      }
+      for (std::size_t g = std::size_t(f) + 1; g < fast.size(); ++g)
+        test(u, fast[g]);
+    }
+  }
+  std::vector<Hit> hits;
+  for (auto& v : found) {
+    hits.insert(hits.end(), v.begin(), v.end());
+    v = {};
+  }
+  for (std::size_t t : tested)
+    out.candidate_pairs += t;
   std::sort(hits.begin(), hits.end());
+
   std::vector<char> done(n, 0);
-  for (const auto& [t, ida, idb, i, j] : hits) {
+  for (const Hit& hit : hits) {
+    const std::size_t i = hit.i, j = hit.j;
+    const double t = hit.t;
     if (done[i] || done[j]) continue;
     done[i] = done[j] = 1;
     // the line of centres at contact
-    double nx = p.x[j] - p.x[i] + (p.vx[j] - p.vx[i]) * t;
-    double ny = p.y[j] - p.y[i] + (p.vy[j] - p.vy[i]) * t;
-    double nz = p.z[j] - p.z[i] + (p.vz[j] - p.vz[i]) * t;
-    const double nn = std::sqrt(nx * nx + ny * ny + nz * nz);
+    const double xi = p.x[i] + p.vx[i] * t, yi = p.y[i] + p.vy[i] * t, zi = p.z[i] + p.vz[i] * t;
+    const double xj = p.x[j] + p.vx[j] * t, yj = p.y[j] + p.vy[j] * t, zj = p.z[j] + p.vz[j] * t;
+    double nx2 = xj - xi, ny2 = yj - yi, nz2 = zj - zi;
+    const double nn = std::sqrt(nx2 * nx2 + ny2 * ny2 + nz2 * nz2);
     if (!(nn > 0)) continue;
-    nx /= nn, ny /= nn, nz /= nn;
+    nx2 /= nn, ny2 /= nn, nz2 /= nn;
     const double ux = p.vx[j] - p.vx[i], uy = p.vy[j] - p.vy[i], uz = p.vz[j] - p.vz[i];
-    const double un = ux * nx + uy * ny + uz * nz;
-    const double tx = ux - un * nx, ty = uy - un * ny, tz = uz - un * nz;
+    const double un = ux * nx2 + uy * ny2 + uz * nz2;
+    const double tx = ux - un * nx2, ty = uy - un * ny2, tz = uz - un * nz2;
     // new relative velocity: -e_n u_n n + e_t u_t
     const double en = c.normal_restitution, et = c.tangential_restitution;
-    const double wx = -en * un * nx + et * tx, wy = -en * un * ny + et * ty,
-                 wz = -en * un * nz + et * tz;
+    const double wx = -en * un * nx2 + et * tx, wy = -en * un * ny2 + et * ty,
+                 wz = -en * un * nz2 + et * tz;
     const double cx = 0.5 * (p.vx[i] + p.vx[j]), cy = 0.5 * (p.vy[i] + p.vy[j]),
                  cz = 0.5 * (p.vz[i] + p.vz[j]);
     const double before = 0.25 * (ux * ux + uy * uy + uz * uz),
@@ -99,6 +246,13 @@ CollisionPass collide_pairs(orbit::PhaseSpace& p, const CloudCollisions& c, doub
     p.vx[j] = cx + 0.5 * wx, p.vy[j] = cy + 0.5 * wy, p.vz[j] = cz + 0.5 * wz;
     ++out.collisions;
     out.energy_lost += before - after; // per unit mass: two clouds, each (1/2)(u/2)²
+    CollisionEvent ev;
+    ev.id_a = hit.ida, ev.id_b = hit.idb;
+    ev.t_myr = units::internal_to_myr(t);
+    ev.x = 0.5 * (xi + xj), ev.y = 0.5 * (yi + yj), ev.z = 0.5 * (zi + zj);
+    ev.vx = cx, ev.vy = cy, ev.vz = cz;
+    ev.approach_kms = -un;
+    out.events.push_back(ev);
   }
   return out;
 }

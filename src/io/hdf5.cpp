@@ -246,8 +246,10 @@ void write_doubles(const File& f, hid_t parent, const std::string& name,
   write_units(f, ds.id(), units, description);
 }
 void write_u64(const File& f, hid_t parent, const std::string& name,
-               const std::vector<std::uint64_t>& data, const std::string& description) {
-  write_array(f, parent, name, data.data(), data.size(), 1, H5T_NATIVE_UINT64, H5T_STD_U64LE);
+               const std::vector<std::uint64_t>& data, const std::string& description,
+               std::size_t cols) {
+  write_array(f, parent, name, data.data(), data.size() / cols, cols, H5T_NATIVE_UINT64,
+              H5T_STD_U64LE);
   Handle ds(H5Dopen2(parent, name.c_str(), H5P_DEFAULT), H5Dclose);
   write_units(f, ds.id(), "", description);
 }
@@ -282,8 +284,9 @@ std::vector<double> read_doubles(const File& f, hid_t parent, const std::string&
                                  std::size_t expect_cols, std::size_t* rows) {
   return read_array<double>(f, parent, name, H5T_NATIVE_DOUBLE, expect_cols, rows);
 }
-std::vector<std::uint64_t> read_u64(const File& f, hid_t parent, const std::string& name) {
-  return read_array<std::uint64_t>(f, parent, name, H5T_NATIVE_UINT64, 1, nullptr);
+std::vector<std::uint64_t> read_u64(const File& f, hid_t parent, const std::string& name,
+                                    std::size_t expect_cols) {
+  return read_array<std::uint64_t>(f, parent, name, H5T_NATIVE_UINT64, expect_cols, nullptr);
 }
 std::vector<std::uint32_t> read_u32(const File& f, hid_t parent, const std::string& name) {
   return read_array<std::uint32_t>(f, parent, name, H5T_NATIVE_UINT32, 1, nullptr);

@@ -34,7 +34,15 @@ void write_tracers(const h5::File& f, hid_t g, const Snapshot& s) {
   h5::write_doubles(f, g, "velocity", vel, 3, "km/s", "Galactocentric vx, vy, vz");
   h5::write_doubles(f, g, "birth_time", s.birth_time_myr, 1, "Myr", "time the tracer was made");
   h5::write_u32(f, g, "flags", s.flags,
-                "bit 0: beyond max_radius_kpc; bit 1: invariant error above 1e-6");
+                "bit 0: beyond max_radius_kpc; bit 1: invariant error above 1e-6; bit 2: a star "
+                "formed in the run");
+  if (!s.birth_position.empty()) {
+    h5::write_doubles(f, g, "birth_position", s.birth_position, 3, "kpc",
+                      "where the tracer was made: a star's birth collision, a cloud's start");
+    h5::write_u64(f, g, "parents", s.parents,
+                  "ids of the two clouds whose collision formed the star (clouds: 0, 0)", 2);
+    h5::set_attr(f, g, "next_star_id", s.next_star_id);
+  }
 }
 
 Snapshot read_tracers(const h5::File& f, hid_t g) {
@@ -57,6 +65,13 @@ Snapshot read_tracers(const h5::File& f, hid_t g) {
   s.flags = h5::read_u32(f, g, "flags");
   if (t.id.size() != n || s.birth_time_myr.size() != n || s.flags.size() != n)
     throw InputError(SourcePlace{f.path(), 0, 0, {}}, "snapshot datasets differ in length");
+  if (H5Lexists(g, "birth_position", H5P_DEFAULT) > 0) {
+    s.birth_position = h5::read_doubles(f, g, "birth_position", 3);
+    s.parents = h5::read_u64(f, g, "parents", 2);
+    s.next_star_id = std::uint64_t(h5::get_attr_int(f, g, "next_star_id"));
+    if (s.birth_position.size() != 3 * n || s.parents.size() != 2 * n)
+      throw InputError(SourcePlace{f.path(), 0, 0, {}}, "snapshot datasets differ in length");
+  }
   return s;
 }
 

@@ -83,7 +83,8 @@ using McLachlan = ode::symplectic_rkn_sb3a_mclachlan<Vec, Vec, double, Vec, Vec,
                                                      ode::default_operations, ode::always_resizer>;
 
 void advance_batch_symplectic(const Model& m, PhaseSpace& p, std::size_t first, std::size_t n,
-                              double t0, double dt, std::size_t steps, Method method) {
+                              double t0, double dt, std::size_t k0, std::size_t steps,
+                              Method method) {
   const bool extended = method == Method::mclachlan4;
   thread_local Vec q, v;
   q.resize(3 * n + (extended ? 1 : 0));
@@ -96,13 +97,13 @@ void advance_batch_symplectic(const Model& m, PhaseSpace& p, std::size_t first, 
     thread_local Verlet st;
     st.reset(); // no acceleration carried over from another batch
     const VerletSystem sys{f};
-    for (std::size_t k = 0; k < steps; ++k)
+    for (std::size_t k = k0; k < k0 + steps; ++k)
       st.do_step(sys, std::make_pair(std::ref(q), std::ref(v)), t0 + double(k) * dt, dt);
   } else {
     thread_local McLachlan st;
     const ExtendedSystem sys{f};
     v[3 * n] = 1.0;
-    for (std::size_t k = 0; k < steps; ++k) {
+    for (std::size_t k = k0; k < k0 + steps; ++k) {
       const double t = t0 + double(k) * dt;
       q[3 * n] = t;
       st.do_step(sys, std::make_pair(std::ref(q), std::ref(v)), t, dt);
@@ -206,7 +207,7 @@ bool advance(const Model& m, PhaseSpace& p, double t0_myr, double t1_myr,
         continue;
       }
       const std::size_t first = std::size_t(b) * s.batch, n = std::min(s.batch, N - first);
-      advance_batch_symplectic(m, p, first, n, t0, dt, steps, s.method);
+      advance_batch_symplectic(m, p, first, n, t0, dt, 0, steps, s.method);
       report(n);
     }
   } else {
@@ -224,6 +225,30 @@ bool advance(const Model& m, PhaseSpace& p, double t0_myr, double t1_myr,
         advance_orbit_adaptive(m, p, i, t0, t1, s);
       report(n);
     }
+  }
+  return !stopped;
+}
+
+bool advance_steps(const Model& m, PhaseSpace& p, double t0_myr, double t1_myr, std::size_t first,
+                   std::size_t count, const IntegrationSettings& s, const std::atomic<bool>* stop) {
+  if (!is_symplectic(s.method))
+    throw InputError("advance_steps needs a fixed-step method, not " + method_name(s.method));
+  const std::size_t N = p.size();
+  if (N == 0 || t0_myr == t1_myr || count == 0) return true;
+  if (s.batch == 0) throw InputError("batch size must be positive");
+  const std::size_t steps = steps_for(t0_myr, t1_myr, s.step_myr);
+  if (first + count > steps) throw InputError("advance_steps: steps beyond the segment");
+  const double dt = (t1_myr - t0_myr) / double(steps) / kMyr, t0 = t0_myr / kMyr;
+  const long nb = long((N + s.batch - 1) / s.batch);
+  bool stopped = false;
+#pragma omp parallel for schedule(dynamic, 1) reduction(|| : stopped)
+  for (long b = 0; b < nb; ++b) {
+    if (stop && stop->load()) {
+      stopped = true;
+      continue;
+    }
+    const std::size_t i0 = std::size_t(b) * s.batch, n = std::min(s.batch, N - i0);
+    advance_batch_symplectic(m, p, i0, n, t0, dt, first, count, s.method);
   }
   return !stopped;
 }

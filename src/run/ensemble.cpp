@@ -7,7 +7,7 @@
 #include <iostream>
 
 #include "undertow/error.hpp"
-#include "undertow/gas/sticky_clouds.hpp"
+#include "undertow/gas/cloud_gas.hpp"
 #include "undertow/io/text_file.hpp"
 #include "undertow/orbit/conserved.hpp"
 #include "undertow/orbit/frame.hpp"
@@ -46,15 +46,42 @@ orbit::PhaseSpace initial_tracers(const scenario::Scenario& s) {
   return p;
 }
 
-io::Snapshot snapshot_of(const orbit::PhaseSpace& p, double t, double birth, double rmax) {
+io::Snapshot snapshot_of(const gas::GasState& g, double t, double rmax, bool star_records) {
   io::Snapshot snap;
+  const auto& p = g.p;
   snap.time_myr = t;
   snap.tracers = p;
-  snap.birth_time_myr.assign(p.size(), birth);
+  snap.birth_time_myr = g.birth_time_myr;
   snap.flags.assign(p.size(), 0);
-  for (std::size_t i = 0; i < p.size(); ++i)
+  for (std::size_t i = 0; i < p.size(); ++i) {
     if (std::hypot(p.x[i], p.y[i], p.z[i]) > rmax) snap.flags[i] |= io::kFlagOutsideRange;
+    if (i >= g.clouds) snap.flags[i] |= io::kFlagStar;
+  }
+  if (star_records) {
+    snap.birth_position = g.birth_position;
+    snap.parents = g.parents;
+    snap.next_star_id = g.next_star_id;
+  }
   return snap;
+}
+
+// The state a part file holds: clouds (or collisionless tracers) first, then stars.
+gas::GasState state_of(io::Snapshot snap) {
+  gas::GasState g;
+  const std::size_t n = snap.tracers.size();
+  g.clouds = 0;
+  while (g.clouds < n && !(snap.flags[g.clouds] & io::kFlagStar))
+    ++g.clouds;
+  g.p = std::move(snap.tracers);
+  g.birth_time_myr = std::move(snap.birth_time_myr);
+  g.birth_position = std::move(snap.birth_position);
+  g.parents = std::move(snap.parents);
+  g.next_star_id = snap.next_star_id;
+  if (g.birth_position.empty()) { // a run without star formation: records as at the start
+    g.birth_position.resize(3 * n);
+    g.parents.assign(2 * n, 0);
+  }
+  return g;
 }
 
 class Progress {
@@ -88,38 +115,25 @@ private:
   clock::time_point t0_;
 };
 
-// Collision intervals of a segment: the segment split evenly into intervals no longer than
-// the scenario's, so collision times are fixed by the output times alone.
-std::size_t collision_intervals(const scenario::Scenario& s, double ta, double tb) {
-  return s.gas ? orbit::steps_for(ta, tb, s.gas->interval_myr) : 1;
-}
-
-// Start of collision interval j of n in [ta, tb]; j = n gives tb exactly.
-double interval_start(double ta, double tb, std::size_t j, std::size_t n) {
-  return j == n ? tb : ta + (tb - ta) * double(j) / double(n);
-}
-
 std::size_t fixed_steps(const scenario::Scenario& s, double ta, double tb) {
-  const std::size_t n = collision_intervals(s, ta, tb);
-  std::size_t steps = 0;
-  for (std::size_t j = 0; j < n; ++j)
-    steps += orbit::steps_for(interval_start(ta, tb, j, n), interval_start(ta, tb, j + 1, n),
-                              s.integration.step_myr);
-  return steps;
+  return orbit::steps_for(ta, tb, s.integration.step_myr);
 }
 
-// Advances one segment between output times; with [gas], in collision intervals each ended by
-// a collision pass.
-bool advance_segment(const scenario::Scenario& s, const gas::CircularFlow& flow,
-                     orbit::PhaseSpace& p, double ta, double tb, const orbit::ProgressFn& report,
-                     const std::atomic<bool>* stop) {
-  if (!s.gas) return orbit::advance(s.model, p, ta, tb, s.integration, report, stop);
-  const std::size_t n = collision_intervals(s, ta, tb);
+// Advances one segment between output times; with [gas], step by step, each step begun by the
+// gas's collisions, stirring and star formation over it.
+bool advance_segment(const scenario::Scenario& s, const gas::CircularFlow& flow, gas::GasState& g,
+                     double ta, double tb, const orbit::ProgressFn& report,
+                     const std::atomic<bool>* stop, EnsembleResult& res) {
+  if (!s.gas) return orbit::advance(s.model, g.p, ta, tb, s.integration, report, stop);
+  const std::size_t n = fixed_steps(s, ta, tb);
   for (std::size_t j = 0; j < n; ++j) {
-    const double t0 = interval_start(ta, tb, j, n), t1 = interval_start(ta, tb, j + 1, n);
-    const auto sub = [&](std::size_t done) { report((j * p.size() + done) / n); };
-    if (!orbit::advance(s.model, p, t0, t1, s.integration, sub, stop)) return false;
-    (void)gas::collide(p, flow, *s.gas);
+    const double t0 = ta + (tb - ta) * double(j) / double(n);
+    const double t1 = j + 1 == n ? tb : ta + (tb - ta) * double(j + 1) / double(n);
+    const auto step = gas::gas_step(g, *s.gas, flow, t0, t1 - t0, s.seed);
+    res.collisions += step.collisions;
+    res.stars_formed += step.stars_formed;
+    if (!orbit::advance_steps(s.model, g.p, ta, tb, j, 1, s.integration, stop)) return false;
+    report((j + 1) * g.p.size() / n);
   }
   return true;
 }
@@ -136,8 +150,8 @@ EnsembleResult run_ensemble(const scenario::Scenario& s, const EnsembleOptions& 
   if (o.restart && fs::exists(dir)) fs::remove_all(dir);
   std::size_t have = 0; // whole parts present
   EnsembleResult res;
-  orbit::PhaseSpace p;
-  const double birth = s.start_myr;
+  gas::GasState g;
+  const bool star_records = s.gas && s.gas->stars;
   if (fs::exists(dir)) {
     if (!fs::exists(id_file) || io::read_text_file(id_file) != identity(s))
       throw InputError(SourcePlace{dir, 0, 0, {}},
@@ -147,7 +161,7 @@ EnsembleResult run_ensemble(const scenario::Scenario& s, const EnsembleOptions& 
       if (e.path().filename().string().rfind(".part_", 0) == 0) fs::remove(e.path());
     while (have < times.size() && fs::exists(part_name(dir, have))) {
       try {
-        p = io::read_snapshot_part(part_name(dir, have)).tracers; // a damaged part is redone
+        g = state_of(io::read_snapshot_part(part_name(dir, have))); // a damaged part is redone
       } catch (const InputError&) {
         fs::remove(part_name(dir, have));
         break;
@@ -156,14 +170,15 @@ EnsembleResult run_ensemble(const scenario::Scenario& s, const EnsembleOptions& 
     }
   }
   if (have == 0) {
-    p = initial_tracers(s); // all input is checked before anything is written
+    g = gas::GasState::of_clouds(initial_tracers(s), s.start_myr); // input checked first
     const bool fresh = !fs::exists(dir);
     try {
       std::error_code ec;
       fs::create_directories(dir, ec);
       if (ec) throw InputError(SourcePlace{dir, 0, 0, {}}, "cannot create folder: " + ec.message());
       io::write_text_file(id_file, identity(s));
-      io::write_snapshot_part(part_name(dir, 0), snapshot_of(p, times[0], birth, s.max_radius_kpc));
+      io::write_snapshot_part(part_name(dir, 0),
+                              snapshot_of(g, times[0], s.max_radius_kpc, star_records));
     } catch (...) {
       std::error_code ec;
       if (fresh) fs::remove_all(dir, ec); // leave nothing behind
@@ -171,28 +186,29 @@ EnsembleResult run_ensemble(const scenario::Scenario& s, const EnsembleOptions& 
     }
     have = 1;
   } else {
-    // p holds the last whole part, read while checking the parts
+    // g holds the last whole part, read while checking the parts
     if (o.log && have < times.size())
       *o.log << "resuming from t = " << times[have - 1] << " Myr (" << have << " of "
              << times.size() << " snapshots on disk)\n";
   }
-  res.tracers = p.size();
+  res.tracers = g.p.size();
   const gas::CircularFlow flow =
-      s.gas ? gas::CircularFlow(s.model, 1.5 * s.gas->extent_kpc) : gas::CircularFlow();
-  Progress prog(o.progress, p.size(), times.size() - 1);
+      s.gas ? gas::CircularFlow(s.model, std::min(1.5 * s.gas->collisions.extent_kpc, 200.0))
+            : gas::CircularFlow();
+  Progress prog(o.progress, g.p.size(), times.size() - 1);
   for (std::size_t k = have; k < times.size(); ++k) {
     const double ta = times[k - 1], tb = times[k];
     const std::size_t steps =
         orbit::is_symplectic(s.integration.method) ? fixed_steps(s, ta, tb) : 0;
     const auto report = [&](std::size_t done) { prog.update(k - 1, done, ta, tb, steps); };
-    if (!advance_segment(s, flow, p, ta, tb, report, o.stop)) {
+    if (!advance_segment(s, flow, g, ta, tb, report, o.stop, res)) {
       prog.finish();
       res.reached_myr = ta;
       res.seconds = prog.seconds();
       return res; // interrupted: the parts on disk are whole; rerun to resume
     }
-    res.orbit_steps += double(p.size()) * double(steps);
-    io::write_snapshot_part(part_name(dir, k), snapshot_of(p, tb, birth, s.max_radius_kpc));
+    res.orbit_steps += double(g.p.size()) * double(steps);
+    io::write_snapshot_part(part_name(dir, k), snapshot_of(g, tb, s.max_radius_kpc, star_records));
     if (o.on_snapshot) o.on_snapshot(tb);
   }
   prog.finish();
@@ -202,7 +218,8 @@ EnsembleResult run_ensemble(const scenario::Scenario& s, const EnsembleOptions& 
   io::Diagnostics d;
   if (s.gas) {
     d.invariant = "none";
-    d.note = "the tracers are gas clouds that collide inelastically ([gas]): energy is not kept";
+    d.note = "the tracers are gas clouds that collide inelastically and are stirred ([gas]): "
+             "energy is not kept";
   } else if (inv.kind == orbit::Invariant::Kind::none) {
     d.invariant = "none";
     d.note = inv.why_none;
@@ -210,13 +227,13 @@ EnsembleResult run_ensemble(const scenario::Scenario& s, const EnsembleOptions& 
     d.invariant = inv.kind == orbit::Invariant::Kind::energy ? "energy" : "jacobi";
     const auto first = io::read_snapshot_part(part_name(dir, 0)).tracers;
     const auto rel = orbit::relative_errors(orbit::evaluate(inv, s.model, first, s.start_myr),
-                                            orbit::evaluate(inv, s.model, p, s.end_myr));
+                                            orbit::evaluate(inv, s.model, g.p, s.end_myr));
     const auto sum = orbit::summarise(rel, 5);
     d.relative_error = rel;
     d.median = sum.median;
     d.max = sum.max;
     for (std::size_t i = 0; i < sum.worst.size(); ++i) {
-      d.worst_ids.push_back(p.id[sum.worst[i]]);
+      d.worst_ids.push_back(g.p.id[sum.worst[i]]);
       d.worst_errors.push_back(sum.worst_error[i]);
     }
   }
@@ -239,6 +256,7 @@ EnsembleResult run_ensemble(const scenario::Scenario& s, const EnsembleOptions& 
                orbit::method_name(s.integration.method), parts, d, transform);
   fs::remove_all(dir);
   res.complete = true;
+  res.stars = g.stars();
   res.reached_myr = s.end_myr;
   res.seconds = prog.seconds();
   res.diagnostics = std::move(d);

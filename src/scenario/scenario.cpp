@@ -104,19 +104,42 @@ void read_integration(Scenario& s, const TableReader& r) {
 }
 
 void read_gas(Scenario& s, const TableReader& r) {
-  r.check_keys({"cell_kpc", "interval_myr", "restitution", "extent_kpc"});
-  gas::StickyClouds c;
-  c.cell_kpc = r.number_or("cell_kpc", c.cell_kpc);
-  c.interval_myr = r.number_or("interval_myr", c.interval_myr);
-  c.restitution = r.number_or("restitution", c.restitution);
-  c.extent_kpc = r.number_or("extent_kpc", c.extent_kpc);
+  r.check_keys({"cloud_radius_kpc", "normal_restitution", "tangential_restitution",
+                "stirring_kms", "extent_kpc", "stars"});
+  gas::GasSettings g;
+  auto& c = g.collisions;
+  c.radius_kpc = r.number_or("cloud_radius_kpc", c.radius_kpc);
+  c.normal_restitution = r.number_or("normal_restitution", c.normal_restitution);
+  c.tangential_restitution = r.number_or("tangential_restitution", c.tangential_restitution);
+  c.extent_kpc = r.number_or("extent_kpc", 20.0);
+  g.stirring_kms = r.number_or("stirring_kms", g.stirring_kms);
   at_keys(r, [&] {
-    c.validate();
+    try {
+      g.collisions.validate();
+    } catch (detail::ParameterError& e) {
+      if (e.key == "radius_kpc") e.key = "cloud_radius_kpc";
+      throw;
+    }
+    detail::non_negative(g.stirring_kms, "stirring_kms");
     return 0;
   });
+  if (const toml::table* t = r.table("stars")) {
+    const TableReader q(*t, s.path, "gas.stars");
+    q.check_keys({"threshold_kms", "efficiency", "dispersion_kms", "max_age_myr"});
+    gas::StarFormation f;
+    f.threshold_kms = q.number_or("threshold_kms", f.threshold_kms);
+    f.efficiency = q.number_or("efficiency", f.efficiency);
+    f.dispersion_kms = q.number_or("dispersion_kms", f.dispersion_kms);
+    f.max_age_myr = q.number_or("max_age_myr", f.max_age_myr);
+    at_keys(q, [&] {
+      f.validate();
+      return 0;
+    });
+    g.stars = f;
+  }
   if (!orbit::is_symplectic(s.integration.method))
     r.fail("", "colliding clouds need a fixed-step method (leapfrog or mclachlan4)");
-  s.gas = c;
+  s.gas = g;
 }
 
 void read_output(Scenario& s, const TableReader& r) {

@@ -19,7 +19,7 @@ CostGuess guess_cost(const scenario::Scenario& s) {
   c.orbit_steps = tracers * steps;
   c.core_seconds = c.orbit_steps * per_step / leapfrog_rate;
   if (s.gas) {
-    c.gas_cloud_passes = tracers * std::ceil(span / s.gas->interval_myr);
+    c.gas_cloud_passes = tracers * steps; // a collision pass every step
     c.core_seconds += c.gas_cloud_passes / gas_rate;
   }
   // Each snapshot holds position and velocity (6 doubles) and a few per-tracer columns.

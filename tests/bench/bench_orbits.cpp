@@ -12,7 +12,6 @@
 #include <string>
 
 #include "undertow/dynamics/frequencies.hpp"
-#include "undertow/gas/sticky_clouds.hpp"
 #include "undertow/orbit/conserved.hpp"
 #include "undertow/orbit/integrator.hpp"
 #include "undertow/potential/model_file.hpp"
@@ -197,25 +196,8 @@ void BM_mclachlan4_batch_1gyr(benchmark::State& st) {
   omp_set_num_threads(2);
 }
 
-// One sticky-cloud collision pass over 100 000 clouds of the demo's gas disk (cells of
-// 0.15 kpc), to set against the leapfrog steps between passes: figures in clouds per second.
-void BM_gas_collision_pass(benchmark::State& st) {
-  const auto m = demo(false);
-  auto p = disk(m, std::size_t(st.range(0)));
-  const gas::CircularFlow flow(m, 30);
-  gas::StickyClouds s;
-  s.cell_kpc = 0.15;
-  for (auto _ : st) {
-    const auto sum = gas::collide(p, flow, s);
-    benchmark::DoNotOptimize(sum.energy_lost);
-  }
-  st.counters["clouds/s"] =
-      benchmark::Counter(double(st.iterations()) * double(p.size()), benchmark::Counter::kIsRate);
-}
-
 } // namespace
 
-BENCHMARK(BM_gas_collision_pass)->Arg(100000)->Unit(benchmark::kMillisecond)->UseRealTime();
 BENCHMARK(BM_leapfrog_axisymmetric_4096)->Unit(benchmark::kMillisecond);
 BENCHMARK(BM_leapfrog_spiral_4096)->Unit(benchmark::kMillisecond);
 BENCHMARK(BM_leapfrog_spiral_threads)->Arg(1)->Arg(2)->Unit(benchmark::kMillisecond)->UseRealTime();

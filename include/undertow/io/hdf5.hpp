@@ -66,12 +66,14 @@ void write_doubles(const File& f, hid_t parent, const std::string& name,
                    const std::vector<double>& data, std::size_t cols, const std::string& units,
                    const std::string& description);
 void write_u64(const File& f, hid_t parent, const std::string& name,
-               const std::vector<std::uint64_t>& data, const std::string& description);
+               const std::vector<std::uint64_t>& data, const std::string& description,
+               std::size_t cols = 1);
 void write_u32(const File& f, hid_t parent, const std::string& name,
                const std::vector<std::uint32_t>& data, const std::string& description);
 std::vector<double> read_doubles(const File& f, hid_t parent, const std::string& name,
                                  std::size_t expect_cols, std::size_t* rows = nullptr);
-std::vector<std::uint64_t> read_u64(const File& f, hid_t parent, const std::string& name);
+std::vector<std::uint64_t> read_u64(const File& f, hid_t parent, const std::string& name,
+                                    std::size_t expect_cols = 1);
 std::vector<std::uint32_t> read_u32(const File& f, hid_t parent, const std::string& name);
 std::string dataset_units(const File& f, hid_t parent, const std::string& name);
 

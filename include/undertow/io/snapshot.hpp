@@ -28,11 +28,16 @@ struct Snapshot {
   orbit::PhaseSpace tracers;
   std::vector<double> birth_time_myr;
   std::vector<std::uint32_t> flags;
+  // Runs with star formation ([gas.stars]) only; empty otherwise.
+  std::vector<double> birth_position; // 3 per tracer, kpc (clouds: where they started)
+  std::vector<std::uint64_t> parents; // 2 per tracer: the colliding clouds' ids (clouds: 0, 0)
+  std::uint64_t next_star_id = 0;     // the id the next star will get
 };
 
 // Flag bits per tracer.
 inline constexpr std::uint32_t kFlagOutsideRange = 1u << 0; // beyond max_radius_kpc
 inline constexpr std::uint32_t kFlagLargeError = 1u << 1;   // invariant error above 1e-6
+inline constexpr std::uint32_t kFlagStar = 1u << 2;         // a star formed in the run's gas
 
 void write_snapshot_part(const std::string& path, const Snapshot& s);
 Snapshot read_snapshot_part(const std::string& path);

@@ -36,6 +36,14 @@ bool advance(const potential::Model& m, PhaseSpace& p, double t0_myr, double t1_
              const IntegrationSettings& s, const ProgressFn& progress = {},
              const std::atomic<bool>* stop = nullptr);
 
+// Fixed-step methods only: the steps [first, first + count) of the steps_for(t0, t1) steps that
+// advance() takes from t0 to t1, with the same arithmetic, so that a segment advanced a few
+// steps at a time (with the gas's collisions in between) gives the bits of one advance() where
+// nothing happens in between and the model does not change with time.
+bool advance_steps(const potential::Model& m, PhaseSpace& p, double t0_myr, double t1_myr,
+                   std::size_t first, std::size_t count, const IntegrationSettings& s,
+                   const std::atomic<bool>* stop = nullptr);
+
 // Number of fixed steps used for a segment, and their length.
 std::size_t steps_for(double t0_myr, double t1_myr, double step_myr);
 

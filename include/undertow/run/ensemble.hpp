@@ -29,6 +29,9 @@ struct EnsembleResult {
   std::size_t tracers = 0;
   double seconds = 0;
   double orbit_steps = 0; // fixed-step methods only
+  // [gas] runs, over the segments integrated by this call (not those resumed from disk)
+  std::size_t collisions = 0, stars_formed = 0;
+  std::size_t stars = 0; // alive at the end
   io::Diagnostics diagnostics;
 };
 

@@ -9,7 +9,7 @@
 #include <vector>
 
 #include "undertow/fit/distance_prior.hpp"
-#include "undertow/gas/sticky_clouds.hpp"
+#include "undertow/gas/cloud_gas.hpp"
 #include "undertow/observe/observation_file.hpp"
 #include "undertow/orbit/integrator.hpp"
 #include "undertow/potential/model.hpp"
@@ -68,7 +68,7 @@ struct Scenario {
   std::string model_text; // verbatim text of that file (or empty)
   potential::Model model;
   TracerSource tracers;
-  std::optional<gas::StickyClouds> gas; // [gas]: the tracers are colliding gas clouds
+  std::optional<gas::GasSettings> gas; // [gas]: the tracers are colliding gas clouds
   orbit::IntegrationSettings integration;
   double start_myr = 0, end_myr = 0;
   double max_radius_kpc = 500; // tracers outside are refused at the start and flagged later

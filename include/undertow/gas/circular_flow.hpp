@@ -1,0 +1,34 @@
+#pragma once
+// The local circular flow: v_c(R) of a model's axisymmetric part, tabulated, in the sense of
+// Galactic rotation (clockwise seen from the north Galactic pole). The collision search uses it
+// as a reference velocity field of known Lipschitz constant: clouds that move with it are
+// neighbours for a whole step, so only their speed relative to it sets the search radius.
+#include <vector>
+
+#include "undertow/potential/model.hpp"
+
+namespace undertow::gas {
+
+class CircularFlow {
+public:
+  CircularFlow() = default; // no flow: the field is zero everywhere
+  CircularFlow(const potential::Model& m, double r_max_kpc, double dr_kpc = 0.01);
+  // From a table: v_c (km/s) at R = k dr_kpc, k = 0, 1, ...
+  CircularFlow(std::vector<double> vc_kms, double dr_kpc);
+
+  // (vx, vy) of the flow at (x, y), km/s; linear in R between table points, the last value
+  // beyond the table (so the field is continuous everywhere).
+  void at(double x, double y, double& vx, double& vy) const;
+  // The same flow with v_c(R) capped at k_max R, so that its Lipschitz constant is at most
+  // about k_max even where a cusped bulge makes v_c / R unbounded.
+  CircularFlow capped(double k_max_kms_kpc) const;
+  // max over R of max(|dv_c/dR|, v_c / R): the singular values of the field's Jacobian, so
+  // |V(a) - V(b)| <= lipschitz() |a - b| (km/s per kpc).
+  double lipschitz() const;
+
+private:
+  std::vector<double> vc_; // at R = k * dr
+  double dr_ = 0;
+};
+
+} // namespace undertow::gas

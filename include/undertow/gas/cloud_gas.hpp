@@ -1,0 +1,47 @@
+#pragma once
+// The gas of a run: finite-size clouds that collide pairwise (cloud_collisions), are stirred
+// back to warmth (stirring) and form stars in their collisions (star_formation). The stars then
+// orbit collisionlessly alongside the clouds. One step at time t, before the orbits advance by
+// dt: collisions over the coming dt, stars from them, stirring, and the retirement of stars
+// older than the star-formation rule's maximum age.
+#include <cstdint>
+#include <optional>
+#include <vector>
+
+#include "undertow/gas/circular_flow.hpp"
+#include "undertow/gas/cloud_collisions.hpp"
+#include "undertow/gas/star_formation.hpp"
+#include "undertow/orbit/phase_space.hpp"
+
+namespace undertow::gas {
+
+struct GasSettings {
+  CloudCollisions collisions;
+  double stirring_kms = 0.6; // per component, per √Myr (stirring.hpp)
+  std::optional<StarFormation> stars;
+  void validate() const; // throws detail::ParameterError naming the key
+};
+
+// Clouds first, in their starting order, then the stars in order of birth.
+struct GasState {
+  orbit::PhaseSpace p;
+  std::size_t clouds = 0;
+  std::vector<double> birth_time_myr; // per entry (clouds: the start of the run)
+  std::vector<double> birth_position; // 3 per entry, kpc (clouds: where they started)
+  std::vector<std::uint64_t> parents; // 2 per entry (clouds: 0, 0)
+  std::uint64_t next_star_id = 0;     // ids of stars continue after the largest cloud id
+
+  // A state of clouds only, born at t.
+  static GasState of_clouds(orbit::PhaseSpace clouds, double t_myr);
+  std::size_t stars() const { return p.size() - clouds; }
+};
+
+struct StepReport {
+  std::size_t collisions = 0, candidate_pairs = 0, stars_formed = 0, stars_retired = 0;
+  double energy_lost = 0; // (km/s)² per unit cloud mass
+};
+
+StepReport gas_step(GasState& g, const GasSettings& s, const CircularFlow& flow, double t_myr,
+                    double dt_myr, std::uint64_t seed);
+
+} // namespace undertow::gas
