@@ -163,8 +163,8 @@ int run_residuals(const ResidualArgs& a) {
   double parallax_offset = a.parallax_offset;
   std::optional<potential::Model> model;
   if (!a.galactic_from.empty()) {
-    for (const char* o : {"--model", "--flat", "--slope", "--r0", "--z-sun", "--theta0",
-                          "--solar-motion"})
+    for (const char* o :
+         {"--model", "--flat", "--slope", "--r0", "--z-sun", "--theta0", "--solar-motion"})
       if (a.cmd->count(o))
         throw InputError(std::string(o) + " cannot be combined with --galactic-from (the fit "
                                           "gives the Galactic parameters)");
@@ -246,8 +246,7 @@ int run_residuals(const ResidualArgs& a) {
              detail::num(a.distance_range[1]) + "] kpc)")
                 .c_str()
           : "",
-      parallax_offset, lsr_name.c_str(), s.draws,
-      static_cast<unsigned long long>(s.seed));
+      parallax_offset, lsr_name.c_str(), s.draws, static_cast<unsigned long long>(s.seed));
   const std::string prefix =
       a.prefix.empty() ? std::filesystem::path(a.catalog).stem().string() + "-residuals" : a.prefix;
   const auto files = residuals::write_report(prefix, res, sum, settings);
@@ -290,10 +289,13 @@ int run_observe(const ObserveArgs& a) {
             << " tracers inside the selection volume, " << mock.rejected_snr
             << " below the parallax signal-to-noise limit, " << mock.rejected_parallax
             << " outside the observed-parallax range"
-            << (spec.settings.young
-                    ? ", weighted as young sources over " +
-                          undertow::detail::num(spec.settings.young->age_window_myr) + " Myr"
-                    : std::string())
+            << (!spec.settings.young ? std::string()
+                : spec.settings.young->star_age_myr
+                    ? ", stars " + undertow::detail::num((*spec.settings.young->star_age_myr)[0]) +
+                          " to " + undertow::detail::num((*spec.settings.young->star_age_myr)[1]) +
+                          " Myr old"
+                    : ", weighted as young sources over " +
+                          undertow::detail::num(spec.settings.young->age_window_myr) + " Myr")
             << ")\n";
   return 0;
 }
@@ -400,8 +402,9 @@ int main(int argc, char** argv) {
       ->expected(2)
       ->delimiter(',')
       ->capture_default_str();
-  rs->add_option("--disk-scales", ra.disk_scales, "HR,HZ: scale length and height of the disk "
-                                                  "prior, kpc")
+  rs->add_option("--disk-scales", ra.disk_scales,
+                 "HR,HZ: scale length and height of the disk "
+                 "prior, kpc")
       ->expected(2)
       ->delimiter(',')
       ->capture_default_str();
@@ -462,8 +465,9 @@ int main(int argc, char** argv) {
       ->required()
       ->expected(2, 1000);
   std::string versus_out;
-  vs->add_option("-o,--output", versus_out,
-                 "Also write the table as STEM.csv, .md, .tex and .h5 (always to stdout as Markdown)");
+  vs->add_option(
+      "-o,--output", versus_out,
+      "Also write the table as STEM.csv, .md, .tex and .h5 (always to stdout as Markdown)");
 
   undertow::cli::FitArgs fit;
   undertow::cli::add_fit_command(app, fit);

@@ -24,7 +24,7 @@ CircularFlow::CircularFlow(std::vector<double> vc_kms, double dr_kpc)
 void CircularFlow::at(double x, double y, double& vx, double& vy) const {
   vx = vy = 0;
   if (vc_.empty()) return;
-  const double R = std::hypot(x, y);
+  const double R = std::sqrt(x * x + y * y);
   if (!(R > 0)) return;
   const double u = R / dr_;
   double vc;

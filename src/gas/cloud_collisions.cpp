@@ -76,32 +76,34 @@ CollisionPass collide_pairs(orbit::PhaseSpace& p, const CloudCollisions& c, doub
   const std::size_t m = active.size();
   if (m < 2) return out;
   std::vector<double> px(m), py(m), pz(m), s(m);
+#pragma omp parallel for schedule(static)
   for (std::size_t k = 0; k < m; ++k) {
     const std::size_t i = active[k];
     double fx, fy;
     ref.at(p.x[i], p.y[i], fx, fy);
-    const double w = std::hypot(p.vx[i] - fx, p.vy[i] - fy, p.vz[i]);
+    const double wx = p.vx[i] - fx, wy = p.vy[i] - fy,
+                 w = std::sqrt(wx * wx + wy * wy + p.vz[i] * p.vz[i]);
     s[k] = (a + cm * w) / shrink * (1 + 1e-9); // widened by round-off: the exact test decides
     px[k] = p.x[i] + p.vx[i] * dt / 2, py[k] = p.y[i] + p.vy[i] * dt / 2;
     pz[k] = p.z[i] + p.vz[i] * dt / 2;
   }
 
   // Cells of side h = twice the largest search radius of all but the fastest clouds, and no
-  // more (x, y) columns than about 4 per cloud.
+  // more (x, y) columns than about 1 per cloud.
   const std::size_t n_fast_max = std::max<std::size_t>(64, m / 1000);
   std::vector<double> sorted_s = s;
   const std::size_t q = m > n_fast_max ? m - n_fast_max - 1 : 0;
   std::nth_element(sorted_s.begin(), sorted_s.begin() + long(q), sorted_s.end());
   double h = 2 * sorted_s[q];
   double x0, x1, y0, y1;
-  for (int tries = 0;; ++tries) { // the slow clouds' box, and at most ~4 columns per cloud in it
+  for (int tries = 0;; ++tries) { // the slow clouds' box, and at most ~1 column per cloud in it
     x0 = y0 = INFINITY, x1 = y1 = -INFINITY;
     for (std::size_t k = 0; k < m; ++k)
       if (2 * s[k] <= h) {
         x0 = std::min(x0, px[k]), x1 = std::max(x1, px[k]);
         y0 = std::min(y0, py[k]), y1 = std::max(y1, py[k]);
       }
-    const double h_min = std::sqrt((x1 - x0) * (y1 - y0) / (4.0 * double(m) + 1024));
+    const double h_min = std::sqrt((x1 - x0) * (y1 - y0) / (double(m) + 1024));
     if (h >= h_min || tries == 8) break;
     h = h_min;
   }
@@ -131,16 +133,14 @@ CollisionPass collide_pairs(orbit::PhaseSpace& p, const CloudCollisions& c, doub
   for (long c2 = 0; c2 < ncol; ++c2)
     std::sort(order.begin() + long(start[std::size_t(c2)]),
               order.begin() + long(start[std::size_t(c2) + 1]), by_z);
-  // The entries of column (ix, iy) with z in [lo, hi].
-  const auto z_range = [&](long ix, long iy, double lo, double hi) {
-    const std::size_t c2 = std::size_t(ix * ny + iy);
-    const auto b = order.begin() + long(start[c2]), e = order.begin() + long(start[c2 + 1]);
-    const auto first =
-        std::lower_bound(b, e, lo, [&](std::size_t k, double z) { return pz[k] < z; });
-    const auto last =
-        std::upper_bound(first, e, hi, [&](double z, std::size_t k) { return z < pz[k]; });
-    return std::pair{first, last};
-  };
+  // The slow clouds' mid-points and radii in column order, so the sweep reads memory in order.
+  const std::size_t ns = order.size();
+  std::vector<double> cx(ns), cy(ns), cz(ns), cs(ns);
+#pragma omp parallel for schedule(static)
+  for (std::size_t e = 0; e < ns; ++e) {
+    const std::size_t k = order[e];
+    cx[e] = px[k], cy[e] = py[k], cz[e] = pz[k], cs[e] = s[k];
+  }
 
   std::vector<std::vector<Hit>> found;
   std::vector<std::size_t> tested;
@@ -152,11 +152,9 @@ CollisionPass collide_pairs(orbit::PhaseSpace& p, const CloudCollisions& c, doub
       tested.assign(found.size(), 0);
     }
     std::vector<Hit>& mine = found[std::size_t(omp_get_thread_num())];
-    std::size_t& my_tests = tested[std::size_t(omp_get_thread_num())];
-    const auto test = [&](std::size_t u, std::size_t v) {
-      const double dx = px[v] - px[u], dy = py[v] - py[u], dz = pz[v] - pz[u];
-      const double reach = s[u] + s[v];
-      if (dx * dx + dy * dy + dz * dz > reach * reach) return;
+    std::size_t my_tests = 0;
+    // the exact test of active clouds u, v (indices into `active`)
+    const auto exact = [&](std::size_t u, std::size_t v) {
       ++my_tests;
       const std::size_t i = active[u], j = active[v];
       double t;
@@ -164,22 +162,30 @@ CollisionPass collide_pairs(orbit::PhaseSpace& p, const CloudCollisions& c, doub
         mine.push_back({t, std::min(p.id[i], p.id[j]), std::max(p.id[i], p.id[j]), i, j});
     };
     // Slow with slow: the column itself (later in z order) and four of its eight neighbours,
-    // so that each pair is met once.
+    // so that each pair is met once; columns hold a few clouds, scanned in z order.
 #pragma omp for schedule(dynamic, 1024)
     for (long c2 = 0; c2 < ncol; ++c2) {
       const long ix = c2 / ny, iy = c2 % ny;
-      for (std::size_t e = start[std::size_t(c2)]; e < start[std::size_t(c2) + 1]; ++e) {
-        const std::size_t u = order[e];
-        for (std::size_t f = e + 1; f < start[std::size_t(c2) + 1] && pz[order[f]] <= pz[u] + h;
-             ++f)
-          test(u, order[f]);
+      const std::size_t end = start[std::size_t(c2) + 1];
+      for (std::size_t e = start[std::size_t(c2)]; e < end; ++e) {
+        const double zx = cz[e];
+        const auto near = [&](std::size_t f) {
+          const double dx = cx[f] - cx[e], dy = cy[f] - cy[e], dz = cz[f] - zx;
+          const double reach = cs[e] + cs[f];
+          if (dx * dx + dy * dy + dz * dz <= reach * reach) exact(order[e], order[f]);
+        };
+        for (std::size_t f = e + 1; f < end && cz[f] <= zx + h; ++f)
+          near(f);
         static constexpr long half[4][2] = {{1, -1}, {1, 0}, {1, 1}, {0, 1}};
         for (const auto& d : half) {
           const long jx = ix + d[0], jy = iy + d[1];
           if (jx >= nx || jy < 0 || jy >= ny) continue;
-          const auto [b, e2] = z_range(jx, jy, pz[u] - h, pz[u] + h);
-          for (auto it = b; it != e2; ++it)
-            test(u, *it);
+          const std::size_t c3 = std::size_t(jx * ny + jy);
+          for (std::size_t f = start[c3]; f < start[c3 + 1]; ++f) {
+            if (cz[f] < zx - h) continue;
+            if (cz[f] > zx + h) break;
+            near(f);
+          }
         }
       }
     }
@@ -188,26 +194,36 @@ CollisionPass collide_pairs(orbit::PhaseSpace& p, const CloudCollisions& c, doub
     for (long f = 0; f < long(fast.size()); ++f) {
       const std::size_t u = fast[std::size_t(f)];
       const double reach = s[u] + h / 2;
+      const auto near = [&](std::size_t e) {
+        const double dx = cx[e] - px[u], dy = cy[e] - py[u], dz = cz[e] - pz[u];
+        const double r2 = s[u] + cs[e];
+        if (dx * dx + dy * dy + dz * dz <= r2 * r2) exact(u, order[e]);
+      };
       const long ax = std::max(0L, long(std::floor((px[u] - reach - x0) / h))),
                  bx = std::min(nx - 1, long(std::floor((px[u] + reach - x0) / h))),
                  ay = std::max(0L, long(std::floor((py[u] - reach - y0) / h))),
                  by = std::min(ny - 1, long(std::floor((py[u] + reach - y0) / h)));
       if (ax <= bx && ay <= by) {
-        if (double(bx - ax + 1) * double(by - ay + 1) > double(slow.size())) {
-          for (std::size_t v : slow)
-            test(u, v);
+        if (double(bx - ax + 1) * double(by - ay + 1) > double(ns)) {
+          for (std::size_t e = 0; e < ns; ++e)
+            near(e);
         } else {
           for (long jx = ax; jx <= bx; ++jx)
             for (long jy = ay; jy <= by; ++jy) {
-              const auto [b, e2] = z_range(jx, jy, pz[u] - reach, pz[u] + reach);
-              for (auto it = b; it != e2; ++it)
-                test(u, *it);
+              const std::size_t c3 = std::size_t(jx * ny + jy);
+              for (std::size_t e = start[c3]; e < start[c3 + 1]; ++e)
+                if (cz[e] >= pz[u] - reach && cz[e] <= pz[u] + reach) near(e);
             }
         }
       }
-      for (std::size_t g = std::size_t(f) + 1; g < fast.size(); ++g)
-        test(u, fast[g]);
+      for (std::size_t g = std::size_t(f) + 1; g < fast.size(); ++g) {
+        const std::size_t v = fast[g];
+        const double dx = px[v] - px[u], dy = py[v] - py[u], dz = pz[v] - pz[u];
+        const double r2 = s[u] + s[v];
+        if (dx * dx + dy * dy + dz * dz <= r2 * r2) exact(u, v);
+      }
     }
+    tested[std::size_t(omp_get_thread_num())] = my_tests;
   }
   std::vector<Hit> hits;
   for (auto& v : found) {

@@ -1,7 +1,9 @@
 #include "undertow/gas/cloud_gas.hpp"
 
 #include <algorithm>
+#include <cmath>
 #include <stdexcept>
+#include <utility>
 
 #include "undertow/detail/kernel.hpp"
 #include "undertow/gas/stirring.hpp"
@@ -32,12 +34,58 @@ GasState GasState::of_clouds(orbit::PhaseSpace clouds, double t_myr) {
     throw std::invalid_argument("a cloud id of 2^64 - 1 leaves no ids for stars");
   g.next_star_id = n > 0 ? top + 1 : 0;
   g.p = std::move(clouds);
+  g.slot.resize(n);
+  for (std::size_t i = 0; i < n; ++i)
+    g.slot[i] = i;
   return g;
+}
+
+namespace {
+// Entry i of the result is entry perm[i] of g, for the clouds; the stars stay as they are.
+GasState permuted(const GasState& g, const std::vector<std::size_t>& perm) {
+  GasState o = g;
+  const std::size_t n = g.clouds;
+  for (std::size_t i = 0; i < n; ++i) {
+    const std::size_t k = perm[i];
+    o.p.id[i] = g.p.id[k];
+    o.p.x[i] = g.p.x[k], o.p.y[i] = g.p.y[k], o.p.z[i] = g.p.z[k];
+    o.p.vx[i] = g.p.vx[k], o.p.vy[i] = g.p.vy[k], o.p.vz[i] = g.p.vz[k];
+    o.birth_time_myr[i] = g.birth_time_myr[k];
+    for (std::size_t c = 0; c < 3; ++c)
+      o.birth_position[3 * i + c] = g.birth_position[3 * k + c];
+    o.parents[2 * i] = g.parents[2 * k], o.parents[2 * i + 1] = g.parents[2 * k + 1];
+    o.slot[i] = g.slot[k];
+  }
+  return o;
+}
+} // namespace
+
+void GasState::sort_clouds_by_place(double cell_kpc) {
+  std::vector<std::pair<std::int64_t, std::size_t>> key(clouds);
+  for (std::size_t i = 0; i < clouds; ++i) {
+    const double fx = std::floor(p.x[i] / cell_kpc), fy = std::floor(p.y[i] / cell_kpc);
+    const auto cx = std::int64_t(std::clamp(fx, -1e6, 1e6)),
+               cy = std::int64_t(std::clamp(fy, -1e6, 1e6));
+    key[i] = {cx * 4000000 + cy, i};
+  }
+  std::sort(key.begin(), key.end());
+  std::vector<std::size_t> perm(clouds);
+  for (std::size_t i = 0; i < clouds; ++i)
+    perm[i] = key[i].second;
+  *this = permuted(*this, perm);
+}
+
+GasState GasState::in_starting_order() const {
+  std::vector<std::size_t> perm(clouds);
+  for (std::size_t i = 0; i < clouds; ++i)
+    perm[slot[i]] = i;
+  return permuted(*this, perm);
 }
 
 StepReport gas_step(GasState& g, const GasSettings& s, const CircularFlow& flow, double t_myr,
                     double dt_myr, std::uint64_t seed) {
   StepReport r;
+  if (g.steps_since_sort++ % 16 == 0) g.sort_clouds_by_place(0.1);
   auto pass = collide_pairs(g.p, s.collisions, dt_myr, flow, g.clouds);
   r.collisions = pass.collisions;
   r.candidate_pairs = pass.candidate_pairs;

@@ -20,10 +20,21 @@ void stir(orbit::PhaseSpace& p, std::size_t count, double kms, double dt_myr, do
   const long n = long(std::min(count, p.size()));
 #pragma omp parallel for schedule(static)
   for (long i = 0; i < n; ++i) {
+    // Gaussian pairs by the polar method (Marsaglia & Bray 1964, SIAM Rev. 6, 260): no
+    // trigonometry, one logarithm per pair; four values drawn, three used
     tracers::TracerStream rng(seed, p.id[std::size_t(i)], salt);
-    p.vx[std::size_t(i)] += sigma * rng.normal();
-    p.vy[std::size_t(i)] += sigma * rng.normal();
-    p.vz[std::size_t(i)] += sigma * rng.normal();
+    double g[4];
+    for (int k = 0; k < 4; k += 2) {
+      double u, v, r2;
+      do {
+        u = 2 * rng.uniform() - 1, v = 2 * rng.uniform() - 1, r2 = u * u + v * v;
+      } while (!(r2 < 1));
+      const double f = std::sqrt(-2 * std::log(r2) / r2);
+      g[k] = u * f, g[k + 1] = v * f;
+    }
+    p.vx[std::size_t(i)] += sigma * g[0];
+    p.vy[std::size_t(i)] += sigma * g[1];
+    p.vz[std::size_t(i)] += sigma * g[2];
   }
 }
 

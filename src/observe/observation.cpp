@@ -25,15 +25,37 @@ double angle_between(const sky::Vec3& a, const sky::Vec3& b) {
 std::vector<double> young_weights(const potential::Model& m, const std::vector<io::Snapshot>& snaps,
                                   const YoungWeights& y) {
   if (snaps.empty()) throw InputError("young-source weights need at least one snapshot");
+  const io::Snapshot& obs = snaps.back();
+  const std::size_t n = obs.tracers.size();
+  std::vector<double> w(n, 0.0);
+  if (y.star_age_myr) {
+    const double lo = (*y.star_age_myr)[0], hi = (*y.star_age_myr)[1];
+    std::size_t stars = 0, picked = 0;
+    double youngest = INFINITY, oldest = -INFINITY;
+    for (std::size_t i = 0; i < n; ++i) {
+      if (!(obs.flags[i] & io::kFlagStar)) continue;
+      ++stars;
+      const double age = obs.time_myr - obs.birth_time_myr[i];
+      youngest = std::min(youngest, age), oldest = std::max(oldest, age);
+      if (age >= lo && age <= hi) w[i] = 1, ++picked;
+    }
+    if (stars == 0)
+      throw InputError("star_age_myr: the snapshot at " + detail::num(obs.time_myr) +
+                       " Myr holds no stars (stars form only in a run with [gas.stars])");
+    if (picked == 0)
+      throw InputError("star_age_myr: no star of the snapshot at " + detail::num(obs.time_myr) +
+                       " Myr is " + detail::num(lo) + " to " + detail::num(hi) +
+                       " Myr old (their ages run from " + detail::num(youngest) + " to " +
+                       detail::num(oldest) + " Myr)");
+    return w;
+  }
   if (!(y.exponent > 0) || !(y.age_window_myr >= 0))
     throw InputError(
         "young-source weights: exponent must be positive and the age window not negative");
-  const io::Snapshot& obs = snaps.back();
-  const std::size_t n = obs.tracers.size();
   std::map<std::uint64_t, std::size_t> index;
   for (std::size_t i = 0; i < n; ++i)
     index[obs.tracers.id[i]] = i;
-  std::vector<double> w(n, 0.0);
+  const double power = y.exponent - 1; // the tracers sample the density already
   int used = 0;
   for (const auto& s : snaps) {
     if (s.time_myr < obs.time_myr - y.age_window_myr - 1e-9 || s.time_myr > obs.time_myr) continue;
@@ -59,15 +81,31 @@ std::vector<double> young_weights(const potential::Model& m, const std::vector<i
         const long c = cell(s.tracers.x[k], s.tracers.y[k]);
         rho = c >= 0 ? sigma[std::size_t(c)] / (h * h) : 0.0; // tracers per kpc^2
       } else {
-        rho = m.density({s.tracers.x[k], s.tracers.y[k], s.tracers.z[k]}, s.time_myr);
+        const potential::Vec3 r{s.tracers.x[k], s.tracers.y[k], s.tracers.z[k]};
+        double arms = 0;
+        for (std::size_t q = 0; q < m.patterns.size(); ++q)
+          arms += m.pattern_density(q, r, s.time_myr);
+        const double axi = m.axisymmetric_density(r);
+        rho = axi > 0 ? 1 + arms / axi : 0.0; // the patterns' density contrast
       }
-      w[it->second] += std::pow(std::fmax(rho, 0.0), y.exponent);
+      w[it->second] += rho > 0 ? std::pow(rho, power) : 0.0;
     }
     ++used;
   }
   for (double& x : w)
     x /= used;
   return w;
+}
+
+bool in_survey_volume(const orbit::PhaseSpace& t, std::size_t i, const ObservationSettings& s,
+                      sky::Observed& o, double& d) {
+  const auto& sel = s.selection;
+  d = sky::from_galactocentric({{t.x[i], t.y[i], t.z[i]}, {t.vx[i], t.vy[i], t.vz[i]}}, s.sun, o);
+  if (d < sel.distance_min_kpc || d > sel.distance_max_kpc) return false;
+  if (o.dec_deg < sel.dec_min_deg || o.dec_deg > sel.dec_max_deg) return false;
+  double l, b;
+  sky::icrs_to_galactic(o.ra_deg * units::deg, o.dec_deg * units::deg, l, b);
+  return std::fabs(b) / units::deg <= sel.latitude_max_deg;
 }
 
 MockResult observe(const io::Snapshot& snap, const std::vector<double>& weights,
@@ -89,13 +127,8 @@ MockResult observe(const io::Snapshot& snap, const std::vector<double>& weights,
   std::vector<Candidate> cand;
   for (std::size_t i = 0; i < t.size(); ++i) {
     sky::Observed o;
-    const double d =
-        sky::from_galactocentric({{t.x[i], t.y[i], t.z[i]}, {t.vx[i], t.vy[i], t.vz[i]}}, s.sun, o);
-    if (d < sel.distance_min_kpc || d > sel.distance_max_kpc) continue;
-    if (o.dec_deg < sel.dec_min_deg || o.dec_deg > sel.dec_max_deg) continue;
-    double l, b;
-    sky::icrs_to_galactic(o.ra_deg * units::deg, o.dec_deg * units::deg, l, b);
-    if (std::fabs(b) / units::deg > sel.latitude_max_deg) continue;
+    double d;
+    if (!in_survey_volume(t, i, s, o, d)) continue;
     const double w = weights.empty() ? 1.0 : weights[i];
     if (!(w > 0)) continue;
     // Weighted order without replacement: key = u^(1/w), largest first (Efraimidis & Spirakis

@@ -146,19 +146,27 @@ ObservationSpec observation_from_table(const toml::table& t, const std::string& 
   }
   if (const toml::table* y = r.table("young")) {
     TableReader q(*y, file, sub(ctx, "young"));
-    q.check_keys({"exponent", "age_window_myr", "density", "cell_kpc"});
     YoungWeights w;
-    const std::string d = q.string_or("density", "model");
-    if (d == "tracers")
-      w.density = YoungWeights::Density::tracers;
-    else if (d != "model")
-      q.fail("density", "must be \"model\" or \"tracers\"");
-    w.cell_kpc = q.number_or("cell_kpc", 0.25);
-    if (!(w.cell_kpc > 0)) q.fail("cell_kpc", "must be positive");
-    w.exponent = q.number_or("exponent", 1.4);
-    if (!(w.exponent > 0)) q.fail("exponent", "must be positive");
-    w.age_window_myr = q.number("age_window_myr");
-    if (!(w.age_window_myr >= 0)) q.fail("age_window_myr", "must not be negative");
+    if (q.has("star_age_myr")) {
+      q.check_keys({"star_age_myr"});
+      const auto a = q.numbers("star_age_myr");
+      if (a.size() != 2 || !(a[0] >= 0) || !(a[1] >= a[0]))
+        q.fail("star_age_myr", "must be [youngest, oldest] in Myr, 0 <= youngest <= oldest");
+      w.star_age_myr = std::array<double, 2>{a[0], a[1]};
+    } else {
+      q.check_keys({"exponent", "age_window_myr", "density", "cell_kpc"});
+      const std::string d = q.string_or("density", "model");
+      if (d == "tracers")
+        w.density = YoungWeights::Density::tracers;
+      else if (d != "model")
+        q.fail("density", "must be \"model\" or \"tracers\"");
+      w.cell_kpc = q.number_or("cell_kpc", 0.25);
+      if (!(w.cell_kpc > 0)) q.fail("cell_kpc", "must be positive");
+      w.exponent = q.number_or("exponent", 1.4);
+      if (!(w.exponent > 0)) q.fail("exponent", "must be positive");
+      w.age_window_myr = q.number("age_window_myr");
+      if (!(w.age_window_myr >= 0)) q.fail("age_window_myr", "must not be negative");
+    }
     s.young = w;
   }
   const toml::table* er = r.table("errors");

@@ -27,7 +27,8 @@ Prepared prepare(const io::SnapshotReader& rd, const ObservationSpec& spec,
   p.time_myr = times[p.index];
   const auto& young = spec.settings.young;
   for (std::size_t i = 0; i <= p.index; ++i)
-    if (i == p.index || (young && times[i] >= p.time_myr - young->age_window_myr - 1e-9))
+    if (i == p.index ||
+        (young && !young->star_age_myr && times[i] >= p.time_myr - young->age_window_myr - 1e-9))
       p.window.push_back(rd.read(i));
   if (young) p.weights = young_weights(m, p.window, *young);
   return p;

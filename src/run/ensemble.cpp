@@ -46,7 +46,8 @@ orbit::PhaseSpace initial_tracers(const scenario::Scenario& s) {
   return p;
 }
 
-io::Snapshot snapshot_of(const gas::GasState& g, double t, double rmax, bool star_records) {
+io::Snapshot snapshot_of(const gas::GasState& state, double t, double rmax, bool star_records) {
+  const gas::GasState g = state.in_starting_order();
   io::Snapshot snap;
   const auto& p = g.p;
   snap.time_myr = t;
@@ -81,6 +82,9 @@ gas::GasState state_of(io::Snapshot snap) {
     g.birth_position.resize(3 * n);
     g.parents.assign(2 * n, 0);
   }
+  g.slot.resize(g.clouds);
+  for (std::size_t i = 0; i < g.clouds; ++i)
+    g.slot[i] = i;
   return g;
 }
 

@@ -21,6 +21,7 @@
 #include "undertow/observe/prepare.hpp"
 #include "undertow/residuals/report.hpp"
 #include "undertow/run/ensemble.hpp"
+#include "undertow/run/lag_by_age.hpp"
 
 namespace undertow::run {
 namespace {
@@ -487,9 +488,25 @@ WholeRunResult run_all(const scenario::Scenario& s, const WholeRunOptions& o) {
   const auto summary = compare::summarise_realisations(totals, per_source, verdicts[0].names);
   const auto vtab = verdict_table(s, verdicts, summary, verdict_excluded);
 
+  // 6. the lag against age, when the gas formed stars
+  std::optional<LagTables> lag;
+  const auto& observed = window.back();
+  if (std::any_of(observed.flags.begin(), observed.flags.end(),
+                  [](std::uint32_t f) { return f & io::kFlagStar; })) {
+    const auto young =
+        ob.young && ob.young->star_age_myr ? *ob.young->star_age_myr : std::array<double, 2>{0, 20};
+    lag = lag_by_age(observed, realisation_scenario(0).model, ob, rs, young,
+                     s.comparison->bootstrap, s.comparison->seed);
+  }
+
   io::write_table_files((dir / "comparison-global").string(), global);
   io::write_table_files((dir / "comparison-local").string(), ltab);
   io::write_table_files((dir / "verdict").string(), vtab);
+  if (lag) {
+    io::write_table_files((dir / "lag-by-age").string(), lag->by_age);
+    if (!lag->by_phase.rows.empty())
+      io::write_table_files((dir / "lag-by-phase").string(), lag->by_phase);
+  }
   io::h5::File::write_atomically((dir / "comparison.h5").string(), [&](const io::h5::File& f) {
     io::h5::set_attr(f, f.id(), "undertow_format", std::string("comparison"));
     io::h5::set_attr(f, f.id(), "scenario", s.text);
@@ -517,6 +534,10 @@ WholeRunResult run_all(const scenario::Scenario& s, const WholeRunOptions& o) {
     io::write_table_group(f, "global", global);
     io::write_table_group(f, "local", ltab);
     io::write_table_group(f, "verdict_table", vtab);
+    if (lag) {
+      io::write_table_group(f, "lag_by_age", lag->by_age);
+      if (!lag->by_phase.rows.empty()) io::write_table_group(f, "lag_by_phase", lag->by_phase);
+    }
     const auto g = io::h5::create_group(f, "verdict");
     io::h5::write_strings(f, g.id(), "source", summary.names, "the judged measured sources");
     io::h5::write_doubles(f, g.id(), "realisation_log_likelihood", totals, 1, "",
@@ -554,6 +575,15 @@ WholeRunResult run_all(const scenario::Scenario& s, const WholeRunOptions& o) {
       vs.marginalise_r0 ? "marginalised" : "held fixed", local.outliers.size(),
       local.sources.size());
   res.summary = b;
+  if (lag) {
+    // the youngest bin with stars through the mock survey, and the oldest
+    std::string line = "lag by age (mean V_s through the mock survey):";
+    for (const auto& row : lag->by_age.rows)
+      if (row[9] >= 3)
+        line += " " + io::format_number(row[0], 3) + "-" + io::format_number(row[1], 3) + " Myr " +
+                io::format_number(row[12], 3) + " +- " + io::format_number(row[13], 2) + ";";
+    res.summary += line + " km/s (lag-by-age.md)\n";
+  }
   if (K == 1)
     res.summary += "note: one realisation: the verdict's realisation noise is not known; set "
                    "[comparison] realisations = 4 or more\n";

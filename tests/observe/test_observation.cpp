@@ -152,27 +152,59 @@ TEST_CASE("With 10-20% parallax errors 1/parallax biases the mean V_s, the poste
   CHECK(std::fabs(eds.mean[1] + 7) < std::fabs(inv.mean[1] + 7));
 }
 
-TEST_CASE("Young-source weights are the Schmidt-type law: mean of rho^n over the snapshots in "
-          "the age window",
+TEST_CASE("Young-source weights in model-density mode: the mean over the age window of the "
+          "patterns' density contrast (1 + rho_patterns / rho_axisymmetric) to the power n - 1",
           "[observe]") {
   const auto model =
       potential::load_model_file(std::string(UNDERTOW_SOURCE_DIR) + "/potentials/kestrel.toml");
+  REQUIRE(!model.patterns.empty());
   auto a = tracers_with_lag(50, 0, 5, 230, 5);
   auto b = a;
   a.time_myr = 960;
   b.time_myr = 1000;
   for (auto& x : b.tracers.x)
     x += 0.01;
-  const observe::YoungWeights y{1.4, 50};
+  const auto contrast = [&](const io::Snapshot& s, std::size_t i) {
+    const potential::Vec3 r{s.tracers.x[i], s.tracers.y[i], s.tracers.z[i]};
+    double arms = 0;
+    for (std::size_t q = 0; q < model.patterns.size(); ++q)
+      arms += model.pattern_density(q, r, s.time_myr);
+    return 1 + arms / model.axisymmetric_density(r);
+  };
+  observe::YoungWeights y;
+  y.exponent = 1.4, y.age_window_myr = 50;
   const auto w = observe::young_weights(model, {a, b}, y);
+  double spread = 0;
   for (std::size_t i = 0; i < 50; ++i) {
-    const double ra = model.density({a.tracers.x[i], a.tracers.y[i], a.tracers.z[i]}, 960);
-    const double rb = model.density({b.tracers.x[i], b.tracers.y[i], b.tracers.z[i]}, 1000);
-    CHECK(w[i] == Approx(0.5 * (std::pow(ra, 1.4) + std::pow(rb, 1.4))).epsilon(1e-12));
+    CHECK(w[i] == Approx(0.5 * (std::pow(contrast(a, i), 0.4) + std::pow(contrast(b, i), 0.4)))
+                      .epsilon(1e-12));
+    spread = std::max(spread, std::fabs(w[i] - 1));
   }
-  const auto w1 = observe::young_weights(model, {a, b}, {1.4, 10}); // only the last snapshot
-  CHECK(w1[0] == Approx(std::pow(
-                     model.density({b.tracers.x[0], b.tracers.y[0], b.tracers.z[0]}, 1000), 1.4)));
+  CHECK(spread > 1e-3); // the arms matter
+  CHECK(spread < 1);    // and no radial gradient of the whole galaxy's density
+  y.age_window_myr = 10; // only the last snapshot
+  const auto w1 = observe::young_weights(model, {a, b}, y);
+  CHECK(w1[0] == Approx(std::pow(contrast(b, 0), 0.4)));
+}
+
+TEST_CASE("Young sources from a gas run's stars: weight 1 for stars in the age window, 0 for "
+          "clouds and other stars; a window that selects nothing or a snapshot without stars is "
+          "an error",
+          "[observe]") {
+  const auto model =
+      potential::load_model_file(std::string(UNDERTOW_SOURCE_DIR) + "/potentials/kestrel.toml");
+  auto s = tracers_with_lag(6, 0, 5, 230, 5);
+  s.time_myr = 500;
+  s.flags = {0, 0, io::kFlagStar, io::kFlagStar, io::kFlagStar, io::kFlagStar};
+  s.birth_time_myr = {0, 0, 499, 495, 480, 430};
+  observe::YoungWeights y;
+  y.star_age_myr = std::array<double, 2>{0, 20};
+  CHECK(observe::young_weights(model, {s}, y) == std::vector<double>{0, 0, 1, 1, 1, 0});
+  y.star_age_myr = std::array<double, 2>{30, 40};
+  CHECK_THROWS_WITH(observe::young_weights(model, {s}, y),
+                    Catch::Contains("no star") && Catch::Contains("from 1 to 70 Myr"));
+  s.flags.assign(6, 0);
+  CHECK_THROWS_WITH(observe::young_weights(model, {s}, y), Catch::Contains("holds no stars"));
 }
 
 TEST_CASE("Weighted selection picks tracers in proportion to their weights (Efraimidis & "
@@ -193,7 +225,8 @@ TEST_CASE("Weighted selection picks tracers in proportion to their weights (Efra
 }
 
 TEST_CASE("Young-source weights from the tracers' own surface density: the count in a tracer's "
-          "cell per kpc^2, to the power n",
+          "cell per kpc^2 to the power n - 1, so young sources crowd as Sigma^n (a Schmidt law, "
+          "Kennicutt 1998, ApJ 498, 541)",
           "[observe]") {
   const auto model =
       potential::load_model_file(std::string(UNDERTOW_SOURCE_DIR) + "/potentials/kestrel.toml");
@@ -209,9 +242,10 @@ TEST_CASE("Young-source weights from the tracers' own surface density: the count
   y.exponent = 1.5;
   y.age_window_myr = 0;
   const auto w = observe::young_weights(model, {s}, y);
-  CHECK(w[0] == Approx(std::pow(4 / 0.0625, 1.5)));
-  CHECK(w[4] == Approx(std::pow(1 / 0.0625, 1.5)));
-  CHECK(w[0] / w[4] == Approx(8.0));
+  CHECK(w[0] == Approx(std::pow(4 / 0.0625, 0.5)));
+  CHECK(w[4] == Approx(std::pow(1 / 0.0625, 0.5)));
+  // four tracers of weight w[0] against one of weight w[4]: young sources in proportion 4^1.5
+  CHECK(4 * w[0] / w[4] == Approx(std::pow(4.0, 1.5)));
 }
 
 TEST_CASE("Selection on the observed parallax: every mock source's measured parallax lies in the "

@@ -22,7 +22,10 @@ struct GasSettings {
   void validate() const; // throws detail::ParameterError naming the key
 };
 
-// Clouds first, in their starting order, then the stars in order of birth.
+// Clouds first, then the stars in order of birth. The clouds are kept sorted by place (every few
+// steps), so that neighbours sit near each other in memory and the collision search stays in
+// cache; slot[i] is cloud i's place in the starting order, which snapshots keep. Nothing a run
+// computes depends on the order in memory.
 struct GasState {
   orbit::PhaseSpace p;
   std::size_t clouds = 0;
@@ -30,6 +33,13 @@ struct GasState {
   std::vector<double> birth_position; // 3 per entry, kpc (clouds: where they started)
   std::vector<std::uint64_t> parents; // 2 per entry (clouds: 0, 0)
   std::uint64_t next_star_id = 0;     // ids of stars continue after the largest cloud id
+  std::vector<std::size_t> slot;      // per cloud: its index in the starting order
+  std::size_t steps_since_sort = 0;
+
+  // Reorders the clouds by the (x, y) cell of side cell_kpc they are in.
+  void sort_clouds_by_place(double cell_kpc);
+  // The state with the clouds in their starting order (for snapshots).
+  GasState in_starting_order() const;
 
   // A state of clouds only, born at t.
   static GasState of_clouds(orbit::PhaseSpace clouds, double t_myr);

@@ -29,16 +29,19 @@ struct Selection {
   std::size_t max_sources = 0; // 0: no limit
 };
 
-// Young sources: a tracer's weight is the mean over the snapshots within the age window before
-// the observed time of max(rho, 0)^n, rho the model's density (patterns included) at the
-// tracer's position then: a Schmidt-type law, so tracers that recently passed through dense
-// gas (a spiral arm) are the likely young ones.
+// Young sources. Either the stars a gas run formed ([gas.stars]) whose age lies in a window
+// (masers a few Myr, OB stars and young clusters up to 10-20 Myr: common practice), or, for
+// runs without star formation, a Schmidt-type weight: with a star-formation rate ∝ ρⁿ and
+// tracers that already sample the density, a tracer's weight is ρ^(n-1), averaged over the
+// snapshots within the age window before the observed time.
 struct YoungWeights {
+  std::optional<std::array<double, 2>> star_age_myr; // stars aged [lo, hi] Myr, weight 1
   double exponent = 1.4;      // n (common practice: the Kennicutt-Schmidt slope)
   double age_window_myr = 30; // how far back star formation is counted
-  // What density: "model" (the potential's density, patterns included) or "tracers" (the
-  // tracers' own surface density on a grid of cell_kpc: cold tracers crowd into the arms
-  // much as gas does, so they stand in for the gas).
+  // What density: "model" (the contrast 1 + ρ_patterns / ρ_axisymmetric at the tracer: the
+  // tracers sample the axisymmetric galaxy already, so only the patterns' enhancement is a
+  // weight) or "tracers" (the tracers' own surface density on a grid of cell_kpc: cold tracers
+  // crowd into the arms much as gas does).
   enum class Density { model, tracers } density = Density::model;
   double cell_kpc = 0.25;
 };
@@ -74,6 +77,11 @@ struct MockResult {
   std::size_t rejected_parallax = 0; // outside the observed-parallax range
   std::vector<std::uint64_t> tracer_ids; // of the mock sources, in catalog order
 };
+
+// Whether tracer i lies in the survey's volume and sky (true distance range, declination,
+// latitude), with its true observables o and distance d (kpc).
+bool in_survey_volume(const orbit::PhaseSpace& t, std::size_t i, const ObservationSettings& s,
+                      sky::Observed& o, double& d);
 
 // Weights per tracer of snaps.back() (the observed snapshot) from the snapshots before it.
 std::vector<double> young_weights(const potential::Model& m, const std::vector<io::Snapshot>& snaps,

@@ -26,7 +26,7 @@ struct WholeRunOptions {
 
 struct WholeRunResult {
   bool complete = false;
-  std::vector<std::string> reused; // stage names
+  std::vector<std::string> reused;   // stage names
   double log_likelihood = 0;         // the verdict's, mean over realisations
   double log_likelihood_scatter = 0; // its scatter over realisations
   std::size_t realisations = 1;
