@@ -41,6 +41,6 @@ echo "== Galactic parameters from a catalog: a kinematic fit of the simulated su
 echo "   demo/kinematic-catalog.csv (truth: demo/kinematic-truth.toml, R0 = 8.1 kpc, Theta0 = 228 km/s)"
 "$undertow" fit demo/kinematic-fit.toml -o "$out/kinematic-fit"
 echo
-echo "== The same kind of fit on the Kestrel survey: its arms make the young sources stream so"
-echo "   strongly that a circular-rotation model is pulled to the edges of its priors (docs/fit.md)"
+echo "== The same kind of fit on the Kestrel survey: its arms make the young sources stream, and a"
+echo "   circular-rotation model absorbs the streaming into a biased Galaxy (docs/fit.md)"
 "$undertow" fit demo/kestrel-fit.toml -o "$out/kestrel-fit"

@@ -6,9 +6,9 @@ namespace undertow::sweep {
 
 CostGuess guess_cost(const scenario::Scenario& s) {
   // docs/performance.md, one core of the development VM: leapfrog in a spiral model 88 million
-  // orbit-steps/s (four-stage methods cost about four times that per step); a gas pass 12.5
-  // million clouds/s.
-  constexpr double leapfrog_rate = 88e6, gas_rate = 12.5e6;
+  // orbit-steps/s (four-stage methods cost about four times that per step); the gas's work per
+  // step (collisions, stirring, stars) 3 million clouds/s.
+  constexpr double leapfrog_rate = 88e6, gas_rate = 3e6;
   CostGuess c;
   const double tracers = s.tracers.kind == scenario::TracerSource::Kind::disk
                              ? double(s.tracers.disk.count)

@@ -98,7 +98,7 @@ efficiency = 0.5
 
 TEST_CASE("Gas runs: a smooth disk settles at a molecular-cloud dispersion of 5-10 km/s (common "
           "practice) from a cold and from a hot start, with the epicyclic ratio "
-          "sigma_phi / sigma_R = kappa / (2 Omega) (Binney & Tremaine 2008, eq. 4.237)",
+          "sigma_phi / sigma_R = kappa / (2 Omega) (Binney & Tremaine 2008, eq. 3.100)",
           "[gas][gas-run]") {
   const auto d = work("settle");
   Dispersions end[2];
@@ -199,8 +199,8 @@ TEST_CASE("Gas runs: with a vanishing cloud radius, no stirring and no stars the
   CHECK(sa.tracers.vz == sb.tracers.vz);
 }
 
-TEST_CASE("Gas runs: a negative cloud radius, a restitution outside [0, 1], a negative "
-          "stirring or an efficiency outside (0, 1] is one error naming the key",
+TEST_CASE("Gas runs: a negative cloud radius, a restitution outside 0-1, a negative "
+          "stirring or an efficiency outside 0-1 is one error naming the key",
           "[gas][gas-run]") {
   const std::pair<std::string, std::string> bad[] = {
       {"[gas]\ncloud_radius_kpc = -0.01\n", "cloud_radius_kpc"},

@@ -180,8 +180,8 @@ TEST_CASE("Young-source weights in model-density mode: the mean over the age win
                       .epsilon(1e-12));
     spread = std::max(spread, std::fabs(w[i] - 1));
   }
-  CHECK(spread > 1e-3); // the arms matter
-  CHECK(spread < 1);    // and no radial gradient of the whole galaxy's density
+  CHECK(spread > 1e-3);  // the arms matter
+  CHECK(spread < 1);     // and no radial gradient of the whole galaxy's density
   y.age_window_myr = 10; // only the last snapshot
   const auto w1 = observe::young_weights(model, {a, b}, y);
   CHECK(w1[0] == Approx(std::pow(contrast(b, 0), 0.4)));
@@ -268,10 +268,10 @@ TEST_CASE("Selection on the observed parallax: every mock source's measured para
     CHECK(src.parallax_mas <= 1.0);
     const std::size_t k = std::size_t(m.tracer_ids[i]);
     sky::Observed o;
-    const double d = sky::from_galactocentric(
-        {{snap.tracers.x[k], snap.tracers.y[k], snap.tracers.z[k]},
-         {snap.tracers.vx[k], snap.tracers.vy[k], snap.tracers.vz[k]}},
-        s.sun, o);
+    const double d =
+        sky::from_galactocentric({{snap.tracers.x[k], snap.tracers.y[k], snap.tracers.z[k]},
+                                  {snap.tracers.vx[k], snap.tracers.vy[k], snap.tracers.vz[k]}},
+                                 s.sun, o);
     outside_truly += 1 / d < 0.25 || 1 / d > 1.0;
   }
   INFO(outside_truly << " of " << m.catalog.sources.size() << " have a true parallax outside");

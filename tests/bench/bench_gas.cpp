@@ -1,0 +1,104 @@
+// The cloud gas's cost: the collision search per cloud-step, and a whole gas step (collisions,
+// stirring, star formation, one leapfrog step) for 10^5 and 10^6 clouds in the demo's truth
+// galaxy (strong four-armed spiral), with the cloud radius scaled so that each cloud collides as
+// often as in the demo (100 000 clouds of 0.015 kpc). The target, 10^6 clouds for 1 Gyr
+// at 0.5 Myr steps, is BM_gas_full_million_1gyr (about 2000 steps; run it on its own:
+// --benchmark_filter=full). Figures: clouds x steps per second, and ns per cloud-step.
+// Run: build/tests/bench/bench_gas
+#include <benchmark/benchmark.h>
+#include <cmath>
+#include <omp.h>
+
+#include "undertow/gas/cloud_gas.hpp"
+#include "undertow/orbit/integrator.hpp"
+#include "undertow/potential/model_file.hpp"
+#include "undertow/tracers/disk_population.hpp"
+
+namespace {
+
+using namespace undertow;
+
+struct Setup {
+  potential::Model model;
+  gas::GasSettings gas;
+  gas::CircularFlow flow;
+  gas::GasState state;
+  orbit::IntegrationSettings orbit;
+};
+
+// The demo's gas, with n clouds; warmed up for 20 Myr so that stars exist and clouds are mixed.
+Setup setup(std::size_t n) {
+  Setup s;
+  s.model =
+      potential::load_model_file(std::string(UNDERTOW_SOURCE_DIR) + "/demo/truth/galaxy.toml");
+  tracers::DiskPopulation d;
+  d.count = n;
+  d.scale_length_kpc = 5, d.r_min_kpc = 4, d.r_max_kpc = 13;
+  d.scale_height_kpc = 0.03, d.sigma_r_kms = 5, d.sigma_z_kms = 3;
+  s.gas.collisions.radius_kpc = 0.015 * std::sqrt(1e5 / double(n));
+  s.gas.collisions.extent_kpc = 20;
+  s.gas.stirring_kms = 0.5;
+  gas::StarFormation sf;
+  sf.efficiency = 0.5;
+  s.gas.stars = sf;
+  s.flow = gas::CircularFlow(s.model, 30);
+  s.state = gas::GasState::of_clouds(tracers::sample(s.model, d, 5, 0, n), 0);
+  s.orbit.method = orbit::Method::leapfrog;
+  s.orbit.step_myr = 0.5;
+  for (int k = 0; k < 40; ++k) {
+    gas::gas_step(s.state, s.gas, s.flow, 0.5 * k, 0.5, 5);
+    orbit::advance_steps(s.model, s.state.p, 0.5 * k, 0.5 * (k + 1), 0, 1, s.orbit);
+  }
+  return s;
+}
+
+void BM_collision_search(benchmark::State& st) {
+  auto s = setup(std::size_t(st.range(0)));
+  std::size_t tested = 0;
+  for (auto _ : st) {
+    st.PauseTiming();
+    auto p = s.state.p; // the same clouds each time
+    st.ResumeTiming();
+    const auto pass = gas::collide_pairs(p, s.gas.collisions, 0.5, s.flow, s.state.clouds);
+    tested += pass.candidate_pairs;
+    benchmark::DoNotOptimize(pass.collisions);
+  }
+  const double cloud_steps = double(st.iterations()) * double(s.state.clouds);
+  st.counters["cloud_steps/s"] = benchmark::Counter(cloud_steps, benchmark::Counter::kIsRate);
+  st.counters["pairs_tested/cloud"] = double(tested) / cloud_steps;
+}
+
+void BM_gas_step(benchmark::State& st) {
+  auto s = setup(std::size_t(st.range(0)));
+  double t = 20;
+  for (auto _ : st) {
+    gas::gas_step(s.state, s.gas, s.flow, t, 0.5, 5);
+    orbit::advance_steps(s.model, s.state.p, t, t + 0.5, 0, 1, s.orbit);
+    t += 0.5;
+  }
+  const double cloud_steps = double(st.iterations()) * double(s.state.clouds);
+  st.counters["cloud_steps/s"] = benchmark::Counter(cloud_steps, benchmark::Counter::kIsRate);
+  st.counters["stars"] = double(s.state.stars());
+}
+
+void BM_gas_full_million_1gyr(benchmark::State& st) {
+  for (auto _ : st) {
+    auto s = setup(1000000);
+    for (int k = 40; k < 2000; ++k) {
+      gas::gas_step(s.state, s.gas, s.flow, 0.5 * k, 0.5, 5);
+      orbit::advance_steps(s.model, s.state.p, 0.5 * k, 0.5 * (k + 1), 0, 1, s.orbit);
+    }
+    st.counters["stars_at_end"] = double(s.state.stars());
+  }
+}
+
+} // namespace
+
+BENCHMARK(BM_collision_search)
+    ->Arg(100000)
+    ->Arg(1000000)
+    ->Unit(benchmark::kMillisecond)
+    ->UseRealTime();
+BENCHMARK(BM_gas_step)->Arg(100000)->Arg(1000000)->Unit(benchmark::kMillisecond)->UseRealTime();
+BENCHMARK(BM_gas_full_million_1gyr)->Iterations(1)->Unit(benchmark::kSecond)->UseRealTime();
+BENCHMARK_MAIN();
