@@ -188,7 +188,7 @@ TEST_CASE("Young-source weights in model-density mode: the mean over the age win
 }
 
 TEST_CASE("Young sources from a gas run's stars: weight 1 for stars in the age window, 0 for "
-          "clouds and other stars; a window that selects nothing or a snapshot without stars is "
+          "clouds and other stars, and a window that selects nothing or a snapshot without stars is "
           "an error",
           "[observe]") {
   const auto model =
