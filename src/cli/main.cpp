@@ -11,6 +11,7 @@
 #include "undertow/dynamics/resonances.hpp"
 #include "undertow/error.hpp"
 #include "undertow/fit/report.hpp"
+#include "undertow/gas/spiral_shock.hpp"
 #include "undertow/io/atomic_file.hpp"
 #include "undertow/io/table_hdf5.hpp"
 #include "undertow/observe/observation_file.hpp"
@@ -325,6 +326,38 @@ int run_whole(const RunArgs& a) {
 
 } // namespace
 
+struct ArmFlowArgs {
+  std::string model_path;
+  double radius = 8, sound_speed = 8;
+  int pattern = 1, cells = 2048;
+  std::string format = "markdown";
+  std::string output;
+};
+
+int run_arm_flow(const ArmFlowArgs& a) {
+  using namespace undertow;
+  const potential::Model model = potential::load_model_file(a.model_path);
+  const auto problem =
+      gas::shock_problem(model, static_cast<std::size_t>(a.pattern - 1), a.radius, a.sound_speed);
+  gas::ShockSettings set;
+  set.cells = a.cells;
+  const auto flow = gas::solve_spiral_shock(problem, set);
+  const std::string summary = gas::describe_shock(problem, flow);
+  std::cerr << summary;
+  if (!flow.converged) return 1;
+  const auto table = gas::shock_profile_table(problem, flow);
+  const auto fmt = io::table_format_from_name(a.format);
+  if (a.output.empty()) {
+    io::write_table(std::cout, table, fmt);
+  } else {
+    io::AtomicFile f(a.output);
+    io::write_table(f.stream(), table, fmt);
+    f.commit();
+    std::cout << "wrote " << a.output << " (" << table.rows.size() << " points across the arm)\n";
+  }
+  return 0;
+}
+
 int main(int argc, char** argv) {
   CLI::App app{"undertow: galaxy models, tracer orbits and the peculiar motions of young sources"};
   app.set_version_flag("--version", std::string("undertow ") + UNDERTOW_VERSION + " (" +
@@ -469,6 +502,26 @@ int main(int argc, char** argv) {
       "-o,--output", versus_out,
       "Also write the table as STEM.csv, .md, .tex and .h5 (always to stdout as Markdown)");
 
+  ArmFlowArgs af;
+  auto* afc = app.add_subcommand(
+      "arm-flow", "The steady flow of an isothermal gas across a model's spiral arms at one "
+                  "radius (Roberts 1969): density, speeds across and along the arms, the shock");
+  afc->add_option("model", af.model_path, "Galaxy model file (TOML)")->required();
+  afc->add_option("--radius", af.radius, "Galactocentric radius, kpc")->capture_default_str();
+  afc->add_option("--sound-speed", af.sound_speed,
+                  "Effective isothermal sound speed of the gas, km/s (the clouds' dispersion)")
+      ->capture_default_str();
+  afc->add_option("--pattern", af.pattern, "Which of the model's patterns (1 = the first)")
+      ->check(CLI::PositiveNumber)
+      ->capture_default_str();
+  afc->add_option("--cells", af.cells, "Integration steps across one arm spacing")
+      ->check(CLI::Range(64, 1 << 20))
+      ->capture_default_str();
+  afc->add_option("--format", af.format, "Table format: csv, markdown or latex")
+      ->check(CLI::IsMember({"csv", "markdown", "md", "latex", "tex"}))
+      ->capture_default_str();
+  afc->add_option("-o,--output", af.output, "Write the table to this file (default: stdout)");
+
   undertow::cli::FitArgs fit;
   undertow::cli::add_fit_command(app, fit);
   undertow::cli::MockArgs mock;
@@ -483,6 +536,7 @@ int main(int argc, char** argv) {
     if (const auto code = undertow::cli::run_fit_command(fit)) return *code;
     if (const auto code = undertow::cli::run_mock_command(mock)) return *code;
     if (t->parsed()) return run_tabulate(tab);
+    if (afc->parsed()) return run_arm_flow(af);
     if (ig->parsed()) return run_integrate(integ);
     if (rs->parsed()) return run_residuals(ra);
     if (os->parsed()) return run_observe(ob);
