@@ -13,11 +13,13 @@
 #include "undertow/fit/report.hpp"
 #include "undertow/gas/spiral_shock.hpp"
 #include "undertow/io/atomic_file.hpp"
+#include "undertow/io/snapshot.hpp"
 #include "undertow/io/table_hdf5.hpp"
 #include "undertow/observe/observation_file.hpp"
 #include "undertow/observe/prepare.hpp"
 #include "undertow/potential/model_file.hpp"
 #include "undertow/residuals/report.hpp"
+#include "undertow/run/arm_crossing.hpp"
 #include "undertow/run/ensemble.hpp"
 #include "undertow/run/whole_run.hpp"
 #include "undertow/scenario/provenance_model.hpp"
@@ -332,19 +334,63 @@ struct ArmFlowArgs {
   int pattern = 1, cells = 2048;
   std::string format = "markdown";
   std::string output;
+  bool sound_speed_given = false;
+  std::string clouds;         // a gas run's snapshot file
+  std::optional<double> time; // Myr, default its last snapshot
+  double ring_width = 1.0;    // kpc
+  int bins = 20;
+  std::string crossing_output;
 };
 
 int run_arm_flow(const ArmFlowArgs& a) {
   using namespace undertow;
   const potential::Model model = potential::load_model_file(a.model_path);
-  const auto problem =
+  auto problem =
       gas::shock_problem(model, static_cast<std::size_t>(a.pattern - 1), a.radius, a.sound_speed);
+  std::optional<io::Snapshot> snap;
+  run::CrossingBins cloud_side;
+  double dispersion = 0;
+  std::size_t used = 0;
+  if (!a.clouds.empty()) {
+    const io::SnapshotReader rd(a.clouds);
+    const auto times = rd.times_myr();
+    std::size_t k = times.size() - 1;
+    if (a.time) {
+      k = times.size();
+      for (std::size_t i = 0; i < times.size(); ++i)
+        if (std::fabs(times[i] - *a.time) < 1e-9 * (1 + std::fabs(times[i]))) k = i;
+      if (k == times.size())
+        throw InputError(a.clouds + ": no snapshot at " + io::format_number(*a.time, 6) + " Myr");
+    }
+    snap = rd.read(k);
+    cloud_side = run::cloud_bins(*snap, model, problem, a.ring_width / 2, a.bins, dispersion, used);
+    // The clouds' own dispersion plays the sound speed unless one is given.
+    if (!a.sound_speed_given) problem.sound_speed = dispersion;
+  }
   gas::ShockSettings set;
   set.cells = a.cells;
   const auto flow = gas::solve_spiral_shock(problem, set);
   const std::string summary = gas::describe_shock(problem, flow);
   std::cerr << summary;
   if (!flow.converged) return 1;
+  if (snap) {
+    run::CloudCrossing c;
+    c.time_myr = snap->time_myr;
+    c.clouds = cloud_side;
+    c.dispersion = dispersion;
+    c.used = used;
+    c.steady = run::steady_bins(problem, flow, cloud_side.edges);
+    std::cerr << run::describe_crossing(problem, c);
+    const auto ct = run::crossing_table(problem, c);
+    if (a.crossing_output.empty()) {
+      io::write_table(std::cerr, ct, io::TableFormat::markdown);
+    } else {
+      io::AtomicFile f(a.crossing_output);
+      io::write_table(f.stream(), ct, io::table_format_from_name(a.format));
+      f.commit();
+      std::cerr << "wrote " << a.crossing_output << "\n";
+    }
+  }
   const auto table = gas::shock_profile_table(problem, flow);
   const auto fmt = io::table_format_from_name(a.format);
   if (a.output.empty()) {
@@ -521,6 +567,18 @@ int main(int argc, char** argv) {
       ->check(CLI::IsMember({"csv", "markdown", "md", "latex", "tex"}))
       ->capture_default_str();
   afc->add_option("-o,--output", af.output, "Write the table to this file (default: stdout)");
+  afc->add_option("--clouds", af.clouds,
+                  "A gas run's snapshot file (HDF5): compare its clouds in a ring about the "
+                  "radius, binned across the arms, with the steady flow");
+  afc->add_option("--time", af.time, "Snapshot time of --clouds, Myr (default: its last)");
+  afc->add_option("--ring-width", af.ring_width, "Width of the ring of clouds, kpc")
+      ->check(CLI::PositiveNumber)
+      ->capture_default_str();
+  afc->add_option("--bins", af.bins, "Bins across one arm spacing for --clouds")
+      ->check(CLI::Range(2, 1000))
+      ->capture_default_str();
+  afc->add_option("--crossing-output", af.crossing_output,
+                  "Write the clouds-against-steady table here (default: Markdown on stderr)");
 
   undertow::cli::FitArgs fit;
   undertow::cli::add_fit_command(app, fit);
@@ -536,7 +594,10 @@ int main(int argc, char** argv) {
     if (const auto code = undertow::cli::run_fit_command(fit)) return *code;
     if (const auto code = undertow::cli::run_mock_command(mock)) return *code;
     if (t->parsed()) return run_tabulate(tab);
-    if (afc->parsed()) return run_arm_flow(af);
+    if (afc->parsed()) {
+      af.sound_speed_given = afc->count("--sound-speed") > 0;
+      return run_arm_flow(af);
+    }
     if (ig->parsed()) return run_integrate(integ);
     if (rs->parsed()) return run_residuals(ra);
     if (os->parsed()) return run_observe(ob);
