@@ -48,7 +48,9 @@ Parameters of(const LogSpiral& s) {
           {"amplitude_kms2", s.amp},
           {"envelope_scale_kpc", s.inv_rs > 0 ? 1 / s.inv_rs : INFINITY},
           {"inner_taper_kpc", std::sqrt(s.rin2)},
-          {"scale_height_kpc", s.inv_h > 0 ? 1 / s.inv_h : INFINITY}};
+          {"scale_height_kpc", s.inv_h > 0 ? 1 / s.inv_h : INFINITY},
+          {"outer_radius_kpc", s.rout},
+          {"vertical_decay_per_kpc", s.kz}};
 }
 Parameters of(const CoxGomezSpiral& s) {
   return {{"arms", double(s.arms)},

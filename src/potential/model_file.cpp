@@ -127,11 +127,25 @@ Component read_component(const toml::table& t, const std::string& file, const st
   return c;
 }
 
-const std::vector<std::string> pattern_common = {
-    "kind",           "label",          "pattern_speed_kms_kpc", "phase_deg", "arm_azimuth_deg",
-    "arm_azimuth_at_myr", "grow_start_myr", "grow_duration_myr"};
+const std::vector<std::string> pattern_common = {"kind",
+                                                 "label",
+                                                 "pattern_speed_kms_kpc",
+                                                 "phase_deg",
+                                                 "arm_azimuth_deg",
+                                                 "arm_azimuth_at_myr",
+                                                 "grow_start_myr",
+                                                 "grow_duration_myr"};
 
 // Builds a pattern; force ratios and bar strengths need the finished axisymmetric model.
+// The arms' layer thickness h (kpc): 0.3 unless given, infinite (no vertical decay) for
+// `planar = true`, which excludes a thickness.
+double planar_arms(const io::TableReader& r) {
+  if (!r.boolean_or("planar", false)) return r.number_or("scale_height_kpc", 0.3);
+  if (r.has("scale_height_kpc"))
+    r.fail("scale_height_kpc", "planar arms have no thickness: give planar or scale_height_kpc");
+  return inf;
+}
+
 Pattern read_pattern(const toml::table& t, const std::string& file, const std::string& ctx,
                      std::size_t index, const Model& axi) {
   const std::string label_hint = t["label"].value_or(std::string{});
@@ -141,9 +155,9 @@ Pattern read_pattern(const toml::table& t, const std::string& file, const std::s
   const std::string kind = r.string("kind");
   std::vector<std::string> valid = pattern_common;
   if (kind == LogSpiral::kind)
-    valid.insert(valid.end(),
-                 {"arms", "pitch_deg", "reference_radius_kpc", "amplitude_kms2", "force_ratio",
-                  "envelope_scale_kpc", "inner_taper_kpc", "scale_height_kpc"});
+    valid.insert(valid.end(), {"arms", "pitch_deg", "reference_radius_kpc", "amplitude_kms2",
+                               "force_ratio", "envelope_scale_kpc", "inner_taper_kpc",
+                               "scale_height_kpc", "planar", "outer_radius_kpc"});
   else if (kind == CoxGomezSpiral::kind)
     valid.insert(valid.end(), {"arms", "pitch_deg", "reference_radius_kpc", "radial_scale_kpc",
                                "scale_height_kpc", "density_msun_pc3"});
@@ -188,7 +202,8 @@ Pattern read_pattern(const toml::table& t, const std::string& file, const std::s
       auto s = LogSpiral::make(
           r.integer("arms"), r.number("pitch_deg"), r.number("reference_radius_kpc"),
           r.number_or("envelope_scale_kpc", inf), r.number_or("inner_taper_kpc", 1.0),
-          r.number_or("scale_height_kpc", inf), direct ? r.number("amplitude_kms2") : 0.0);
+          planar_arms(r), direct ? r.number("amplitude_kms2") : 0.0,
+          r.number_or("outer_radius_kpc", 20.0));
       if (ratio) {
         const double f = r.number("force_ratio");
         if (!(f >= 0 && f < 1))

@@ -4,6 +4,8 @@
 #include "undertow/error.hpp"
 #include "undertow/potential/model_file.hpp"
 
+#include <variant>
+
 using namespace undertow;
 using potential::parse_model_text;
 
@@ -172,6 +174,38 @@ amplitude_kms2 = 600
                         "speed_kms = 20\nrescale = [\"halo\"]\n"),
                Catch::Contains("calibration.rescale: calibration: cannot reach"));
   }
+}
+
+TEST_CASE("A log-spiral's arms are 0.3 kpc thick unless given, planar only when asked",
+          "[model-file]") {
+  const std::string arms = std::string(hernquist) + R"([[pattern]]
+kind = "log-spiral"
+arms = 2
+pitch_deg = 12
+pattern_speed_kms_kpc = 25
+reference_radius_kpc = 8
+amplitude_kms2 = 600
+)";
+  const auto spiral = [](const potential::Model& m) {
+    return std::get<potential::LogSpiral>(m.patterns.at(0).shape);
+  };
+  const auto plain = spiral(parse_model_text(arms, "m.toml"));
+  CHECK(plain.inv_h == Approx(1 / 0.3));
+  CHECK(plain.kz > 0);
+  CHECK(plain.rout == 20);
+  const auto thick =
+      spiral(parse_model_text(arms + "scale_height_kpc = 0.5\nouter_radius_kpc = 14\n", "m.toml"));
+  CHECK(thick.inv_h == Approx(2.0));
+  CHECK(thick.rout == 14);
+  CHECK(thick.kz > plain.kz); // the smallest k_e inside a smaller radius is larger
+  const auto flat = spiral(parse_model_text(arms + "planar = true\n", "m.toml"));
+  CHECK(flat.kz == 0);
+  CHECK(flat.inv_h == 0);
+  CHECK_THAT(error_of(arms + "planar = true\nscale_height_kpc = 0.3\n"),
+             Catch::StartsWith("m.toml:13:20: pattern[1].scale_height_kpc: planar arms have no "
+                               "thickness"));
+  CHECK_THAT(error_of(arms + "envelope_scale_kpc = 0.5\nouter_radius_kpc = 30\n"),
+             Catch::Contains("pattern[1].outer_radius_kpc: the envelope falls off faster"));
 }
 
 TEST_CASE("A missing model file is a one-line error naming it", "[model-file]") {

@@ -115,6 +115,47 @@ TEST_CASE("Pattern densities satisfy Poisson's equation: Laplacian of Phi = 4 pi
   }
 }
 
+TEST_CASE("A log-spiral's arms are overdense at every height inside its outer radius: the "
+          "density at the potential trough is non-negative for 0 <= z <= 6 kpc and equals "
+          "A F (k_e^2 + K/h) / (4 pi G) in the midplane (the Laplacian of A F cos(chi) "
+          "sech^beta(K z / beta), derived), and the column density is finite",
+          "[patterns]") {
+  // Arms like the demo galaxy's and thin, tight arms like those of the original sech^2 example.
+  for (const auto& s : {LogSpiral::make(4, 13, 8.1, 9, 2.5, 0.6, 800, 20),
+                        LogSpiral::make(2, 12, 8, 7, 1.5, 0.1, 900, 16)}) {
+    const Model m = with_pattern(make_pattern(s, 25, 20));
+    const double t = 0, h = 1 / s.inv_h;
+    const auto w = s.at(1, m.patterns[0].angle_at(t));
+    REQUIRE(s.kz > 0);
+    for (double R = 1; R <= s.rout; R += 0.5) {
+      // chi = m psi + offset + m cot p ln(R / R_ref) = 0 at the trough
+      const double psi = -(w.offset + s.md * s.cotp * std::log(R / s.rref)) / s.md;
+      const double x = -R * std::cos(psi), y = R * std::sin(psi);
+      const double F = std::exp((s.rref - R) * s.inv_rs) * s.norm * R * R / (R * R + s.rin2);
+      const double mid = m.pattern_density(0, {x, y, 0}, t);
+      INFO("R = " << R);
+      CHECK(mid ==
+            Approx(s.amp * F * (s.effective_wavenumber2(R) + s.kz / h) / (4 * units::pi * units::G))
+                .epsilon(1e-6));
+      double column = 0;
+      for (double z = 0.01; z <= 6; z += 0.01) {
+        const double rho = m.pattern_density(0, {x, y, z}, t);
+        INFO("z = " << z << ": " << rho << " Msun/kpc^3, midplane " << mid);
+        REQUIRE(rho >= -1e-9 * mid);
+        column += 0.01 * rho;
+      }
+      CHECK(column > 0);
+      // Far from the plane the density falls as exp(-K |z|), so the column converges (where
+      // k_e > K; at the radius of the minimum it falls faster still).
+      if (s.effective_wavenumber2(R) > 1.01 * s.kz * s.kz)
+        CHECK(m.pattern_density(0, {x, y, 6}, t) / m.pattern_density(0, {x, y, 5.5}, t) ==
+              Approx(std::exp(-0.5 * s.kz)).epsilon(1e-4));
+    }
+  }
+  // An envelope that falls faster than the arms wind is refused.
+  CHECK_THROWS(LogSpiral::make(2, 60, 8, 1.0, 1, 0.3, 100, 30));
+}
+
 TEST_CASE("The Dehnen bar is harmonic outside its radius: zero density (Dehnen 2000, eq. 1)",
           "[patterns]") {
   const Model m = with_pattern(all_patterns().back());

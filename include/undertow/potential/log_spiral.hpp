@@ -5,8 +5,15 @@
 // psi the Galactocentric azimuth in the sense of rotation, measured from the Sun's direction.
 // With A > 0 the potential troughs (the arms) lie at chi = 0: at R_ref, psi = psi_p, and
 // the arms trail for pitch p > 0. Envelope F = exp(-(R - R_ref)/R_s) T(R)/T(R_ref) with the
-// inner taper T = R^2 / (R^2 + R_in^2), which keeps the force finite at the centre;
-// vertical profile Z = sech^2(z / h).
+// inner taper T = R^2 / (R^2 + R_in^2), which keeps the force finite at the centre.
+// Vertical profile Z = sech^beta(K z / beta), beta = K h (the form of Cox & Gomez 2002, ApJS
+// 142, 261, with one K): the arm's density, A F cos(chi) Z [k_e^2 - K^2 tanh^2 + (K^2/beta)
+// sech^2] / (4 pi G) with k_e^2 = m^2 / (R^2 sin^2 p) - (F'' + F'/R) / F, lies in a layer of
+// thickness ~h and keeps its sign at every height wherever K <= k_e(R). K is therefore the
+// smallest k_e inside the outer radius R_out: there the arms are overdense and the gaps
+// underdense at every height, and the column density is finite. The sech^2(z/h) profile of
+// earlier versions was the case K = 2/h, whose arms turn underdense above the plane.
+// h = infinity: no vertical decay (planar arms; infinite column density, midplane use only).
 #include "undertow/detail/kernel.hpp"
 #include "undertow/units.hpp"
 
@@ -21,13 +28,26 @@ struct LogSpiral {
   double inv_rs = 0; // 1 / envelope scale length, 1/kpc (0: flat envelope)
   double rin2 = 1;   // inner taper radius squared, kpc^2
   double inv_h = 0;  // 1 / scale height, 1/kpc (0: no vertical decay)
+  double kz = 0;     // K, the vertical decay rate far from the plane, 1/kpc (0: planar)
+  double beta = 1;   // K h
+  double kz2b = 0;   // 2 K / beta = 2 / h
+  double rout = 20;  // kpc, out to which the arm density keeps its sign at every height
   double amp = 0;    // A, (km/s)^2
   double norm = 1;   // 1 / T(R_ref)
   double log_rref = std::log(8.0);
 
+  // k_e^2 at R (1/kpc^2): the squared wavenumber of the arms less the envelope's curvature.
+  double effective_wavenumber2(double R) const {
+    const double d = R * R + rin2;
+    const double g = -inv_rs + 2 * rin2 / (R * d);                      // F'/F
+    const double gp = -2 * rin2 * (3 * R * R + rin2) / (R * R * d * d); // (F'/F)'
+    return md * md * (1 + cotp * cotp) / (R * R) - (gp + g * g + g / R);
+  }
+
   // pitch in degrees (0, 90); envelope_kpc and height_kpc may be +infinity.
   static LogSpiral make(int arms, double pitch_deg, double rref_kpc, double envelope_kpc,
-                        double taper_kpc, double height_kpc, double amplitude_kms2) {
+                        double taper_kpc, double height_kpc, double amplitude_kms2,
+                        double outer_kpc = 20) {
     if (arms < 1 || arms > 16)
       throw detail::ParameterError("arms", "must be a whole number from 1 to 16, got " +
                                                std::to_string(arms));
@@ -53,6 +73,25 @@ struct LogSpiral {
     s.amp = detail::finite(amplitude_kms2, "amplitude_kms2");
     s.norm = (s.rref * s.rref + s.rin2) / (s.rref * s.rref);
     s.log_rref = std::log(s.rref);
+    s.rout = detail::positive(outer_kpc, "outer_radius_kpc");
+    if (s.inv_h > 0) {
+      // K = the smallest k_e over (0, R_out]; k_e falls with R but for the taper's bump.
+      double k2 = INFINITY;
+      for (int i = 1; i <= 4000; ++i) {
+        const double R = s.rout * i / 4000.0;
+        k2 = std::min(k2, s.effective_wavenumber2(R));
+      }
+      if (!(k2 > 0))
+        throw detail::ParameterError("outer_radius_kpc",
+                                     "the envelope falls off faster than the arms wind inside " +
+                                         detail::num(s.rout) +
+                                         " kpc, so no vertical profile keeps the arms overdense at "
+                                         "every height there: lower outer_radius_kpc or lengthen "
+                                         "envelope_scale_kpc");
+      s.kz = std::sqrt(k2);
+      s.beta = s.kz * height_kpc;
+      s.kz2b = 2 * s.kz / s.beta;
+    }
     return s;
   }
 
@@ -80,8 +119,9 @@ struct LogSpiral {
     const T R2 = x * x + y * y + detail::tiny2;
     const T R = sqrt(R2);
     const T F = exp((rref - R) * inv_rs) * norm * R2 / (R2 + rin2);
-    const T e = exp(-2.0 * abs(z) * inv_h);
-    const T Z = 4.0 * e / ((1.0 + e) * (1.0 + e));
+    // Z = sech^beta(K z / beta) = (2 / (1 + e))^beta exp(-K |z|), e = exp(-2 K |z| / beta)
+    const T e = exp(-kz2b * abs(z));
+    const T Z = exp(beta * log(2.0 / (1.0 + e)) - kz * abs(z));
     const T chi = md * atan2(y, -x) + w.offset + md * cotp * log(R / rref);
     return -w.amp * F * Z * cos(chi);
   }
@@ -100,7 +140,7 @@ struct LogSpiral {
     const double R2 = x * x + y * y + detail::tiny2;
     const double R = std::sqrt(R2);
     const double dd = R2 + rin2;
-    const double e = std::exp(-2.0 * std::fabs(z) * inv_h);
+    const double e = std::exp(-kz2b * std::fabs(z));
     const double ope = 1.0 + e;
     const double inv = 1.0 / (R * dd * ope);
     const double iR = inv * dd * ope;
@@ -112,8 +152,8 @@ struct LogSpiral {
     const double Fp = Eid * (2 * R * rin2 * id - inv_rs * R2);
     const double FoR = Eid * R; // F / R
     const double FoR2 = Eid;    // F / R^2
-    const double Z = 4.0 * e * iope * iope;
-    const double Zp = -2.0 * inv_h * Z * std::copysign((1.0 - e) * iope, z);
+    const double Z = std::exp(beta * std::log(2.0 * iope) - kz * std::fabs(z));
+    const double Zp = -kz * Z * std::copysign((1.0 - e) * iope, z); // dZ/dz = -K tanh Z
     double c, s;
     if constexpr (M == 0) {
       const double chi = md * std::atan2(y, -x) + w.offset + md * cotp * (std::log(R) - log_rref);
