@@ -51,6 +51,14 @@ bool contact(const orbit::PhaseSpace& p, std::size_t i, std::size_t j, double d2
   return t <= dt;
 }
 
+// Working arrays kept from pass to pass (one set per calling thread): a run calls the search
+// every step, and fresh arrays of tens of megabytes would cost page faults and zeroing each time.
+struct Scratch {
+  std::vector<std::size_t> active, slow, fast, start, fill, order, col;
+  std::vector<double> px, py, pz, s, sorted_s, cx, cy, cz, cs;
+  std::vector<char> done;
+};
+
 } // namespace
 
 CollisionPass collide_pairs(orbit::PhaseSpace& p, const CloudCollisions& c, double dt_myr,
@@ -67,15 +75,17 @@ CollisionPass collide_pairs(orbit::PhaseSpace& p, const CloudCollisions& c, doub
   double K = ref.lipschitz();
   if (!(K * dt / 2 <= 0.25)) ref = CircularFlow(), K = 0; // too steep to help: no flow
   const double cm = (dt / 2) / (1 - K * dt / 2), shrink = 1 - K * cm;
-  std::vector<std::size_t> active;
-  active.reserve(n);
+  thread_local Scratch w;
+  auto& active = w.active;
+  active.clear();
   for (std::size_t i = 0; i < n; ++i)
     if (std::fabs(p.x[i]) <= c.extent_kpc && std::fabs(p.y[i]) <= c.extent_kpc &&
         std::isfinite(p.z[i]) && std::isfinite(p.vx[i] + p.vy[i] + p.vz[i]))
       active.push_back(i);
   const std::size_t m = active.size();
   if (m < 2) return out;
-  std::vector<double> px(m), py(m), pz(m), s(m);
+  auto &px = w.px, &py = w.py, &pz = w.pz, &s = w.s;
+  px.resize(m), py.resize(m), pz.resize(m), s.resize(m);
 #pragma omp parallel for schedule(static)
   for (std::size_t k = 0; k < m; ++k) {
     const std::size_t i = active[k];
@@ -91,7 +101,8 @@ CollisionPass collide_pairs(orbit::PhaseSpace& p, const CloudCollisions& c, doub
   // Cells of side h = twice the largest search radius of all but the fastest clouds, and no
   // more (x, y) columns than about 1 per cloud.
   const std::size_t n_fast_max = std::max<std::size_t>(64, m / 1000);
-  std::vector<double> sorted_s = s;
+  auto& sorted_s = w.sorted_s;
+  sorted_s.assign(s.begin(), s.end());
   const std::size_t q = m > n_fast_max ? m - n_fast_max - 1 : 0;
   std::nth_element(sorted_s.begin(), sorted_s.begin() + long(q), sorted_s.end());
   double h = 2 * sorted_s[q];
@@ -107,7 +118,8 @@ CollisionPass collide_pairs(orbit::PhaseSpace& p, const CloudCollisions& c, doub
     if (h >= h_min || tries == 8) break;
     h = h_min;
   }
-  std::vector<std::size_t> slow, fast;
+  auto &slow = w.slow, &fast = w.fast;
+  slow.clear(), fast.clear();
   for (std::size_t k = 0; k < m; ++k)
     (2 * s[k] <= h ? slow : fast).push_back(k);
   const long nx = long((x1 - x0) / h) + 1, ny = long((y1 - y0) / h) + 1;
@@ -115,15 +127,23 @@ CollisionPass collide_pairs(orbit::PhaseSpace& p, const CloudCollisions& c, doub
     return std::size_t(long((px[k] - x0) / h) * ny + long((py[k] - y0) / h));
   };
   // Counting sort of the slow clouds into columns, each column then ordered by z (and index).
-  std::vector<std::size_t> start(std::size_t(nx * ny) + 1, 0), order(slow.size());
-  for (std::size_t k : slow)
-    ++start[column(k) + 1];
+  auto &start = w.start, &order = w.order;
+  start.assign(std::size_t(nx * ny) + 1, 0);
+  order.resize(slow.size());
+  auto& col = w.col;
+  col.resize(slow.size());
+#pragma omp parallel for schedule(static)
+  for (std::size_t e = 0; e < slow.size(); ++e)
+    col[e] = column(slow[e]);
+  for (std::size_t c2 : col)
+    ++start[c2 + 1];
   for (std::size_t c2 = 1; c2 < start.size(); ++c2)
     start[c2] += start[c2 - 1];
   {
-    std::vector<std::size_t> fill(start.begin(), start.end() - 1);
-    for (std::size_t k : slow)
-      order[fill[column(k)]++] = k;
+    auto& fill = w.fill;
+    fill.assign(start.begin(), start.end() - 1);
+    for (std::size_t e = 0; e < slow.size(); ++e)
+      order[fill[col[e]]++] = slow[e];
   }
   const auto by_z = [&](std::size_t u, std::size_t v) {
     return pz[u] != pz[v] ? pz[u] < pz[v] : u < v;
@@ -135,7 +155,8 @@ CollisionPass collide_pairs(orbit::PhaseSpace& p, const CloudCollisions& c, doub
               order.begin() + long(start[std::size_t(c2) + 1]), by_z);
   // The slow clouds' mid-points and radii in column order, so the sweep reads memory in order.
   const std::size_t ns = order.size();
-  std::vector<double> cx(ns), cy(ns), cz(ns), cs(ns);
+  auto &cx = w.cx, &cy = w.cy, &cz = w.cz, &cs = w.cs;
+  cx.resize(ns), cy.resize(ns), cz.resize(ns), cs.resize(ns);
 #pragma omp parallel for schedule(static)
   for (std::size_t e = 0; e < ns; ++e) {
     const std::size_t k = order[e];
@@ -161,32 +182,34 @@ CollisionPass collide_pairs(orbit::PhaseSpace& p, const CloudCollisions& c, doub
       if (contact(p, i, j, d2, dt, t))
         mine.push_back({t, std::min(p.id[i], p.id[j]), std::max(p.id[i], p.id[j]), i, j});
     };
-    // Slow with slow: the column itself (later in z order) and four of its eight neighbours,
-    // so that each pair is met once; columns hold a few clouds, scanned in z order.
+    // Slow with slow, each pair met once: cloud e against the clouds after it in its column
+    // and the next column (iy + 1), which follow it in memory, and against the three columns
+    // (ix + 1, iy - 1 .. iy + 1), which are adjacent in memory too. Columns hold a few clouds,
+    // so the ranges are scanned whole.
+    const double* __restrict X = cx.data();
+    const double* __restrict Y = cy.data();
+    const double* __restrict Z = cz.data();
+    const double* __restrict S = cs.data();
+    const std::size_t* __restrict B = start.data();
+    const auto scan = [&](std::size_t e, std::size_t f0, std::size_t f1) {
+      const double xe = X[e], ye = Y[e], ze = Z[e], se = S[e];
+      for (std::size_t f = f0; f < f1; ++f) {
+        const double dx = X[f] - xe, dy = Y[f] - ye, dz = Z[f] - ze, reach = se + S[f];
+        if (dx * dx + dy * dy + dz * dz <= reach * reach) exact(order[e], order[f]);
+      }
+    };
 #pragma omp for schedule(dynamic, 1024)
     for (long c2 = 0; c2 < ncol; ++c2) {
       const long ix = c2 / ny, iy = c2 % ny;
-      const std::size_t end = start[std::size_t(c2) + 1];
-      for (std::size_t e = start[std::size_t(c2)]; e < end; ++e) {
-        const double zx = cz[e];
-        const auto near = [&](std::size_t f) {
-          const double dx = cx[f] - cx[e], dy = cy[f] - cy[e], dz = cz[f] - zx;
-          const double reach = cs[e] + cs[f];
-          if (dx * dx + dy * dy + dz * dz <= reach * reach) exact(order[e], order[f]);
-        };
-        for (std::size_t f = e + 1; f < end && cz[f] <= zx + h; ++f)
-          near(f);
-        static constexpr long half[4][2] = {{1, -1}, {1, 0}, {1, 1}, {0, 1}};
-        for (const auto& d : half) {
-          const long jx = ix + d[0], jy = iy + d[1];
-          if (jx >= nx || jy < 0 || jy >= ny) continue;
-          const std::size_t c3 = std::size_t(jx * ny + jy);
-          for (std::size_t f = start[c3]; f < start[c3 + 1]; ++f) {
-            if (cz[f] < zx - h) continue;
-            if (cz[f] > zx + h) break;
-            near(f);
-          }
-        }
+      const std::size_t end = B[std::size_t(c2) + 1];
+      const std::size_t next = iy + 1 < ny ? B[std::size_t(c2) + 2] : end;
+      const bool right = ix + 1 < nx;
+      const std::size_t r0 = right ? B[std::size_t((ix + 1) * ny + std::max(iy - 1, 0L))] : 0,
+                        r1 = right ? B[std::size_t((ix + 1) * ny + std::min(iy + 1, ny - 1)) + 1]
+                                   : 0;
+      for (std::size_t e = B[std::size_t(c2)]; e < end; ++e) {
+        scan(e, e + 1, next);
+        scan(e, r0, r1);
       }
     }
     // Each fast cloud with every slow cloud within its reach, and with the later fast ones.
@@ -234,7 +257,8 @@ CollisionPass collide_pairs(orbit::PhaseSpace& p, const CloudCollisions& c, doub
     out.candidate_pairs += t;
   std::sort(hits.begin(), hits.end());
 
-  std::vector<char> done(n, 0);
+  auto& done = w.done;
+  done.assign(n, 0);
   for (const Hit& hit : hits) {
     const std::size_t i = hit.i, j = hit.j;
     const double t = hit.t;
