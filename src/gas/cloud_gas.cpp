@@ -41,45 +41,75 @@ GasState GasState::of_clouds(orbit::PhaseSpace clouds, double t_myr) {
 }
 
 namespace {
-// Entry i of the result is entry perm[i] of g, for the clouds; the stars stay as they are.
-GasState permuted(const GasState& g, const std::vector<std::size_t>& perm) {
-  GasState o = g;
-  const std::size_t n = g.clouds;
-  for (std::size_t i = 0; i < n; ++i) {
-    const std::size_t k = perm[i];
-    o.p.id[i] = g.p.id[k];
-    o.p.x[i] = g.p.x[k], o.p.y[i] = g.p.y[k], o.p.z[i] = g.p.z[k];
-    o.p.vx[i] = g.p.vx[k], o.p.vy[i] = g.p.vy[k], o.p.vz[i] = g.p.vz[k];
-    o.birth_time_myr[i] = g.birth_time_myr[k];
-    for (std::size_t c = 0; c < 3; ++c)
-      o.birth_position[3 * i + c] = g.birth_position[3 * k + c];
-    o.parents[2 * i] = g.parents[2 * k], o.parents[2 * i + 1] = g.parents[2 * k + 1];
-    o.slot[i] = g.slot[k];
-  }
-  return o;
+// Entries [0, perm.size()) of v (in groups of `stride`) become entries perm[0], perm[1], ...;
+// the rest stay.
+template <class T>
+void permute_front(std::vector<T>& v, const std::vector<std::size_t>& perm, std::size_t stride,
+                   std::vector<T>& tmp) {
+  const std::size_t n = perm.size();
+  tmp.resize(n * stride);
+#pragma omp parallel for schedule(static)
+  for (std::size_t i = 0; i < n; ++i)
+    for (std::size_t c = 0; c < stride; ++c)
+      tmp[stride * i + c] = v[stride * perm[i] + c];
+  std::copy(tmp.begin(), tmp.end(), v.begin());
 }
 } // namespace
 
+// Entry i becomes entry perm[i], for the clouds; the stars stay as they are.
+void GasState::permute_clouds(const std::vector<std::size_t>& perm) {
+  std::vector<double> d;
+  std::vector<std::uint64_t> u;
+  std::vector<std::size_t> z;
+  for (auto* v : {&p.x, &p.y, &p.z, &p.vx, &p.vy, &p.vz, &birth_time_myr})
+    permute_front(*v, perm, 1, d);
+  permute_front(birth_position, perm, 3, d);
+  permute_front(p.id, perm, 1, u);
+  permute_front(parents, perm, 2, u);
+  permute_front(slot, perm, 1, z);
+}
+
 void GasState::sort_clouds_by_place(double cell_kpc) {
-  std::vector<std::pair<std::int64_t, std::size_t>> key(clouds);
+  // Order by (x cell, y cell), ties by index: a stable counting sort over the occupied range of
+  // cells when it is not much larger than the number of clouds, else a comparison sort.
+  std::vector<std::int64_t> cx(clouds), cy(clouds);
+  std::int64_t x0 = 0, x1 = -1, y0 = 0, y1 = -1;
   for (std::size_t i = 0; i < clouds; ++i) {
-    const double fx = std::floor(p.x[i] / cell_kpc), fy = std::floor(p.y[i] / cell_kpc);
-    const auto cx = std::int64_t(std::clamp(fx, -1e6, 1e6)),
-               cy = std::int64_t(std::clamp(fy, -1e6, 1e6));
-    key[i] = {cx * 4000000 + cy, i};
+    cx[i] = std::int64_t(std::clamp(std::floor(p.x[i] / cell_kpc), -1e6, 1e6));
+    cy[i] = std::int64_t(std::clamp(std::floor(p.y[i] / cell_kpc), -1e6, 1e6));
+    if (i == 0) x0 = x1 = cx[i], y0 = y1 = cy[i];
+    x0 = std::min(x0, cx[i]), x1 = std::max(x1, cx[i]);
+    y0 = std::min(y0, cy[i]), y1 = std::max(y1, cy[i]);
   }
-  std::sort(key.begin(), key.end());
   std::vector<std::size_t> perm(clouds);
-  for (std::size_t i = 0; i < clouds; ++i)
-    perm[i] = key[i].second;
-  *this = permuted(*this, perm);
+  const double cells = double(x1 - x0 + 1) * double(y1 - y0 + 1);
+  if (clouds > 0 && cells <= 8.0 * double(clouds) + 4096) {
+    const std::int64_t ny = y1 - y0 + 1;
+    std::vector<std::size_t> start(std::size_t(cells) + 1, 0);
+    for (std::size_t i = 0; i < clouds; ++i)
+      ++start[std::size_t((cx[i] - x0) * ny + (cy[i] - y0)) + 1];
+    for (std::size_t c = 1; c < start.size(); ++c)
+      start[c] += start[c - 1];
+    for (std::size_t i = 0; i < clouds; ++i)
+      perm[start[std::size_t((cx[i] - x0) * ny + (cy[i] - y0))]++] = i;
+  } else {
+    std::vector<std::pair<std::int64_t, std::size_t>> key(clouds);
+    for (std::size_t i = 0; i < clouds; ++i)
+      key[i] = {cx[i] * 4000000 + cy[i], i};
+    std::sort(key.begin(), key.end());
+    for (std::size_t i = 0; i < clouds; ++i)
+      perm[i] = key[i].second;
+  }
+  permute_clouds(perm);
 }
 
 GasState GasState::in_starting_order() const {
   std::vector<std::size_t> perm(clouds);
   for (std::size_t i = 0; i < clouds; ++i)
     perm[slot[i]] = i;
-  return permuted(*this, perm);
+  GasState o = *this;
+  o.permute_clouds(perm);
+  return o;
 }
 
 StepReport gas_step(GasState& g, const GasSettings& s, const CircularFlow& flow, double t_myr,

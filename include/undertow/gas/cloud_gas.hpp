@@ -38,6 +38,8 @@ struct GasState {
 
   // Reorders the clouds by the (x, y) cell of side cell_kpc they are in.
   void sort_clouds_by_place(double cell_kpc);
+  // Cloud i becomes cloud perm[i] (every per-cloud array); the stars stay.
+  void permute_clouds(const std::vector<std::size_t>& perm);
   // The state with the clouds in their starting order (for snapshots).
   GasState in_starting_order() const;
 
