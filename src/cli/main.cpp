@@ -353,16 +353,9 @@ int run_arm_flow(const ArmFlowArgs& a) {
   std::size_t used = 0;
   if (!a.clouds.empty()) {
     const io::SnapshotReader rd(a.clouds);
-    const auto times = rd.times_myr();
-    std::size_t k = times.size() - 1;
-    if (a.time) {
-      k = times.size();
-      for (std::size_t i = 0; i < times.size(); ++i)
-        if (std::fabs(times[i] - *a.time) < 1e-9 * (1 + std::fabs(times[i]))) k = i;
-      if (k == times.size())
-        throw InputError(a.clouds + ": no snapshot at " + io::format_number(*a.time, 6) + " Myr");
-    }
-    snap = rd.read(k);
+    const auto k = rd.index_at(a.time);
+    if (!k) throw InputError(rd.missing_time(a.time.value_or(NAN)));
+    snap = rd.read(*k);
     cloud_side = run::cloud_bins(*snap, model, problem, a.ring_width / 2, a.bins, dispersion, used);
     // The clouds' own dispersion plays the sound speed unless one is given.
     if (!a.sound_speed_given) problem.sound_speed = dispersion;

@@ -37,6 +37,7 @@ GasState GasState::of_clouds(orbit::PhaseSpace clouds, double t_myr) {
   g.slot.resize(n);
   for (std::size_t i = 0; i < n; ++i)
     g.slot[i] = i;
+  g.acc.forget(n);
   return g;
 }
 
@@ -61,7 +62,9 @@ void GasState::permute_clouds(const std::vector<std::size_t>& perm) {
   std::vector<double> d;
   std::vector<std::uint64_t> u;
   std::vector<std::size_t> z;
-  for (auto* v : {&p.x, &p.y, &p.z, &p.vx, &p.vy, &p.vz, &birth_time_myr})
+  if (acc.ax.size() != p.size()) acc.forget(p.size());
+  for (auto* v :
+       {&p.x, &p.y, &p.z, &p.vx, &p.vy, &p.vz, &birth_time_myr, &acc.ax, &acc.ay, &acc.az})
     permute_front(*v, perm, 1, d);
   permute_front(birth_position, perm, 3, d);
   permute_front(p.id, perm, 1, u);
@@ -112,6 +115,24 @@ GasState GasState::in_starting_order() const {
   return o;
 }
 
+std::size_t GasState::retire_stars(double t_myr, double max_age_myr, std::size_t slack) {
+  if (acc.ax.size() != p.size()) acc.forget(p.size());
+  std::size_t k = 0; // stars are in order of birth: the old ones come first
+  while (clouds + k < p.size() && t_myr - birth_time_myr[clouds + k] > max_age_myr)
+    ++k;
+  if (k == 0 || k <= slack) return 0;
+  const auto cut = [&](auto& v, std::size_t stride) {
+    v.erase(v.begin() + long(stride * clouds), v.begin() + long(stride * (clouds + k)));
+  };
+  for (auto* v :
+       {&p.x, &p.y, &p.z, &p.vx, &p.vy, &p.vz, &birth_time_myr, &acc.ax, &acc.ay, &acc.az})
+    cut(*v, 1);
+  cut(p.id, 1);
+  cut(birth_position, 3);
+  cut(parents, 2);
+  return k;
+}
+
 StepReport gas_step(GasState& g, const GasSettings& s, const CircularFlow& flow, double t_myr,
                     double dt_myr, std::uint64_t seed) {
   StepReport r;
@@ -122,26 +143,10 @@ StepReport gas_step(GasState& g, const GasSettings& s, const CircularFlow& flow,
   r.energy_lost = pass.energy_lost;
   stir(g.p, g.clouds, s.stirring_kms, dt_myr, t_myr, seed);
   if (!s.stars) return r;
-  // retire stars that are too old, keeping the order of the rest
-  std::size_t keep = g.clouds;
-  for (std::size_t i = g.clouds; i < g.p.size(); ++i) {
-    if (t_myr - g.birth_time_myr[i] > s.stars->max_age_myr) continue;
-    if (keep != i) {
-      g.p.id[keep] = g.p.id[i];
-      g.p.x[keep] = g.p.x[i], g.p.y[keep] = g.p.y[i], g.p.z[keep] = g.p.z[i];
-      g.p.vx[keep] = g.p.vx[i], g.p.vy[keep] = g.p.vy[i], g.p.vz[keep] = g.p.vz[i];
-      g.birth_time_myr[keep] = g.birth_time_myr[i];
-      for (int k = 0; k < 3; ++k)
-        g.birth_position[3 * keep + std::size_t(k)] = g.birth_position[3 * i + std::size_t(k)];
-      g.parents[2 * keep] = g.parents[2 * i], g.parents[2 * keep + 1] = g.parents[2 * i + 1];
-    }
-    ++keep;
-  }
-  r.stars_retired = g.p.size() - keep;
-  g.p.resize(keep);
-  g.birth_time_myr.resize(keep);
-  g.birth_position.resize(3 * keep);
-  g.parents.resize(2 * keep);
+  if (g.acc.ax.size() != g.p.size()) g.acc.forget(g.p.size());
+  // Cutting the old stars out moves every younger one, so it waits until they are an eighth of
+  // the stars; until then they orbit on unseen (retire_stars before anything reads the state).
+  r.stars_retired = g.retire_stars(t_myr, s.stars->max_age_myr, g.stars() / 8);
   for (const Newborn& b : form_stars(pass.events, *s.stars, t_myr, seed)) {
     g.p.id.push_back(g.next_star_id++);
     g.p.x.push_back(b.x), g.p.y.push_back(b.y), g.p.z.push_back(b.z);
@@ -149,6 +154,8 @@ StepReport gas_step(GasState& g, const GasSettings& s, const CircularFlow& flow,
     g.birth_time_myr.push_back(b.birth_time_myr);
     g.birth_position.insert(g.birth_position.end(), {b.bx, b.by, b.bz});
     g.parents.insert(g.parents.end(), {b.parent_a, b.parent_b});
+    for (auto* a : {&g.acc.ax, &g.acc.ay, &g.acc.az})
+      a->push_back(NAN); // computed at the next step's start
     ++r.stars_formed;
   }
   return r;

@@ -1,6 +1,7 @@
 #include "undertow/io/snapshot.hpp"
 
 #include <chrono>
+#include <cmath>
 #include <cstdio>
 #include <ctime>
 #include <filesystem>
@@ -8,6 +9,7 @@
 
 #include "undertow/error.hpp"
 #include "undertow/io/hdf5.hpp"
+#include "undertow/io/table.hpp"
 #include "undertow/potential/describe.hpp"
 
 namespace undertow::io {
@@ -187,6 +189,23 @@ std::vector<double> SnapshotReader::times_myr() const {
     t.push_back(h5::get_attr_double(f, g.id(), "time_myr"));
   }
   return t;
+}
+
+std::optional<std::size_t> SnapshotReader::index_at(std::optional<double> t_myr) const {
+  const auto times = times_myr();
+  if (times.empty()) return std::nullopt;
+  if (!t_myr) return times.size() - 1;
+  for (std::size_t i = 0; i < times.size(); ++i)
+    if (std::fabs(times[i] - *t_myr) < 1e-9 * (1 + std::fabs(times[i]))) return i;
+  return std::nullopt;
+}
+
+std::string SnapshotReader::missing_time(double t_myr) const {
+  std::string list;
+  for (double t : times_myr())
+    list += (list.empty() ? "" : ", ") + format_number(t, 6);
+  return "no snapshot at " + format_number(t_myr, 6) + " Myr in " + path_ + " (times: " + list +
+         ")";
 }
 
 Snapshot SnapshotReader::read(std::size_t i) const {

@@ -84,7 +84,7 @@ using McLachlan = ode::symplectic_rkn_sb3a_mclachlan<Vec, Vec, double, Vec, Vec,
 
 void advance_batch_symplectic(const Model& m, PhaseSpace& p, std::size_t first, std::size_t n,
                               double t0, double dt, std::size_t k0, std::size_t steps,
-                              Method method) {
+                              Method method, CarriedAccelerations* carried = nullptr) {
   const bool extended = method == Method::mclachlan4;
   thread_local Vec q, v;
   q.resize(3 * n + (extended ? 1 : 0));
@@ -93,7 +93,33 @@ void advance_batch_symplectic(const Model& m, PhaseSpace& p, std::size_t first, 
   const BatchForce f{&m, n};
   // Each step starts at t0 + k dt computed afresh, so a run resumed at a segment boundary
   // repeats the same arithmetic as one that never stopped.
-  if (method == Method::leapfrog) {
+  if (method == Method::leapfrog && carried) {
+    // odeint's step with explicit accelerations: the arithmetic of do_step_v1 below, with the
+    // acceleration at the start taken from the last call where it is known.
+    thread_local Verlet st;
+    thread_local Vec a0, a1;
+    a0.resize(3 * n), a1.resize(3 * n);
+    bool unknown = false;
+    for (std::size_t i = 0; i < n; ++i) {
+      a0[i] = carried->ax[first + i], a0[n + i] = carried->ay[first + i];
+      a0[2 * n + i] = carried->az[first + i];
+      unknown = unknown || std::isnan(a0[i]);
+    }
+    if (unknown) { // afresh for the whole batch, kept only where nothing was carried
+      f.eval(q, a1, t0 + double(k0) * dt);
+      for (std::size_t i = 0; i < n; ++i)
+        if (std::isnan(a0[i])) a0[i] = a1[i], a0[n + i] = a1[n + i], a0[2 * n + i] = a1[2 * n + i];
+    }
+    const VerletSystem sys{f};
+    for (std::size_t k = k0; k < k0 + steps; ++k) {
+      st.do_step(sys, q, v, a0, q, v, a1, t0 + double(k) * dt, dt);
+      std::swap(a0, a1);
+    }
+    for (std::size_t i = 0; i < n; ++i) {
+      carried->ax[first + i] = a0[i], carried->ay[first + i] = a0[n + i];
+      carried->az[first + i] = a0[2 * n + i];
+    }
+  } else if (method == Method::leapfrog) {
     thread_local Verlet st;
     st.reset(); // no acceleration carried over from another batch
     const VerletSystem sys{f};
@@ -229,8 +255,14 @@ bool advance(const Model& m, PhaseSpace& p, double t0_myr, double t1_myr,
   return !stopped;
 }
 
+void CarriedAccelerations::forget(std::size_t n) {
+  for (auto* a : {&ax, &ay, &az})
+    a->assign(n, NAN);
+}
+
 bool advance_steps(const Model& m, PhaseSpace& p, double t0_myr, double t1_myr, std::size_t first,
-                   std::size_t count, const IntegrationSettings& s, const std::atomic<bool>* stop) {
+                   std::size_t count, const IntegrationSettings& s, const std::atomic<bool>* stop,
+                   CarriedAccelerations* carried) {
   if (!is_symplectic(s.method))
     throw InputError("advance_steps needs a fixed-step method, not " + method_name(s.method));
   const std::size_t N = p.size();
@@ -240,6 +272,8 @@ bool advance_steps(const Model& m, PhaseSpace& p, double t0_myr, double t1_myr, 
   if (first + count > steps) throw InputError("advance_steps: steps beyond the segment");
   const double dt = (t1_myr - t0_myr) / double(steps) / kMyr, t0 = t0_myr / kMyr;
   const long nb = long((N + s.batch - 1) / s.batch);
+  if (s.method != Method::leapfrog) carried = nullptr;
+  if (carried && carried->ax.size() != N) carried->forget(N);
   bool stopped = false;
 #pragma omp parallel for schedule(dynamic, 1) reduction(|| : stopped)
   for (long b = 0; b < nb; ++b) {
@@ -248,7 +282,7 @@ bool advance_steps(const Model& m, PhaseSpace& p, double t0_myr, double t1_myr, 
       continue;
     }
     const std::size_t i0 = std::size_t(b) * s.batch, n = std::min(s.batch, N - i0);
-    advance_batch_symplectic(m, p, i0, n, t0, dt, first, count, s.method);
+    advance_batch_symplectic(m, p, i0, n, t0, dt, first, count, s.method, carried);
   }
   return !stopped;
 }

@@ -130,15 +130,22 @@ bool advance_segment(const scenario::Scenario& s, const gas::CircularFlow& flow,
                      const std::atomic<bool>* stop, EnsembleResult& res) {
   if (!s.gas) return orbit::advance(s.model, g.p, ta, tb, s.integration, report, stop);
   const std::size_t n = fixed_steps(s, ta, tb);
+  // Accelerations are carried within a segment and computed afresh at its start, where an
+  // interrupted run resumes: the resumed run repeats the same arithmetic.
+  g.acc.forget(g.p.size());
   for (std::size_t j = 0; j < n; ++j) {
     const double t0 = ta + (tb - ta) * double(j) / double(n);
     const double t1 = j + 1 == n ? tb : ta + (tb - ta) * double(j + 1) / double(n);
     const auto step = gas::gas_step(g, *s.gas, flow, t0, t1 - t0, s.seed);
     res.collisions += step.collisions;
     res.stars_formed += step.stars_formed;
-    if (!orbit::advance_steps(s.model, g.p, ta, tb, j, 1, s.integration, stop)) return false;
+    if (!orbit::advance_steps(s.model, g.p, ta, tb, j, 1, s.integration, stop, &g.acc))
+      return false;
     report((j + 1) * g.p.size() / n);
   }
+  // gas_step retires old stars in bulk; the snapshot holds those of the last step's start
+  if (s.gas->stars && n > 0)
+    g.retire_stars(ta + (tb - ta) * double(n - 1) / double(n), s.gas->stars->max_age_myr);
   return true;
 }
 

@@ -47,7 +47,8 @@ Setup setup(std::size_t n) {
   s.orbit.step_myr = 0.5;
   for (int k = 0; k < 40; ++k) {
     gas::gas_step(s.state, s.gas, s.flow, 0.5 * k, 0.5, 5);
-    orbit::advance_steps(s.model, s.state.p, 0.5 * k, 0.5 * (k + 1), 0, 1, s.orbit);
+    orbit::advance_steps(s.model, s.state.p, 0.5 * k, 0.5 * (k + 1), 0, 1, s.orbit, nullptr,
+                         &s.state.acc);
   }
   return s;
 }
@@ -73,7 +74,7 @@ void BM_gas_step(benchmark::State& st) {
   double t = 20;
   for (auto _ : st) {
     gas::gas_step(s.state, s.gas, s.flow, t, 0.5, 5);
-    orbit::advance_steps(s.model, s.state.p, t, t + 0.5, 0, 1, s.orbit);
+    orbit::advance_steps(s.model, s.state.p, t, t + 0.5, 0, 1, s.orbit, nullptr, &s.state.acc);
     t += 0.5;
   }
   const double cloud_steps = double(st.iterations()) * double(s.state.clouds);
@@ -86,7 +87,8 @@ void BM_gas_full_million_1gyr(benchmark::State& st) {
     auto s = setup(1000000);
     for (int k = 40; k < 2000; ++k) {
       gas::gas_step(s.state, s.gas, s.flow, 0.5 * k, 0.5, 5);
-      orbit::advance_steps(s.model, s.state.p, 0.5 * k, 0.5 * (k + 1), 0, 1, s.orbit);
+      orbit::advance_steps(s.model, s.state.p, 0.5 * k, 0.5 * (k + 1), 0, 1, s.orbit, nullptr,
+                           &s.state.acc);
     }
     st.counters["stars_at_end"] = double(s.state.stars());
   }

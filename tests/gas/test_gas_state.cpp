@@ -59,3 +59,33 @@ TEST_CASE("Clouds sorted by place: ordered by cell and starting index, each clou
     CHECK(back.birth_position == start.birth_position);
   }
 }
+
+TEST_CASE("Old stars leave in bulk: none while they are no more than the slack, then all of "
+          "them at once, the younger stars' records kept in order",
+          "[gas]") {
+  auto g = disk(10, 5, 6);
+  for (std::size_t k = 0; k < 40; ++k) { // one star a Myr, born from t = 0 to 39 Myr
+    g.p.id.push_back(5000 + k);
+    for (auto* v : {&g.p.x, &g.p.y, &g.p.z, &g.p.vx, &g.p.vy, &g.p.vz})
+      v->push_back(double(k));
+    g.birth_time_myr.push_back(double(k));
+    g.birth_position.insert(g.birth_position.end(), {double(k), -double(k), 0.0});
+    g.parents.insert(g.parents.end(), {k, k + 1});
+  }
+  // at 45 Myr with a 20 Myr maximum age, the stars born before 25 Myr are too old: 25 of them
+  CHECK(g.retire_stars(45, 20, 25) == 0);
+  CHECK(g.stars() == 40);
+  CHECK(g.retire_stars(45, 20, 24) == 25);
+  REQUIRE(g.stars() == 15);
+  REQUIRE(g.acc.ax.size() == g.p.size());
+  for (std::size_t k = 0; k < 15; ++k) {
+    const std::size_t i = g.clouds + k;
+    CHECK(g.p.id[i] == 5025 + k);
+    CHECK(g.p.vy[i] == double(25 + k));
+    CHECK(g.birth_time_myr[i] == double(25 + k));
+    CHECK(g.birth_position[3 * i + 1] == -double(25 + k));
+    CHECK(g.parents[2 * i + 1] == 26 + k);
+  }
+  CHECK(g.p.id[9] == 1000 + 7 * 9); // the clouds untouched
+  CHECK(g.retire_stars(45, 20) == 0);
+}

@@ -73,6 +73,11 @@ TEST_CASE("A run writes one self-describing snapshot file: provenance, model, sn
   const io::SnapshotReader rd(o.output);
   CHECK(rd.count() == 5);
   CHECK(rd.times_myr() == std::vector<double>{0, 50, 100, 150, 200});
+  CHECK(rd.index_at(std::nullopt) == 4u); // the last
+  CHECK(rd.index_at(100.0) == 2u);
+  CHECK_FALSE(rd.index_at(120.0));
+  CHECK_THAT(rd.missing_time(120), Catch::Contains("no snapshot at 120 Myr in ") &&
+                                       Catch::EndsWith("(times: 0, 50, 100, 150, 200)"));
   CHECK(rd.provenance().scenario_text == sc.text);
   CHECK(rd.provenance().seed == 11);
   const auto f = io::h5::File::open_read(o.output);

@@ -3,7 +3,8 @@
 // back to warmth (stirring) and form stars in their collisions (star_formation). The stars then
 // orbit collisionlessly alongside the clouds. One step at time t, before the orbits advance by
 // dt: collisions over the coming dt, stars from them, stirring, and the retirement of stars
-// older than the star-formation rule's maximum age.
+// older than the star-formation rule's maximum age (in bulk: retire_stars with no slack before
+// the state is read).
 #include <cstdint>
 #include <optional>
 #include <vector>
@@ -11,6 +12,7 @@
 #include "undertow/gas/circular_flow.hpp"
 #include "undertow/gas/cloud_collisions.hpp"
 #include "undertow/gas/star_formation.hpp"
+#include "undertow/orbit/integrator.hpp"
 #include "undertow/orbit/phase_space.hpp"
 
 namespace undertow::gas {
@@ -35,9 +37,15 @@ struct GasState {
   std::uint64_t next_star_id = 0;     // ids of stars continue after the largest cloud id
   std::vector<std::size_t> slot;      // per cloud: its index in the starting order
   std::size_t steps_since_sort = 0;
+  // The acceleration at each entry's position, carried between leapfrog steps (NaN: not known);
+  // moved with the entries, never written to snapshots.
+  orbit::CarriedAccelerations acc;
 
   // Reorders the clouds by the (x, y) cell of side cell_kpc they are in.
   void sort_clouds_by_place(double cell_kpc);
+  // Removes the stars older than max_age_myr at t_myr when there are more than `slack` of them;
+  // returns how many it removed.
+  std::size_t retire_stars(double t_myr, double max_age_myr, std::size_t slack = 0);
   // Cloud i becomes cloud perm[i] (every per-cloud array); the stars stay.
   void permute_clouds(const std::vector<std::size_t>& perm);
   // The state with the clouds in their starting order (for snapshots).

@@ -5,6 +5,7 @@
 // temporary name and renamed, so no file that looks complete ever exists before the run is.
 #include <cstdint>
 #include <functional>
+#include <optional>
 #include <string>
 #include <vector>
 
@@ -63,6 +64,11 @@ public:
   explicit SnapshotReader(const std::string& path);
   std::size_t count() const { return names_.size(); }
   std::vector<double> times_myr() const;
+  // The snapshot at t_myr (equal to 1e-9 relative), or the last one when t_myr is not given;
+  // nothing when no snapshot has that time.
+  std::optional<std::size_t> index_at(std::optional<double> t_myr) const;
+  // "no snapshot at T Myr in FILE (times: ...)", for the error when index_at finds none.
+  std::string missing_time(double t_myr) const;
   Snapshot read(std::size_t index) const;
   Provenance provenance() const;
   const std::string& path() const { return path_; }

@@ -8,6 +8,7 @@
 #include <cstddef>
 #include <functional>
 #include <optional>
+#include <vector>
 
 #include "undertow/orbit/method.hpp"
 #include "undertow/orbit/phase_space.hpp"
@@ -40,9 +41,20 @@ bool advance(const potential::Model& m, PhaseSpace& p, double t0_myr, double t1_
 // advance() takes from t0 to t1, with the same arithmetic, so that a segment advanced a few
 // steps at a time (with the gas's collisions in between) gives the bits of one advance() where
 // nothing happens in between and the model does not change with time.
+//
+// With `carried` (leapfrog only), the acceleration at each tracer's position is kept from the
+// end of one call to the start of the next, so that a step costs one force evaluation, not two,
+// and the steps give the bits of one advance() even when the model changes with time. Entries
+// that are NaN (new tracers; all of them after forget()) are computed afresh at the first
+// step's start; velocities may change between calls, positions must not.
+struct CarriedAccelerations {
+  std::vector<double> ax, ay, az; // km/s per internal time unit, per tracer
+  void forget(std::size_t n);     // n tracers, none known
+};
 bool advance_steps(const potential::Model& m, PhaseSpace& p, double t0_myr, double t1_myr,
                    std::size_t first, std::size_t count, const IntegrationSettings& s,
-                   const std::atomic<bool>* stop = nullptr);
+                   const std::atomic<bool>* stop = nullptr,
+                   CarriedAccelerations* carried = nullptr);
 
 // Number of fixed steps used for a segment, and their length.
 std::size_t steps_for(double t0_myr, double t1_myr, double step_myr);
