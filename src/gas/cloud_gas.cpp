@@ -143,7 +143,6 @@ StepReport gas_step(GasState& g, const GasSettings& s, const CircularFlow& flow,
   r.energy_lost = pass.energy_lost;
   stir(g.p, g.clouds, s.stirring_kms, dt_myr, t_myr, seed);
   if (!s.stars) return r;
-  if (g.acc.ax.size() != g.p.size()) g.acc.forget(g.p.size());
   // Cutting the old stars out moves every younger one, so it waits until they are an eighth of
   // the stars; until then they orbit on unseen (retire_stars before anything reads the state).
   r.stars_retired = g.retire_stars(t_myr, s.stars->max_age_myr, g.stars() / 8);
