@@ -38,7 +38,7 @@ struct NodeInputs {
 // Returns the log-sum-exp over the nodes when table is null; otherwise adds table[j] (a
 // tabulated prior's ln ρ) to each node first.
 template <RotationForm K, bool Aniso, DistancePrior::Kind P>
-__attribute__((target_clones("default", "arch=x86-64-v3", "arch=x86-64-v4"))) double
+UNDERTOW_CLONES double
 node_values(const NodeInputs& in, const double* __restrict u, const double* __restrict dist,
             const double* __restrict lnw, const double* __restrict table, int n,
             double* __restrict out) {
@@ -165,7 +165,7 @@ NodeFn pick(RotationForm k, bool a, DistancePrior::Kind p) {
 
 // ln ∫ exp(-R/h_R - |z|/h_z) d^2 S(d) dd on the normalisation nodes (lnw carries the weights,
 // d^2 and, when the zero point is fixed, ln S): the disk prior's normalisation, vectorised.
-__attribute__((target_clones("default", "arch=x86-64-v3", "arch=x86-64-v4"))) double
+UNDERTOW_CLONES double
 disk_normalisation(const double* __restrict d, const double* __restrict lnw, int n, double nx,
                    double ny, double nz, double r0, double z_sun, double hr, double hz,
                    double* __restrict out) {

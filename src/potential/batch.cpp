@@ -10,14 +10,9 @@
 #include <cstring>
 #include <type_traits>
 
+#include "undertow/detail/kernel.hpp"
 #include "undertow/potential/model.hpp"
 
-#if defined(__x86_64__) && defined(__GNUC__) && !defined(__clang__)
-#define UNDERTOW_CLONES                                                                            \
-  __attribute__((target_clones("default", "arch=x86-64-v3", "arch=x86-64-v4")))
-#else
-#define UNDERTOW_CLONES
-#endif
 
 namespace undertow::potential {
 namespace {

@@ -14,6 +14,16 @@
 #define UNDERTOW_INLINE inline
 #endif
 
+// A vectorised loop compiled three times (baseline x86-64, x86-64-v3 with AVX2, x86-64-v4 with
+// AVX-512); the widest the CPU supports is picked at load time, so one binary runs on any
+// x86-64 node and still uses wide vectors.
+#if defined(__x86_64__) && defined(__GNUC__) && !defined(__clang__)
+#define UNDERTOW_CLONES                                                                            \
+  __attribute__((target_clones("default", "arch=x86-64-v3", "arch=x86-64-v4")))
+#else
+#define UNDERTOW_CLONES
+#endif
+
 #if defined(__x86_64__) && defined(__GNUC__) && !defined(__clang__) && !defined(__FAST_MATH__)
 // glibc declares these with a SIMD attribute only under -ffast-math; we declare them so the
 // OpenMP simd loops in src/potential/batch.cpp map them to _ZGV*_ variants of libmvec.
