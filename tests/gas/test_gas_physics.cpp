@@ -1,6 +1,7 @@
 // Warmth and star formation of the cloud gas: the stirring's random walk, the approach-speed
 // distribution of hard-sphere collisions, and the density law of collisional star formation.
 #include <catch2/catch.hpp>
+#include <algorithm>
 #include <cmath>
 #include <random>
 
@@ -65,6 +66,56 @@ TEST_CASE("Stirring: each velocity component random-walks with variance kms^2 pe
   stir(c, 100, 1, 0.5, 3.5, 9);
   CHECK(a.vx == b.vx);
   CHECK(a.vx != c.vx);
+}
+
+TEST_CASE("Stirring: one step's kicks are Gaussian (tail fractions P(|g| > k sigma) = "
+          "erfc(k / sqrt 2), closed form) and the three components uncorrelated, for a cloud count "
+          "that leaves a partial block",
+          "[gas][stirring]") {
+  const std::size_t n = 400003;
+  auto p = box(n, 1, 0, 3);
+  for (auto* v : {&p.vx, &p.vy, &p.vz})
+    std::fill(v->begin(), v->end(), 0.0);
+  const double kms = 3, dt = 0.25, sigma = kms * std::sqrt(dt);
+  stir(p, n, kms, dt, 7.5, 11);
+  for (const auto* v : {&p.vx, &p.vy, &p.vz})
+    for (double k : {0.5, 1.0, 2.0, 3.0}) {
+      std::size_t beyond = 0;
+      for (double g : *v)
+        beyond += std::fabs(g) > k * sigma;
+      const double f = double(beyond) / double(n), expect = std::erfc(k / std::sqrt(2.0));
+      // 4 binomial standard errors
+      CHECK(std::fabs(f - expect) < 4 * std::sqrt(expect * (1 - expect) / double(n)));
+    }
+  const auto corr = [&](const std::vector<double>& a, const std::vector<double>& b) {
+    double s = 0;
+    for (std::size_t i = 0; i < n; ++i)
+      s += a[i] * b[i];
+    return s / (double(n) * sigma * sigma);
+  };
+  // zero-mean Gaussians: the correlation's standard error is 1 / sqrt(n)
+  CHECK(std::fabs(corr(p.vx, p.vy)) < 4 / std::sqrt(double(n)));
+  CHECK(std::fabs(corr(p.vx, p.vz)) < 4 / std::sqrt(double(n)));
+  CHECK(std::fabs(corr(p.vy, p.vz)) < 4 / std::sqrt(double(n)));
+  // another seed draws independent kicks, and neighbouring ids' kicks are independent too
+  auto o = box(n, 1, 0, 3);
+  for (auto* v : {&o.vx, &o.vy, &o.vz})
+    std::fill(v->begin(), v->end(), 0.0);
+  stir(o, n, kms, dt, 7.5, 12);
+  CHECK(std::fabs(corr(p.vx, o.vx)) < 4 / std::sqrt(double(n)));
+  CHECK(std::fabs(corr(p.vz, o.vz)) < 4 / std::sqrt(double(n)));
+  std::vector<double> next(p.vx.begin() + 1, p.vx.end());
+  next.push_back(p.vx[0]);
+  CHECK(std::fabs(corr(p.vx, next)) < 4 / std::sqrt(double(n)));
+  // the kick of a cloud depends on its id, not on where it sits in the arrays
+  auto q = box(n, 1, 0, 3);
+  for (auto* v : {&q.vx, &q.vy, &q.vz})
+    std::fill(v->begin(), v->end(), 0.0);
+  std::reverse(q.id.begin(), q.id.end());
+  stir(q, n, kms, dt, 7.5, 11);
+  CHECK(q.vx[0] == p.vx[n - 1]);
+  CHECK(q.vz[n - 1] == p.vz[0]);
+  CHECK(q.vy[n / 2 + 77] == p.vy[n - 1 - (n / 2 + 77)]);
 }
 
 TEST_CASE("Star formation: the approach speeds of hard-sphere collisions in a Maxwellian gas "
