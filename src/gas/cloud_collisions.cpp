@@ -54,10 +54,35 @@ bool contact(const orbit::PhaseSpace& p, std::size_t i, std::size_t j, double d2
 // Working arrays kept from pass to pass (one set per calling thread): a run calls the search
 // every step, and fresh arrays of tens of megabytes would cost page faults and zeroing each time.
 struct Scratch {
-  std::vector<std::size_t> active, slow, fast, start, fill, order, col;
-  std::vector<double> px, py, pz, s, sorted_s, cx, cy, cz, cs;
+  std::vector<std::size_t> fast, start, fill, order, col;
+  std::vector<double> px, py, pz, s, speed, sample, cx, cy, cz, cs;
+  std::vector<std::uint32_t> ring;
   std::vector<char> done;
 };
+
+constexpr std::size_t kBlock = 512;
+struct Cloud0 {
+  const double *x, *y, *z, *vx, *vy, *vz;
+};
+struct Cloud1 {
+  double *px, *py, *pz, *w, *speed;
+};
+
+// Clouds [b, e): mid-interval position, speed, and speed about the flow (fx, fy) in w.
+// Vectorised.
+UNDERTOW_CLONES void prepare(const Cloud0 in, const Cloud1 to, const double* __restrict fx,
+                             const double* __restrict fy, std::size_t b, std::size_t e, double dt) {
+#pragma omp simd
+  for (long k = 0; k < long(e - b); ++k) {
+    const std::size_t i = b + std::size_t(k);
+    const double x = in.x[i], y = in.y[i], z = in.z[i], vx = in.vx[i], vy = in.vy[i], vz = in.vz[i];
+    const double wx = vx - fx[k], wy = vy - fy[k];
+    const double w = std::sqrt(wx * wx + wy * wy + vz * vz);
+    to.w[i] = w;
+    to.speed[i] = std::sqrt(vx * vx + vy * vy + vz * vz);
+    to.px[i] = x + vx * dt / 2, to.py[i] = y + vy * dt / 2, to.pz[i] = z + vz * dt / 2;
+  }
+}
 
 } // namespace
 
@@ -70,91 +95,114 @@ CollisionPass collide_pairs(orbit::PhaseSpace& p, const CloudCollisions& c, doub
   const double dt = units::myr_to_internal(dt_myr); // kpc per (km/s): distance = v dt
   const double a = c.radius_kpc, d2 = 4 * a * a;
 
-  // The reference flow and each cloud's search radius s (see the header).
-  CircularFlow ref = flow.capped(0.4 / dt);
-  double K = ref.lipschitz();
-  if (!(K * dt / 2 <= 0.25)) ref = CircularFlow(), K = 0; // too steep to help: no flow
-  const double cm = (dt / 2) / (1 - K * dt / 2), shrink = 1 - K * cm;
+  // The reference flow (see the header), capped where a cusped centre makes it too steep.
+  const CircularFlow ref = flow.capped(0.4 / dt);
   thread_local Scratch w;
-  auto& active = w.active;
-  active.clear();
-  for (std::size_t i = 0; i < n; ++i)
-    if (std::fabs(p.x[i]) <= c.extent_kpc && std::fabs(p.y[i]) <= c.extent_kpc &&
-        std::isfinite(p.z[i]) && std::isfinite(p.vx[i] + p.vy[i] + p.vz[i]))
-      active.push_back(i);
-  const std::size_t m = active.size();
+  // Each cloud's mid-interval position, its speed and its speed about the flow (in s for now);
+  // a cloud outside the extent or with a state that is not finite takes no part (s = -1).
+  auto &px = w.px, &py = w.py, &pz = w.pz, &s = w.s, &speed = w.speed;
+  auto& ring = w.ring; // each cloud's radial bin of the flow's table, for its local bound
+  px.resize(n), py.resize(n), pz.resize(n), s.resize(n), speed.resize(n), ring.resize(n);
+  std::size_t m = 0;
+  double v_max = 0;
+  const Cloud0 in{p.x.data(), p.y.data(), p.z.data(), p.vx.data(), p.vy.data(), p.vz.data()};
+  const Cloud1 to{px.data(), py.data(), pz.data(), s.data(), speed.data()};
+#pragma omp parallel for schedule(static) reduction(+ : m) reduction(max : v_max)
+  for (std::size_t b = 0; b < n; b += kBlock) {
+    const std::size_t e = std::min(n, b + kBlock);
+    double fx[kBlock], fy[kBlock];
+    ref.at(in.x + b, in.y + b, e - b, fx, fy, ring.data() + b);
+    prepare(in, to, fx, fy, b, e, dt);
+    for (std::size_t i = b; i < e; ++i)
+      if (std::fabs(p.x[i]) <= c.extent_kpc && std::fabs(p.y[i]) <= c.extent_kpc &&
+          std::isfinite(p.x[i] + p.y[i] + p.z[i] + p.vx[i] + p.vy[i] + p.vz[i]))
+        ++m, v_max = std::max(v_max, speed[i]);
+      else
+        s[i] = -1;
+  }
   if (m < 2) return out;
-  auto &px = w.px, &py = w.py, &pz = w.pz, &s = w.s;
-  px.resize(m), py.resize(m), pz.resize(m), s.resize(m);
+  // Two clouds that touch within dt start at most D = 2a + 2 v_max dt apart, so the segment
+  // between their starting points lies within D of each: the flow's Lipschitz bound over that
+  // reach of a cloud's radius (K_i) holds for every pair it can be part of, and the header's
+  // bound with K_i for cloud i's share is at least the bound with the pair's own constant.
+  // Where the flow is too steep to help anywhere, no flow: s from the full speed.
+  const std::vector<double> lip = ref.lipschitz_within(2 * a + 2 * v_max * dt);
+  double k_max = 0;
+  for (double k : lip)
+    k_max = std::max(k_max, k);
+  bool flow_helps = true;
+  if (!(k_max * dt / 2 <= 0.25)) {
+#pragma omp parallel for schedule(static) reduction(&& : flow_helps)
+    for (std::size_t i = 0; i < n; ++i)
+      if (s[i] >= 0) flow_helps = flow_helps && lip[ring[i]] * dt / 2 <= 0.25;
+  }
 #pragma omp parallel for schedule(static)
-  for (std::size_t k = 0; k < m; ++k) {
-    const std::size_t i = active[k];
-    double fx, fy;
-    ref.at(p.x[i], p.y[i], fx, fy);
-    const double wx = p.vx[i] - fx, wy = p.vy[i] - fy,
-                 w = std::sqrt(wx * wx + wy * wy + p.vz[i] * p.vz[i]);
-    s[k] = (a + cm * w) / shrink * (1 + 1e-9); // widened by round-off: the exact test decides
-    px[k] = p.x[i] + p.vx[i] * dt / 2, py[k] = p.y[i] + p.vy[i] * dt / 2;
-    pz[k] = p.z[i] + p.vz[i] * dt / 2;
+  for (std::size_t i = 0; i < n; ++i) {
+    if (!(s[i] >= 0)) continue;
+    const double K = flow_helps ? lip[ring[i]] : 0.0, wv = flow_helps ? s[i] : speed[i];
+    const double cm = (dt / 2) / (1 - K * dt / 2), shrink = 1 - K * cm;
+    s[i] = (a + cm * wv) / shrink * (1 + 1e-9); // widened by round-off: the exact test decides
   }
 
-  // Cells of side h = twice the largest search radius of all but the fastest clouds, and no
-  // more (x, y) columns than about 1 per cloud.
+  // Cells of side h = twice the largest search radius of all but the fastest clouds (about
+  // n_fast_max of them, judged on a regular subsample of at most ~16 384 clouds), and no more
+  // (x, y) columns than about 4 per cloud. The cells only set the cost: the search is exact.
   const std::size_t n_fast_max = std::max<std::size_t>(64, m / 1000);
-  auto& sorted_s = w.sorted_s;
-  sorted_s.assign(s.begin(), s.end());
-  const std::size_t q = m > n_fast_max ? m - n_fast_max - 1 : 0;
-  std::nth_element(sorted_s.begin(), sorted_s.begin() + long(q), sorted_s.end());
-  double h = 2 * sorted_s[q];
+  auto& sample = w.sample;
+  sample.clear();
+  for (std::size_t stride = std::max<std::size_t>(1, n / 16384); sample.empty(); stride = 1)
+    for (std::size_t i = 0; i < n; i += stride)
+      if (s[i] >= 0) sample.push_back(s[i]);
+  const std::size_t k_fast =
+      sample.size() == m ? n_fast_max
+                         : std::size_t(double(n_fast_max) * double(sample.size()) / double(m));
+  const std::size_t q = sample.size() > k_fast ? sample.size() - k_fast - 1 : 0;
+  std::nth_element(sample.begin(), sample.begin() + long(q), sample.end());
+  double h = 2 * sample[q];
   double x0, x1, y0, y1;
-  for (int tries = 0;; ++tries) { // the slow clouds' box, and at most ~1 column per cloud in it
-    x0 = y0 = INFINITY, x1 = y1 = -INFINITY;
-    for (std::size_t k = 0; k < m; ++k)
-      if (2 * s[k] <= h) {
-        x0 = std::min(x0, px[k]), x1 = std::max(x1, px[k]);
-        y0 = std::min(y0, py[k]), y1 = std::max(y1, py[k]);
+  for (int tries = 0;; ++tries) { // the slow clouds' box, and at most ~4 columns per cloud in it
+    double lx = INFINITY, ly = INFINITY, ux = -INFINITY, uy = -INFINITY;
+#pragma omp parallel for schedule(static) reduction(min : lx, ly) reduction(max : ux, uy)
+    for (std::size_t i = 0; i < n; ++i)
+      if (s[i] >= 0 && 2 * s[i] <= h) {
+        lx = std::min(lx, px[i]), ux = std::max(ux, px[i]);
+        ly = std::min(ly, py[i]), uy = std::max(uy, py[i]);
       }
-    const double h_min = std::sqrt((x1 - x0) * (y1 - y0) / (double(m) + 1024));
+    x0 = lx, x1 = ux, y0 = ly, y1 = uy;
+    const double h_min = std::sqrt((x1 - x0) * (y1 - y0) / (4 * double(m) + 1024));
     if (h >= h_min || tries == 8) break;
     h = h_min;
   }
-  auto &slow = w.slow, &fast = w.fast;
-  slow.clear(), fast.clear();
-  for (std::size_t k = 0; k < m; ++k)
-    (2 * s[k] <= h ? slow : fast).push_back(k);
   const long nx = long((x1 - x0) / h) + 1, ny = long((y1 - y0) / h) + 1;
-  const auto column = [&](std::size_t k) {
-    return std::size_t(long((px[k] - x0) / h) * ny + long((py[k] - y0) / h));
-  };
-  // Counting sort of the slow clouds into columns, each column then ordered by z (and index).
-  auto &start = w.start, &order = w.order;
-  start.assign(std::size_t(nx * ny) + 1, 0);
-  order.resize(slow.size());
-  auto& col = w.col;
-  col.resize(slow.size());
+  const long ncol = nx * ny;
+  // Counting sort of the slow clouds into columns (in index order within a column); the fast
+  // ones (and those taking no part, as -1) listed apart.
+  constexpr std::size_t kNone = ~std::size_t(0);
+  auto &col = w.col, &fast = w.fast, &start = w.start, &order = w.order;
+  col.resize(n);
 #pragma omp parallel for schedule(static)
-  for (std::size_t e = 0; e < slow.size(); ++e)
-    col[e] = column(slow[e]);
-  for (std::size_t c2 : col)
-    ++start[c2 + 1];
+  for (std::size_t i = 0; i < n; ++i)
+    col[i] = s[i] >= 0 && 2 * s[i] <= h
+                 ? std::size_t(long((px[i] - x0) / h) * ny + long((py[i] - y0) / h))
+                 : kNone;
+  fast.clear();
+  start.assign(std::size_t(ncol) + 1, 0);
+  for (std::size_t i = 0; i < n; ++i)
+    if (col[i] != kNone)
+      ++start[col[i] + 1];
+    else if (s[i] >= 0)
+      fast.push_back(i);
   for (std::size_t c2 = 1; c2 < start.size(); ++c2)
     start[c2] += start[c2 - 1];
+  const std::size_t ns = start.back();
+  order.resize(ns);
   {
     auto& fill = w.fill;
     fill.assign(start.begin(), start.end() - 1);
-    for (std::size_t e = 0; e < slow.size(); ++e)
-      order[fill[col[e]]++] = slow[e];
+    for (std::size_t i = 0; i < n; ++i)
+      if (col[i] != kNone) order[fill[col[i]]++] = i;
   }
-  const auto by_z = [&](std::size_t u, std::size_t v) {
-    return pz[u] != pz[v] ? pz[u] < pz[v] : u < v;
-  };
-  const long ncol = nx * ny;
-#pragma omp parallel for schedule(dynamic, 4096)
-  for (long c2 = 0; c2 < ncol; ++c2)
-    std::sort(order.begin() + long(start[std::size_t(c2)]),
-              order.begin() + long(start[std::size_t(c2) + 1]), by_z);
   // The slow clouds' mid-points and radii in column order, so the sweep reads memory in order.
-  const std::size_t ns = order.size();
   auto &cx = w.cx, &cy = w.cy, &cz = w.cz, &cs = w.cs;
   cx.resize(ns), cy.resize(ns), cz.resize(ns), cs.resize(ns);
 #pragma omp parallel for schedule(static)
@@ -174,10 +222,9 @@ CollisionPass collide_pairs(orbit::PhaseSpace& p, const CloudCollisions& c, doub
     }
     std::vector<Hit>& mine = found[std::size_t(omp_get_thread_num())];
     std::size_t my_tests = 0;
-    // the exact test of active clouds u, v (indices into `active`)
-    const auto exact = [&](std::size_t u, std::size_t v) {
+    // the exact test of clouds i, j
+    const auto exact = [&](std::size_t i, std::size_t j) {
       ++my_tests;
-      const std::size_t i = active[u], j = active[v];
       double t;
       if (contact(p, i, j, d2, dt, t))
         mine.push_back({t, std::min(p.id[i], p.id[j]), std::max(p.id[i], p.id[j]), i, j});
@@ -256,6 +303,7 @@ CollisionPass collide_pairs(orbit::PhaseSpace& p, const CloudCollisions& c, doub
   for (std::size_t t : tested)
     out.candidate_pairs += t;
   std::sort(hits.begin(), hits.end());
+  out.events.reserve(hits.size());
 
   auto& done = w.done;
   done.assign(n, 0);

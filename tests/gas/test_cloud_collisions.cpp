@@ -166,9 +166,10 @@ TEST_CASE("Cloud collisions: the number of collisions in a uniform Maxwellian bo
 namespace {
 // n clouds in a patch of a disk rotating at 220 km/s (flat rotation, clockwise from +z) with a
 // dispersion sigma about it; every 50th cloud counter-rotates, so the search's fast path is used.
-orbit::PhaseSpace rotating_patch(std::size_t n, double sigma, std::uint64_t seed) {
+orbit::PhaseSpace rotating_patch(std::size_t n, double sigma, std::uint64_t seed, double r0 = 7.8,
+                                 double r1 = 8.2, double dphi = 0.05) {
   std::mt19937_64 rng(seed);
-  std::uniform_real_distribution<double> R(7.8, 8.2), phi(-0.05, 0.05), z(-0.02, 0.02);
+  std::uniform_real_distribution<double> R(r0, r1), phi(-dphi, dphi), z(-0.02, 0.02);
   std::normal_distribution<double> g(0, sigma);
   orbit::PhaseSpace p;
   p.resize(n);
@@ -176,7 +177,7 @@ orbit::PhaseSpace rotating_patch(std::size_t n, double sigma, std::uint64_t seed
     const double r = R(rng), f = phi(rng);
     p.id[i] = 1000 + 7 * i;
     p.x[i] = -r * std::cos(f), p.y[i] = r * std::sin(f), p.z[i] = z(rng);
-    const double v = i % 50 == 0 ? -220 : 220; // flow (v/R)(y, -x)
+    const double v = (i % 50 == 0 ? -220 : 220) * std::min(1.0, std::sqrt(r)); // (v/R)(y, -x)
     p.vx[i] = v / r * p.y[i] + g(rng), p.vy[i] = -v / r * p.x[i] + g(rng), p.vz[i] = g(rng);
   }
   return p;
@@ -247,5 +248,35 @@ TEST_CASE("Cloud collisions: the cell search finds exactly the collisions that t
     collide_pairs(u, c, dt);
     CHECK(g.vx == u.vx);
     CHECK(g.vz == u.vz);
+  }
+}
+
+TEST_CASE("Cloud collisions: near a steep inner rotation curve (v_c rising as sqrt(R) inside "
+          "1 kpc, where the flow's global Lipschitz bound is useless but its local one is not) the "
+          "flow-guided search still finds exactly what testing every pair finds",
+          "[gas][collisions]") {
+  const double a = 0.002, dt = 0.5;
+  CloudCollisions c;
+  c.radius_kpc = a;
+  std::vector<double> vc(3001);
+  for (std::size_t k = 0; k < vc.size(); ++k)
+    vc[k] = 220 * std::min(1.0, std::sqrt(0.01 * double(k)));
+  const CircularFlow flow(vc, 0.01);
+  for (std::uint64_t seed : {31u, 32u}) {
+    // a patch at R 0.5-1.5 kpc, and one at 0.05-0.25 kpc where the flow is too steep to help
+    for (const auto& [r0, r1] : {std::pair{0.5, 1.5}, std::pair{0.05, 0.25}}) {
+      const auto p0 = rotating_patch(3000, 10, seed, r0, r1, 0.02 / r0);
+      const auto want = brute_force_events(p0, a, dt);
+      INFO("seed " << seed << ", R from " << r0);
+      REQUIRE(want.size() > 20);
+      auto p = p0;
+      const auto got = collide_pairs(p, c, dt, flow);
+      REQUIRE(got.events.size() == want.size());
+      for (std::size_t k = 0; k < want.size(); ++k) {
+        CHECK(double(got.events[k].id_a) == want[k][0]);
+        CHECK(double(got.events[k].id_b) == want[k][1]);
+        CHECK(got.events[k].t_myr == Approx(want[k][2]).margin(1e-12));
+      }
+    }
   }
 }

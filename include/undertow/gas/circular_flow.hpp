@@ -3,6 +3,8 @@
 // Galactic rotation (clockwise seen from the north Galactic pole). The collision search uses it
 // as a reference velocity field of known Lipschitz constant: clouds that move with it are
 // neighbours for a whole step, so only their speed relative to it sets the search radius.
+#include <cstddef>
+#include <cstdint>
 #include <vector>
 
 #include "undertow/potential/model.hpp"
@@ -16,15 +18,22 @@ public:
   // From a table: v_c (km/s) at R = k dr_kpc, k = 0, 1, ...
   CircularFlow(std::vector<double> vc_kms, double dr_kpc);
 
-  // (vx, vy) of the flow at (x, y), km/s; linear in R between table points, the last value
-  // beyond the table (so the field is continuous everywhere).
-  void at(double x, double y, double& vx, double& vy) const;
+  // (vx, vy) of the flow at the n points (x, y), km/s, and each point's entry of a
+  // lipschitz_within table; linear in R between table points, the last value beyond the table
+  // (so the field is continuous everywhere). Vectorised; points that are not finite get
+  // values that mean nothing.
+  void at(const double* x, const double* y, std::size_t n, double* vx, double* vy,
+          std::uint32_t* bin) const;
   // The same flow with v_c(R) capped at k_max R, so that its Lipschitz constant is at most
   // about k_max even where a cusped bulge makes v_c / R unbounded.
   CircularFlow capped(double k_max_kms_kpc) const;
   // max over R of max(|dv_c/dR|, v_c / R): the singular values of the field's Jacobian, so
   // |V(a) - V(b)| <= lipschitz() |a - b| (km/s per kpc).
   double lipschitz() const;
+  // The same bound over the points within `reach` kpc of a radius: entry k holds it for every R
+  // in [k dr, (k + 1) dr), the last entry for every R beyond. Where clouds orbit, far from a
+  // cusped centre, it is many times smaller than the global one.
+  std::vector<double> lipschitz_within(double reach_kpc) const;
 
 private:
   std::vector<double> vc_; // at R = k * dr

@@ -9,10 +9,14 @@
 // the rule depends on relative positions and velocities only, so it is Galilean invariant; the
 // rate of collisions follows n σ v_rel with σ = π (2a)².
 //
-// Candidate pairs come from a cell list, O(N): columns in (x, y) sorted by z, built on the
-// clouds' positions at mid-interval. A reference flow V of Lipschitz constant K (the model's
-// circular flow) bounds how far apart two clouds can be at mid-interval and still touch within
-// dt: |r_mid| <= s_i + s_j with s = (a + c |v - V|) / (1 - K c), c = (dt/2) / (1 - K dt/2).
+// Candidate pairs come from a cell list, O(N): columns in (x, y), built on the clouds'
+// positions at mid-interval. A reference flow V (the model's circular flow) of Lipschitz
+// constant K bounds how far apart two clouds can be at mid-interval and still touch within dt:
+// |r_mid| <= 2a + c (|w_i| + |w_j|) + K c |r_mid|, w = v - V at the start, c = (dt/2) /
+// (1 - K dt/2), so |r_mid| <= s_i + s_j with s = (a + c |w|) / (1 - K c). K need only hold
+// between the pair's starting points, which are at most D = 2a + 2 v_max dt apart: each cloud
+// takes the flow's bound over R +- D about its own radius (K_i >= the pair's, and s grows with
+// K), which away from a cusped centre is a few times Omega rather than the centre's steepness.
 // Clouds moving with the flow therefore search only a few cloud radii however fast the disk
 // rotates; the few fastest clouds search as far as they need. The search is exact, so the
 // result does not depend on the flow, the cells or the thread count.
