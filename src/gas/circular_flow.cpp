@@ -62,13 +62,6 @@ CircularFlow CircularFlow::capped(double k_max) const {
   return c;
 }
 
-double CircularFlow::lipschitz() const {
-  double L = 0;
-  for (std::size_t k = 1; k < vc_.size(); ++k)
-    L = std::max({L, std::fabs(vc_[k] - vc_[k - 1]) / dr_, std::fabs(vc_[k]) / (double(k) * dr_)});
-  return L;
-}
-
 std::vector<double> CircularFlow::lipschitz_within(double reach_kpc) const {
   const std::size_t n = vc_.size();
   if (n < 2) return std::vector<double>(2, 0.0); // no flow: at() gives bins 0 and 1

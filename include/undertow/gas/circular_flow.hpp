@@ -27,12 +27,11 @@ public:
   // The same flow with v_c(R) capped at k_max R, so that its Lipschitz constant is at most
   // about k_max even where a cusped bulge makes v_c / R unbounded.
   CircularFlow capped(double k_max_kms_kpc) const;
-  // max over R of max(|dv_c/dR|, v_c / R): the singular values of the field's Jacobian, so
-  // |V(a) - V(b)| <= lipschitz() |a - b| (km/s per kpc).
-  double lipschitz() const;
-  // The same bound over the points within `reach` kpc of a radius: entry k holds it for every R
-  // in [k dr, (k + 1) dr), the last entry for every R beyond. Where clouds orbit, far from a
-  // cusped centre, it is many times smaller than the global one.
+  // The field's Lipschitz bound near each radius: max of max(|dv_c/dR|, v_c / R) (the singular
+  // values of the field's Jacobian) over the points within `reach` kpc, so that
+  // |V(a) - V(b)| <= K |a - b| (km/s per kpc) for any a, b within reach of that radius. Entry k
+  // holds it for every R in [k dr, (k + 1) dr), the last entry for every R beyond. Where clouds
+  // orbit, far from a cusped centre, it is many times smaller than near the centre.
   std::vector<double> lipschitz_within(double reach_kpc) const;
 
 private:
