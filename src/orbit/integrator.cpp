@@ -82,9 +82,56 @@ using Verlet = ode::velocity_verlet<Vec, Vec, double, Vec, double, double, SoaAl
 using McLachlan = ode::symplectic_rkn_sb3a_mclachlan<Vec, Vec, double, Vec, Vec, double, SoaAlgebra,
                                                      ode::default_operations, ode::always_resizer>;
 
+// Leapfrog on the tracers' own arrays with the acceleration carried between calls: the
+// arithmetic of odeint's velocity_verlet::do_step_v1 (the same expressions in the same order,
+// so the bits match the copying path below), without copying positions, velocities and
+// accelerations into and out of a batch state, which cost as much as the kicks and drifts.
+void advance_batch_carried(const Model& m, PhaseSpace& p, std::size_t first, std::size_t n,
+                           double t0, double dt, std::size_t k0, std::size_t steps,
+                           CarriedAccelerations& c) {
+  double *x = p.x.data() + first, *y = p.y.data() + first, *z = p.z.data() + first;
+  double *vx = p.vx.data() + first, *vy = p.vy.data() + first, *vz = p.vz.data() + first;
+  double *ax = c.ax.data() + first, *ay = c.ay.data() + first, *az = c.az.data() + first;
+  thread_local Vec a1;
+  a1.resize(3 * n);
+  double *bx = a1.data(), *by = bx + n, *bz = by + n;
+  const auto force = [&](double t_internal) {
+    m.accelerations({x, n}, {y, n}, {z, n}, t_internal * kMyr, {bx, n}, {by, n}, {bz, n});
+  };
+  bool unknown = false;
+  for (std::size_t i = 0; i < n; ++i)
+    unknown = unknown || std::isnan(ax[i]);
+  if (unknown) { // afresh for the whole batch, kept only where nothing was carried
+    force(t0 + double(k0) * dt);
+    for (std::size_t i = 0; i < n; ++i)
+      if (std::isnan(ax[i])) ax[i] = bx[i], ay[i] = by[i], az[i] = bz[i];
+  }
+  const double h = 0.5 * dt * dt, hdt = 0.5 * dt;
+  // One component at a time, element by element: the loops vectorise.
+  const auto drift = [n, dt, h](double* __restrict q, const double* __restrict v,
+                                const double* __restrict a) {
+#pragma omp simd
+    for (std::size_t i = 0; i < n; ++i)
+      q[i] = 1.0 * q[i] + dt * v[i] + h * a[i];
+  };
+  const auto kick = [n, hdt](double* __restrict v, double* __restrict a0,
+                             const double* __restrict a1) {
+#pragma omp simd
+    for (std::size_t i = 0; i < n; ++i) {
+      v[i] = 1.0 * v[i] + hdt * a0[i] + hdt * a1[i];
+      a0[i] = a1[i];
+    }
+  };
+  for (std::size_t k = k0; k < k0 + steps; ++k) {
+    drift(x, vx, ax), drift(y, vy, ay), drift(z, vz, az);
+    force(t0 + double(k) * dt + dt);
+    kick(vx, ax, bx), kick(vy, ay, by), kick(vz, az, bz);
+  }
+}
+
 void advance_batch_symplectic(const Model& m, PhaseSpace& p, std::size_t first, std::size_t n,
                               double t0, double dt, std::size_t k0, std::size_t steps,
-                              Method method, CarriedAccelerations* carried = nullptr) {
+                              Method method) {
   const bool extended = method == Method::mclachlan4;
   thread_local Vec q, v;
   q.resize(3 * n + (extended ? 1 : 0));
@@ -93,33 +140,7 @@ void advance_batch_symplectic(const Model& m, PhaseSpace& p, std::size_t first, 
   const BatchForce f{&m, n};
   // Each step starts at t0 + k dt computed afresh, so a run resumed at a segment boundary
   // repeats the same arithmetic as one that never stopped.
-  if (method == Method::leapfrog && carried) {
-    // odeint's step with explicit accelerations: the arithmetic of do_step_v1 below, with the
-    // acceleration at the start taken from the last call where it is known.
-    thread_local Verlet st;
-    thread_local Vec a0, a1;
-    a0.resize(3 * n), a1.resize(3 * n);
-    bool unknown = false;
-    for (std::size_t i = 0; i < n; ++i) {
-      a0[i] = carried->ax[first + i], a0[n + i] = carried->ay[first + i];
-      a0[2 * n + i] = carried->az[first + i];
-      unknown = unknown || std::isnan(a0[i]);
-    }
-    if (unknown) { // afresh for the whole batch, kept only where nothing was carried
-      f.eval(q, a1, t0 + double(k0) * dt);
-      for (std::size_t i = 0; i < n; ++i)
-        if (std::isnan(a0[i])) a0[i] = a1[i], a0[n + i] = a1[n + i], a0[2 * n + i] = a1[2 * n + i];
-    }
-    const VerletSystem sys{f};
-    for (std::size_t k = k0; k < k0 + steps; ++k) {
-      st.do_step(sys, q, v, a0, q, v, a1, t0 + double(k) * dt, dt);
-      std::swap(a0, a1);
-    }
-    for (std::size_t i = 0; i < n; ++i) {
-      carried->ax[first + i] = a0[i], carried->ay[first + i] = a0[n + i];
-      carried->az[first + i] = a0[2 * n + i];
-    }
-  } else if (method == Method::leapfrog) {
+  if (method == Method::leapfrog) {
     thread_local Verlet st;
     st.reset(); // no acceleration carried over from another batch
     const VerletSystem sys{f};
@@ -282,7 +303,10 @@ bool advance_steps(const Model& m, PhaseSpace& p, double t0_myr, double t1_myr, 
       continue;
     }
     const std::size_t i0 = std::size_t(b) * s.batch, n = std::min(s.batch, N - i0);
-    advance_batch_symplectic(m, p, i0, n, t0, dt, first, count, s.method, carried);
+    if (carried)
+      advance_batch_carried(m, p, i0, n, t0, dt, first, count, *carried);
+    else
+      advance_batch_symplectic(m, p, i0, n, t0, dt, first, count, s.method);
   }
   return !stopped;
 }
