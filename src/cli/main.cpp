@@ -25,6 +25,7 @@
 #include "undertow/scenario/provenance_model.hpp"
 #include "undertow/scenario/scenario.hpp"
 
+#include "draw_command.hpp"
 #include "fit_command.hpp"
 #include "long_run.hpp"
 #include "sweep_commands.hpp"
@@ -580,10 +581,13 @@ int main(int argc, char** argv) {
 
   undertow::cli::SweepArgs sweep;
   undertow::cli::add_sweep_commands(app, sweep);
+  undertow::cli::DrawArgs draw;
+  undertow::cli::add_draw_command(app, draw);
 
   CLI11_PARSE(app, argc, argv);
   try {
     if (const auto code = undertow::cli::run_sweep_command(sweep)) return *code;
+    if (const auto code = undertow::cli::run_draw_command(draw)) return *code;
     if (const auto code = undertow::cli::run_fit_command(fit)) return *code;
     if (const auto code = undertow::cli::run_mock_command(mock)) return *code;
     if (t->parsed()) return run_tabulate(tab);

@@ -291,6 +291,30 @@ std::vector<std::uint64_t> read_u64(const File& f, hid_t parent, const std::stri
 std::vector<std::uint32_t> read_u32(const File& f, hid_t parent, const std::string& name) {
   return read_array<std::uint32_t>(f, parent, name, H5T_NATIVE_UINT32, 1, nullptr);
 }
+std::vector<std::string> read_strings(const File& f, hid_t parent, const std::string& name) {
+  if (H5Lexists(parent, name.c_str(), H5P_DEFAULT) <= 0) fail(f, "missing dataset '" + name + "'");
+  Handle ds(check(H5Dopen2(parent, name.c_str(), H5P_DEFAULT), f, "cannot open dataset " + name),
+            H5Dclose);
+  Handle space(H5Dget_space(ds.id()), H5Sclose);
+  if (H5Sget_simple_extent_ndims(space.id()) != 1) fail(f, name + " is not a list of strings");
+  hsize_t n = 0;
+  H5Sget_simple_extent_dims(space.id(), &n, nullptr);
+  Handle stored(H5Dget_type(ds.id()), H5Tclose);
+  if (H5Tget_class(stored.id()) != H5T_STRING || H5Tis_variable_str(stored.id()) <= 0)
+    fail(f, name + " is not a dataset of variable-length strings");
+  std::vector<char*> p(n, nullptr);
+  Handle t = string_type();
+  if (n > 0)
+    check(H5Dread(ds.id(), t.id(), H5S_ALL, H5S_ALL, H5P_DEFAULT, p.data()), f,
+          "cannot read dataset " + name, 0);
+  std::vector<std::string> out;
+  out.reserve(n);
+  for (char* c : p)
+    out.emplace_back(c ? c : "");
+  if (n > 0) H5Dvlen_reclaim(t.id(), space.id(), H5P_DEFAULT, p.data());
+  return out;
+}
+
 std::string dataset_units(const File& f, hid_t parent, const std::string& name) {
   Handle ds(check(H5Dopen2(parent, name.c_str(), H5P_DEFAULT), f, "cannot open dataset " + name),
             H5Dclose);

@@ -75,6 +75,7 @@ std::vector<double> read_doubles(const File& f, hid_t parent, const std::string&
 std::vector<std::uint64_t> read_u64(const File& f, hid_t parent, const std::string& name,
                                     std::size_t expect_cols = 1);
 std::vector<std::uint32_t> read_u32(const File& f, hid_t parent, const std::string& name);
+std::vector<std::string> read_strings(const File& f, hid_t parent, const std::string& name);
 std::string dataset_units(const File& f, hid_t parent, const std::string& name);
 
 void write_strings(const File& f, hid_t parent, const std::string& name,

@@ -1,0 +1,88 @@
+#include "undertow/plot/catalogue.hpp"
+
+#include <filesystem>
+
+#include "undertow/error.hpp"
+
+namespace undertow::plot {
+
+std::string source_name(Source s) {
+  switch (s) {
+  case Source::run:
+    return "run";
+  case Source::fit:
+    return "fit";
+  case Source::sweep:
+    return "sweep";
+  }
+  return "";
+}
+
+const std::vector<FigureKind>& catalogue() {
+  static const std::vector<FigureKind> all = {
+      residual_distributions_figure(), pulls_figure(),  lag_by_age_figure(),
+      lag_by_phase_figure(),           corner_figure(), traces_figure(),
+  };
+  return all;
+}
+
+const FigureKind& figure_kind(const std::string& name) {
+  std::string names;
+  for (const auto& k : catalogue()) {
+    if (k.name == name) return k;
+    names += (names.empty() ? "" : ", ") + k.name;
+  }
+  throw InputError("no figure '" + name + "' (figures: " + names + ")");
+}
+
+Source detect_source(const std::string& dir) {
+  namespace fs = std::filesystem;
+  if (!fs::is_directory(dir)) throw InputError(dir + ": not a folder");
+  if (fs::exists(dir + "/fit.h5")) return Source::fit;
+  if (fs::exists(dir + "/orbits.h5") || fs::exists(dir + "/measured-residuals.h5"))
+    return Source::run;
+  if (fs::exists(dir + "/sweep.h5")) return Source::sweep;
+  throw InputError(dir + ": neither a run's, a fit's nor a gathered sweep's folder (no orbits.h5, "
+                         "fit.h5 or sweep.h5)");
+}
+
+std::vector<std::string> draw_figures(Source source, const std::string& dir,
+                                      const std::string& out_dir,
+                                      const std::vector<std::string>& names,
+                                      const DrawOptions& options) {
+  std::vector<const FigureKind*> todo;
+  if (names.empty()) {
+    for (const auto& k : catalogue())
+      if (k.source == source && k.available(dir)) todo.push_back(&k);
+  } else {
+    for (const auto& n : names) {
+      const FigureKind& k = figure_kind(n);
+      if (k.source != source)
+        throw InputError("figure '" + n + "' is drawn from a " + source_name(k.source) +
+                         " folder, and " + dir + " is a " + source_name(source) + " folder");
+      todo.push_back(&k);
+    }
+  }
+  // Every figure's inputs are read before any file is written.
+  std::vector<std::function<void(Figure&)>> drawings;
+  for (const FigureKind* k : todo)
+    drawings.push_back(k->load(dir));
+  std::filesystem::create_directories(out_dir);
+  std::vector<std::string> written;
+  for (std::size_t i = 0; i < todo.size(); ++i) {
+    Page page = todo[i]->page;
+    if (options.width_mm > 0) page.width_mm = options.width_mm;
+    if (options.height_mm > 0) page.height_mm = options.height_mm;
+    page.dpi = options.dpi;
+    for (Format f : options.formats) {
+      const std::string path = out_dir + "/fig-" + todo[i]->name + "." + extension(f);
+      Figure fig(path, f, page);
+      drawings[i](fig);
+      fig.commit();
+      written.push_back(path);
+    }
+  }
+  return written;
+}
+
+} // namespace undertow::plot

@@ -1,0 +1,118 @@
+// Each measured source's pull against the model's local prediction (the normal equivalent of
+// (measured - predicted) / sigma from the local comparison), against Galactocentric azimuth and
+// radius, with the +-1 sigma band and the +-3 sigma lines.
+#include <cmath>
+#include <cstdio>
+#include <filesystem>
+#include <map>
+
+#include "undertow/error.hpp"
+#include "undertow/plot/catalogue.hpp"
+#include "undertow/plot/inputs.hpp"
+#include "undertow/plot/scales.hpp"
+
+namespace undertow::plot {
+namespace {
+
+struct Pulls {
+  std::vector<double> psi, R;
+  std::array<std::vector<double>, 3> pull;
+};
+
+std::string moments(const std::vector<double>& v) {
+  double s = 0, s2 = 0, n = 0;
+  for (double x : v)
+    if (std::isfinite(x)) s += x, s2 += x * x, n += 1;
+  if (n < 2) return "";
+  const double m = s / n, sd = std::sqrt(std::max(0.0, (s2 - n * m * m) / (n - 1)));
+  char buf[96];
+  std::snprintf(buf, sizeof buf, "mean %+.2f ± %.2f, dispersion %.2f", m, sd / std::sqrt(n), sd);
+  return buf;
+}
+
+void draw(const Pulls& d, Figure& fig) {
+  const auto [plo, phi] = range_of({d.psi}, 0.05);
+  const auto [rlo, rhi] = range_of({d.R}, 0.05);
+  double big = 4.6;
+  for (const auto& p : d.pull)
+    for (double x : p)
+      if (std::isfinite(x)) big = std::max(big, std::min(8.0, std::fabs(x) * 1.1));
+  const char* names[3] = {"U", "V", "W"};
+  const double top = 0.93, bottom = 0.1, gap = 0.02, h = (top - bottom - 2 * gap) / 3;
+  for (int row = 0; row < 3; ++row) {
+    const double y1 = top - row * (h + gap);
+    for (int col = 0; col < 2; ++col) {
+      const auto& x = col == 0 ? d.psi : d.R;
+      const double xlo = col == 0 ? plo : rlo, xhi = col == 0 ? phi : rhi;
+      const double x0 = col == 0 ? 0.08 : 0.56;
+      fig.panel({x0, x0 + 0.42, y1 - h, y1, xlo, xhi, -big, big});
+      fig.colour(series(Series::band), 0.25);
+      fig.fill({xlo, xhi, xhi, xlo}, {-1, -1, 1, 1});
+      fig.colour(series(Series::mute));
+      fig.line_width(0.6);
+      fig.line({xlo, xhi}, {0, 0});
+      fig.dashed({xlo, xhi}, {3, 3});
+      fig.dashed({xlo, xhi}, {-3, -3});
+      std::vector<double> xin, yin, xout, yout;
+      for (std::size_t i = 0; i < x.size(); ++i) {
+        const double p = std::clamp(d.pull[row][i], -big, big);
+        (std::fabs(d.pull[row][i]) > 3 ? xout : xin).push_back(x[i]);
+        (std::fabs(d.pull[row][i]) > 3 ? yout : yin).push_back(p);
+      }
+      fig.colour(series(Series::measured), 0.8);
+      fig.points(xin, yin, 0.9);
+      fig.colour(series(Series::accent));
+      fig.points(xout, yout, 1.3);
+      fig.axes(row == 2 ? (col == 0 ? "Galactocentric azimuth #gq [deg]" : "R [kpc]") : "",
+               col == 0 ? std::string("pull ") + names[row] + "#ds#u [#gs]" : "", row == 2,
+               col == 0);
+      if (col == 0) fig.note(0, moments(d.pull[row]), 0.85);
+    }
+  }
+  fig.panel({0.08, 0.5, bottom, top, 0, 1, 0, 1});
+  fig.legend_above({{series(Series::measured), "measured source", 'p'},
+                    {series(Series::accent), "|pull| > 3", 'p'},
+                    {series(Series::band), "±1#gs", 'b'},
+                    {series(Series::mute), "±3#gs", 'd'}});
+}
+
+} // namespace
+
+FigureKind pulls_figure() {
+  FigureKind k;
+  k.name = "pulls";
+  k.source = Source::run;
+  k.summary = "each measured source's pull in U_s, V_s, W_s against the model's local "
+              "prediction, against azimuth and radius, with 1 and 3 sigma marked";
+  k.page = {180, 130, 300};
+  k.available = [](const std::string& dir) {
+    return std::filesystem::exists(dir + "/comparison.h5") &&
+           std::filesystem::exists(dir + "/measured-residuals.h5");
+  };
+  k.load = [](const std::string& dir) {
+    const H5Input meas(dir + "/measured-residuals.h5", "pulls");
+    const H5Input cmp(dir + "/comparison.h5", "pulls");
+    const auto names = meas.strings("sources/name");
+    const auto R = meas.doubles("sources/R_kpc"), psi = meas.doubles("sources/psi_deg");
+    std::map<std::string, std::size_t> at;
+    for (std::size_t i = 0; i < names.size(); ++i)
+      at[names[i]] = i;
+    const auto local = cmp.strings("local/name");
+    Pulls d;
+    std::array<std::vector<double>, 3> p{cmp.doubles("local/pull_U"), cmp.doubles("local/pull_V"),
+                                         cmp.doubles("local/pull_W")};
+    for (std::size_t i = 0; i < local.size(); ++i) {
+      const auto it = at.find(local[i]);
+      if (it == at.end())
+        throw InputError(cmp.path() + ": source '" + local[i] + "' of /local/name is not in " +
+                         meas.path());
+      d.psi.push_back(psi[it->second]), d.R.push_back(R[it->second]);
+      for (int c = 0; c < 3; ++c)
+        d.pull[c].push_back(p[c].at(i));
+    }
+    return std::function<void(Figure&)>([d](Figure& f) { draw(d, f); });
+  };
+  return k;
+}
+
+} // namespace undertow::plot
