@@ -44,3 +44,6 @@ echo
 echo "== The same kind of fit on the Kestrel survey: its arms make the young sources stream, and a"
 echo "   circular-rotation model absorbs the streaming into a biased Galaxy (docs/fit.md)"
 "$undertow" fit demo/kestrel-fit.toml -o "$out/kestrel-fit"
+echo
+echo "== Figures (docs/figures.md): $out/*/figures/"
+ls "$out"/*/figures/*.png | sed 's|^|   |'

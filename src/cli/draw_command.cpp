@@ -1,6 +1,9 @@
 #include "draw_command.hpp"
 
+#include <filesystem>
 #include <iostream>
+
+#include "undertow/error.hpp"
 
 #include "undertow/plot/catalogue.hpp"
 
@@ -14,12 +17,22 @@ void add_figure_options(CLI::App& cmd, FigureArgs& a) {
       ->capture_default_str();
 }
 
-void draw_after(const FigureArgs& a, const std::string& dir) {
+void draw_after(const FigureArgs& a, const std::string& where) {
   if (a.none) return;
-  plot::DrawOptions o;
-  o.formats = plot::formats_from_list(a.formats);
-  const auto files = plot::draw_figures(plot::detect_source(dir), dir, dir + "/figures", {}, o);
-  std::cerr << "figures: " << files.size() << " files in " << dir << "/figures\n";
+  // A folder's figures go into FOLDER/figures; a gathered sweep's (a *-results.h5 file) into
+  // figures/ beside it.
+  const std::filesystem::path p(where);
+  const std::string out =
+      ((std::filesystem::is_directory(p) ? p : p.parent_path()) / "figures").string();
+  try {
+    plot::DrawOptions o;
+    o.formats = plot::formats_from_list(a.formats);
+    const auto files = plot::draw_figures(plot::detect_source(where), where, out, {}, o);
+    std::cout << "figures: " << files.size() << " files in " << out << "/\n";
+  } catch (const InputError& e) {
+    throw InputError(std::string(e.what()) + " (the other outputs in " + where +
+                     " are complete and kept; redraw with 'undertow draw')");
+  }
 }
 
 void add_draw_command(CLI::App& app, DrawArgs& a) {
@@ -44,6 +57,10 @@ void add_draw_command(CLI::App& app, DrawArgs& a) {
       ->check(CLI::Range(30.0, 2400.0))
       ->capture_default_str();
   c->add_option("-o,--output", a.output, "Folder for the figures (default: FOLDER/figures)");
+  c->add_option("--axes", a.axes,
+                "sweep-map: the two swept parameters on its axes (key paths or their last "
+                "parts, e.g. --axes pattern_speed_kms_kpc force_ratio)")
+      ->expected(2);
   c->add_flag("--list", a.list, "List the figures the folder's files allow, and stop");
 }
 
@@ -60,6 +77,7 @@ std::optional<int> run_draw_command(const DrawArgs& a) {
   plot::DrawOptions o;
   o.formats = plot::formats_from_list(a.formats);
   o.width_mm = a.width_mm, o.height_mm = a.height_mm, o.dpi = a.dpi;
+  o.sweep_axes = a.axes;
   const std::string out = a.output.empty() ? a.dir + "/figures" : a.output;
   for (const auto& f : plot::draw_figures(src, a.dir, out, a.figures, o))
     std::cout << "wrote " << f << "\n";

@@ -19,7 +19,7 @@ void draw_after(const FigureArgs& a, const std::string& dir);
 
 struct DrawArgs {
   std::string dir, output;
-  std::vector<std::string> figures;
+  std::vector<std::string> figures, axes;
   std::string formats = "png,pdf";
   double width_mm = 0, height_mm = 0, dpi = 300;
   bool list = false;

@@ -23,6 +23,7 @@ void add_fit_command(CLI::App& app, FitArgs& a) {
   a.command->add_option("--catalog", a.catalog, "Catalog to fit instead of the fit file's");
   a.command->add_option("-o,--output", a.output, "Output folder (default: <fit file>-fit)");
   a.command->add_option("--threads", a.threads, "OpenMP threads")->check(CLI::Range(1, 4096));
+  add_figure_options(*a.command, a.figures);
 }
 
 void add_mock_command(CLI::App& app, MockArgs& a) {
@@ -120,6 +121,7 @@ std::optional<int> run_fit_command(const FitArgs& a) {
   std::cout << "wrote " << folder << "/ (parameters, correlations, sources, kinematic-distances as "
             << "CSV, Markdown and LaTeX; fit.h5; summary.txt) in " << detail::num(r.seconds)
             << " s\n";
+  draw_after(a.figures, folder);
   return 0;
 }
 

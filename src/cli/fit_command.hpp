@@ -5,11 +5,14 @@
 #include <optional>
 #include <string>
 
+#include "draw_command.hpp"
+
 namespace undertow::cli {
 
 struct FitArgs {
   std::string fit_file, output, catalog;
   int threads = 0;
+  FigureArgs figures;
   CLI::App* command = nullptr;
 };
 

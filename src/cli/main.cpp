@@ -308,6 +308,7 @@ struct RunArgs {
   std::string scenario, folder;
   bool force = false;
   int threads = 0;
+  undertow::cli::FigureArgs figures;
 };
 
 int run_whole(const RunArgs& a) {
@@ -324,6 +325,7 @@ int run_whole(const RunArgs& a) {
   }
   std::cout << r.summary << "wrote " << o.folder
             << "/ (summary.txt, comparison-*, *-residuals-*, mock-catalog.csv, orbits.h5)\n";
+  undertow::cli::draw_after(a.figures, o.folder);
   return 0;
 }
 
@@ -528,6 +530,7 @@ int main(int argc, char** argv) {
   rn->add_option("-o,--output", wr.folder, "Output folder (default: the scenario's name)");
   rn->add_flag("--force", wr.force, "Redo every stage");
   rn->add_option("--threads", wr.threads, "OpenMP threads")->check(CLI::Range(1, 4096));
+  undertow::cli::add_figure_options(*rn, wr.figures);
 
   std::vector<std::string> versus;
   auto* vs =

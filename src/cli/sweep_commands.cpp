@@ -250,6 +250,8 @@ int do_gather(const SweepArgs& a) {
     std::cout << " " << f;
   std::cout << "\n";
   if (!r.posterior_refused.empty()) std::cout << "no posterior: " << r.posterior_refused << "\n";
+  for (const auto& f : r.files)
+    if (f.ends_with("-results.h5")) draw_after(a.figures, f);
   return 0;
 }
 
@@ -326,6 +328,7 @@ void add_sweep_commands(CLI::App& app, SweepArgs& a) {
   a.gather = sw->add_subcommand("gather", "Merge the finished points into one table (CSV, "
                                           "Markdown, LaTeX) and one HDF5 file");
   a.gather->add_option("plan", a.folder, "Plan folder")->required();
+  add_figure_options(*a.gather, a.figures);
   a.gather->add_option("--sort", a.sort,
                        "Statistic to sort by (default: delta_log_likelihood "
                        "with a reference model, else log_likelihood)");

@@ -5,6 +5,8 @@
 #include <string>
 #include <vector>
 
+#include "draw_command.hpp"
+
 namespace undertow::cli {
 
 struct SweepArgs {
@@ -21,6 +23,7 @@ struct SweepArgs {
   std::vector<std::string> directives;
   bool submit = false, wait = false;
   // gather
+  FigureArgs figures;
   std::string sort, order;
   bool partial = false, all = false;
   bool posterior = false;

@@ -20,8 +20,17 @@ std::string source_name(Source s) {
 
 const std::vector<FigureKind>& catalogue() {
   static const std::vector<FigureKind> all = {
-      residual_distributions_figure(), pulls_figure(),  lag_by_age_figure(),
-      lag_by_phase_figure(),           corner_figure(), traces_figure(),
+      residual_distributions_figure(),
+      face_on_figure(),
+      rotation_curve_figure(),
+      pulls_figure(),
+      lag_by_age_figure(),
+      lag_by_phase_figure(),
+      corner_figure(),
+      fit_rotation_figure(),
+      traces_figure(),
+      sweep_map_figure(),
+      sweep_profiles_figure(),
   };
   return all;
 }
@@ -37,13 +46,15 @@ const FigureKind& figure_kind(const std::string& name) {
 
 Source detect_source(const std::string& dir) {
   namespace fs = std::filesystem;
-  if (!fs::is_directory(dir)) throw InputError(dir + ": not a folder");
+  if (fs::is_regular_file(dir) && dir.ends_with("-results.h5")) return Source::sweep;
+  if (!fs::is_directory(dir)) throw InputError(dir + ": not a folder (nor a sweep's *-results.h5)");
   if (fs::exists(dir + "/fit.h5")) return Source::fit;
   if (fs::exists(dir + "/orbits.h5") || fs::exists(dir + "/measured-residuals.h5"))
     return Source::run;
-  if (fs::exists(dir + "/sweep.h5")) return Source::sweep;
+  for (const auto& e : fs::directory_iterator(dir))
+    if (e.path().filename().string().ends_with("-results.h5")) return Source::sweep;
   throw InputError(dir + ": neither a run's, a fit's nor a gathered sweep's folder (no orbits.h5, "
-                         "fit.h5 or sweep.h5)");
+                         "fit.h5 or *-results.h5)");
 }
 
 std::vector<std::string> draw_figures(Source source, const std::string& dir,
@@ -63,10 +74,11 @@ std::vector<std::string> draw_figures(Source source, const std::string& dir,
       todo.push_back(&k);
     }
   }
+  require_drawing(options.formats);
   // Every figure's inputs are read before any file is written.
   std::vector<std::function<void(Figure&)>> drawings;
   for (const FigureKind* k : todo)
-    drawings.push_back(k->load(dir));
+    drawings.push_back(k->load(dir, options));
   std::filesystem::create_directories(out_dir);
   std::vector<std::string> written;
   for (std::size_t i = 0; i < todo.size(); ++i) {

@@ -7,8 +7,30 @@
 namespace undertow::plot {
 namespace {
 
-// D65 reference white (CIE 15:2004) and the sRGB primaries' matrices (IEC 61966-2-1:1999).
+// D65 reference white (CIE 15:2004) and linear sRGB -> XYZ from the sRGB primaries and that
+// white (IEC 61966-2-1:1999; the matrix to 7 digits, whose rows sum to the white point). The
+// inverse is computed, so that the two directions undo each other to round-off.
 constexpr double kXn = 0.95047, kYn = 1.0, kZn = 1.08883;
+using M3 = std::array<std::array<double, 3>, 3>;
+constexpr M3 kToXyz{{{0.4124564, 0.3575761, 0.1804375},
+                     {0.2126729, 0.7151522, 0.0721750},
+                     {0.0193339, 0.1191920, 0.9503041}}};
+const M3& to_rgb() {
+  static const M3 inv = [] {
+    const auto& a = kToXyz;
+    M3 c{};
+    for (int i = 0; i < 3; ++i)
+      for (int j = 0; j < 3; ++j) // cofactor of a[j][i], for the transpose
+        c[i][j] = a[(j + 1) % 3][(i + 1) % 3] * a[(j + 2) % 3][(i + 2) % 3] -
+                  a[(j + 1) % 3][(i + 2) % 3] * a[(j + 2) % 3][(i + 1) % 3];
+    const double det = a[0][0] * c[0][0] + a[0][1] * c[1][0] + a[0][2] * c[2][0];
+    for (auto& row : c)
+      for (double& v : row)
+        v /= det;
+    return c;
+  }();
+  return inv;
+}
 
 double to_linear(double c) {
   return c <= 0.04045 ? c / 12.92 : std::pow((c + 0.055) / 1.055, 2.4);
@@ -35,9 +57,10 @@ std::array<int, 3> Rgb::bytes() const {
 Rgb lab_to_srgb(const Lab& c) {
   const double fy = (c.L + 16) / 116, fx = fy + c.a / 500, fz = fy - c.b / 200;
   const double X = kXn * f_inv(fx), Y = kYn * f_inv(fy), Z = kZn * f_inv(fz);
-  const double r = 3.2406 * X - 1.5372 * Y - 0.4986 * Z;
-  const double g = -0.9689 * X + 1.8758 * Y + 0.0415 * Z;
-  const double b = 0.0557 * X - 0.2040 * Y + 1.0570 * Z;
+  const auto& M = to_rgb();
+  const double r = M[0][0] * X + M[0][1] * Y + M[0][2] * Z;
+  const double g = M[1][0] * X + M[1][1] * Y + M[1][2] * Z;
+  const double b = M[2][0] * X + M[2][1] * Y + M[2][2] * Z;
   const auto out = [](double v) {
     return std::clamp(from_linear(std::clamp(v, 0.0, 1.0)), 0.0, 1.0);
   };
@@ -46,9 +69,9 @@ Rgb lab_to_srgb(const Lab& c) {
 
 Lab srgb_to_lab(const Rgb& c) {
   const double r = to_linear(c.r), g = to_linear(c.g), b = to_linear(c.b);
-  const double X = 0.4124 * r + 0.3576 * g + 0.1805 * b;
-  const double Y = 0.2126 * r + 0.7152 * g + 0.0722 * b;
-  const double Z = 0.0193 * r + 0.1192 * g + 0.9505 * b;
+  const double X = kToXyz[0][0] * r + kToXyz[0][1] * g + kToXyz[0][2] * b;
+  const double Y = kToXyz[1][0] * r + kToXyz[1][1] * g + kToXyz[1][2] * b;
+  const double Z = kToXyz[2][0] * r + kToXyz[2][1] * g + kToXyz[2][2] * b;
   const double fx = f(X / kXn), fy = f(Y / kYn), fz = f(Z / kZn);
   return {116 * fy - 16, 500 * (fx - fy), 200 * (fy - fz)};
 }

@@ -71,7 +71,7 @@ void draw(const Corner& c, Figure& fig) {
     tick[p] = round_step(w / 2);
     if (w / tick[p] > 3.2) tick[p] = round_step(w / 1.2);
   }
-  const std::size_t stride = std::max<std::size_t>(1, c.samples[0].size() / 1500);
+  const std::size_t stride = std::max<std::size_t>(1, c.samples[0].size() / 1000);
   fig.text_scale(0.75);
   fig.label_offsets(3.2, 4.6);
   for (std::size_t row = 0; row < n; ++row)
@@ -144,7 +144,7 @@ FigureKind corner_figure() {
               "pair's joint distribution with its 68 % and 95 % regions";
   k.page = {180, 180, 200};
   k.available = [](const std::string& dir) { return std::filesystem::exists(dir + "/fit.h5"); };
-  k.load = [](const std::string& dir) {
+  k.load = [](const std::string& dir, const DrawOptions&) {
     const Chain ch = read_chain(H5Input(dir + "/fit.h5", "corner"));
     Corner c;
     c.names = ch.names;

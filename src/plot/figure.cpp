@@ -73,6 +73,14 @@ constexpr double kPointsPerMm = 72 / 25.4;
 
 } // namespace
 
+void require_drawing(const std::vector<Format>& formats) {
+  for (Format f : formats)
+    if (!has_device(device_of(f)))
+      throw InputError("figures: PLplot has no '" + device_of(f) +
+                       "' driver (install plplot-driver-cairo)");
+  require_sans_font();
+}
+
 Format format_from_name(const std::string& name) {
   if (name == "png") return Format::png;
   if (name == "svg") return Format::svg;
@@ -259,7 +267,7 @@ std::pair<double, double> world_per_mm(plstream& s, const Page& page) {
 void Figure::points(const std::vector<double>& x, const std::vector<double>& y, double size_mm,
                     bool filled) {
   const auto [kx, ky] = world_per_mm(*pls_, page_);
-  constexpr int kSides = 20;
+  const int kSides = size_mm < 0.8 ? 8 : 20; // tiny markers need no round outline
   std::vector<double> px(kSides + 1), py(kSides + 1);
   for (std::size_t i = 0; i < std::min(x.size(), y.size()); ++i) {
     if (!std::isfinite(x[i]) || !std::isfinite(y[i])) continue;
@@ -310,8 +318,12 @@ void Figure::ellipse(double x, double y, double a, double b, double angle_rad) {
   pls_->line(kSides + 1, px.data(), py.data());
 }
 
-void Figure::text(double x, double y, const std::string& s, double just) {
-  pls_->ptex(x, y, 1, 0, just, s.c_str());
+void Figure::text(double x, double y, const std::string& s, double just, double angle_deg) {
+  // PLplot takes the direction as a vector in world units: go through millimetres so the angle
+  // is the one on the page.
+  const auto [kx, ky] = world_per_mm(*pls_, page_);
+  const double a = angle_deg * std::numbers::pi / 180;
+  pls_->ptex(x, y, std::cos(a) * kx, std::sin(a) * ky, just, s.c_str());
 }
 
 void Figure::side_text(const std::string& side, double disp, double pos, double just,
@@ -430,15 +442,6 @@ void Figure::image(const std::vector<double>& z, int nx, int ny, double lo, doub
 
 void Figure::contours(const std::vector<double>& z, int nx, int ny,
                       const std::vector<double>& levels) {
-  if (levels.empty()) return;
-  std::vector<std::vector<double>> cols(static_cast<std::size_t>(nx),
-                                        std::vector<double>(static_cast<std::size_t>(ny)));
-  std::vector<const PLFLT*> ptr(static_cast<std::size_t>(nx));
-  for (int ix = 0; ix < nx; ++ix) {
-    for (int iy = 0; iy < ny; ++iy)
-      cols[ix][iy] = z[std::size_t(iy) * nx + ix];
-    ptr[ix] = cols[ix].data();
-  }
   PLFLT wx0, wx1, wy0, wy1;
   pls_->gvpw(wx0, wx1, wy0, wy1);
   // Cell centres: the image's pixels and the contours' grid points coincide.
@@ -447,25 +450,66 @@ void Figure::contours(const std::vector<double>& z, int nx, int ny,
     xg[i] = wx0 + (i + 0.5) * (wx1 - wx0) / nx;
   for (int i = 0; i < ny; ++i)
     yg[i] = wy0 + (i + 0.5) * (wy1 - wy0) / ny;
-  PLcGrid grid{xg.data(), yg.data(), nullptr, nx, ny, 0};
+  contours(z, xg, yg, levels);
+}
+
+void Figure::contours(const std::vector<double>& z, const std::vector<double>& xg,
+                      const std::vector<double>& yg, const std::vector<double>& levels) {
+  const int nx = int(xg.size()), ny = int(yg.size());
+  if (levels.empty() || nx < 2 || ny < 2) return;
+  std::vector<std::vector<double>> cols(static_cast<std::size_t>(nx),
+                                        std::vector<double>(static_cast<std::size_t>(ny)));
+  std::vector<const PLFLT*> ptr(static_cast<std::size_t>(nx));
+  for (int ix = 0; ix < nx; ++ix) {
+    for (int iy = 0; iy < ny; ++iy)
+      cols[ix][iy] = z[std::size_t(iy) * nx + ix];
+    ptr[ix] = cols[ix].data();
+  }
+  std::vector<double> xs(xg), ys(yg);
+  PLcGrid grid{xs.data(), ys.data(), nullptr, nx, ny, 0};
   pls_->cont(ptr.data(), nx, ny, 1, nx, 1, ny, levels.data(), PLINT(levels.size()), pltr1, &grid);
+}
+
+void Figure::cells(const std::vector<double>& z, const std::vector<double>& x_edges,
+                   const std::vector<double>& y_edges, double lo, double hi) {
+  const std::size_t nx = x_edges.size() - 1, ny = y_edges.size() - 1;
+  for (std::size_t j = 0; j < ny; ++j)
+    for (std::size_t i = 0; i < nx; ++i) {
+      const double v = z[j * nx + i];
+      if (!std::isfinite(v)) continue;
+      colour(depth(hi > lo ? (v - lo) / (hi - lo) : 1));
+      const double a = x_edges[i], b = x_edges[i + 1], c = y_edges[j], d = y_edges[j + 1];
+      std::vector<double> px{a, b, b, a}, py{c, c, d, d};
+      pls_->fill(4, px.data(), py.data());
+    }
 }
 
 void Figure::colour_bar(double lo, double hi, const std::string& label) {
   const Panel keep = panel_;
+  PLFLT vx0, vx1, vy0, vy1;
+  pls_->gvpd(vx0, vx1, vy0, vy1);
   const double gap = 2.0 / page_.width_mm, width = 2.5 / page_.width_mm;
-  Panel bar{keep.x1 + gap, keep.x1 + gap + width, keep.y0, keep.y1, 0, 1, lo, hi};
-  pls_->vpor(bar.x0, bar.x1, bar.y0, bar.y1);
+  pls_->vpor(vx1 + gap, vx1 + gap + width, vy0, vy1);
   pls_->wind(0, 1, lo, hi);
-  std::vector<double> z(256);
-  for (int i = 0; i < 256; ++i)
-    z[i] = lo + (hi - lo) * (i + 0.5) / 256;
-  image(z, 1, 256, lo, hi);
+  std::vector<double> z(128), ye(129);
+  for (int i = 0; i <= 128; ++i)
+    ye[std::size_t(i)] = lo + (hi - lo) * i / 128;
+  for (int i = 0; i < 128; ++i)
+    z[std::size_t(i)] = 0.5 * (ye[std::size_t(i)] + ye[std::size_t(i) + 1]);
+  cells(z, {0, 1}, ye, lo, hi);
   colour(kInk);
   pls_->box("bc", 0, 0, "bcmstiv", 0, 0);
   if (!label.empty()) pls_->mtex("r", 4.2, 0.5, 0.5, label.c_str());
-  pls_->vpor(keep.x0, keep.x1, keep.y0, keep.y1);
+  pls_->vpor(vx0, vx1, vy0, vy1);
   pls_->wind(keep.xmin, keep.xmax, keep.ymin, keep.ymax);
+}
+
+std::pair<double, double> Figure::page_fraction(double x, double y) {
+  PLFLT vx0, vx1, vy0, vy1, wx0, wx1, wy0, wy1;
+  pls_->gvpd(vx0, vx1, vy0, vy1);
+  pls_->gvpw(wx0, wx1, wy0, wy1);
+  return {vx0 + (x - wx0) / (wx1 - wx0) * (vx1 - vx0),
+          1 - (vy0 + (y - wy0) / (wy1 - wy0) * (vy1 - vy0))};
 }
 
 void Figure::commit() {

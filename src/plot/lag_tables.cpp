@@ -97,7 +97,7 @@ FigureKind lag_figure(const std::string& name, const std::string& group, const s
     if (!std::filesystem::exists(dir + "/comparison.h5")) return false;
     return H5Input(dir + "/comparison.h5", "").has(group);
   };
-  k.load = [=](const std::string& dir) {
+  k.load = [=](const std::string& dir, const DrawOptions&) {
     LagTable t = read(H5Input(dir + "/comparison.h5", name), group, lo, hi);
     t.x_label = x_label, t.log_x = log_x;
     return std::function<void(Figure&)>([t](Figure& f) { draw(t, f); });

@@ -89,7 +89,7 @@ FigureKind pulls_figure() {
     return std::filesystem::exists(dir + "/comparison.h5") &&
            std::filesystem::exists(dir + "/measured-residuals.h5");
   };
-  k.load = [](const std::string& dir) {
+  k.load = [](const std::string& dir, const DrawOptions&) {
     const H5Input meas(dir + "/measured-residuals.h5", "pulls");
     const H5Input cmp(dir + "/comparison.h5", "pulls");
     const auto names = meas.strings("sources/name");

@@ -110,7 +110,7 @@ FigureKind residual_distributions_figure() {
     return std::filesystem::exists(dir + "/measured-residuals.h5") &&
            std::filesystem::exists(dir + "/mock-residuals.h5");
   };
-  k.load = [](const std::string& dir) {
+  k.load = [](const std::string& dir, const DrawOptions&) {
     const H5Input meas(dir + "/measured-residuals.h5", "residuals");
     const H5Input sim(dir + "/mock-residuals.h5", "residuals");
     std::vector<Component> comps;
@@ -122,6 +122,8 @@ FigureKind residual_distributions_figure() {
     // The comparison's statistics for the whole sample ("all U_s", ...), when it was made.
     if (std::filesystem::exists(dir + "/comparison.h5")) {
       const H5Input cmp(dir + "/comparison.h5", "residuals");
+      if (!cmp.has("global/subset"))
+        return std::function<void(Figure&)>([comps](Figure& f) { draw(comps, f); });
       const auto subsets = cmp.strings("global/subset");
       for (std::size_t i = 0; i < subsets.size(); ++i)
         for (std::size_t k = 0; k < 3; ++k)

@@ -16,8 +16,8 @@ void draw(const Chain& c, Figure& fig) {
   const std::size_t n = c.names.size();
   const double top = 0.98, bottom = 0.07, gap = 0.008;
   const double h = (top - bottom - gap * double(n - 1)) / double(n);
-  // At most about 600 points per walker line: every k-th step.
-  const std::size_t k = std::max<std::size_t>(1, c.steps / 600);
+  // At most about 400 points per walker line: every k-th step.
+  const std::size_t k = std::max<std::size_t>(1, c.steps / 400);
   fig.text_scale(0.8);
   for (std::size_t p = 0; p < n; ++p) {
     std::vector<double> all;
@@ -57,7 +57,7 @@ FigureKind traces_figure() {
               "discarded burn-in shaded";
   k.page = {120, 180, 200};
   k.available = [](const std::string& dir) { return std::filesystem::exists(dir + "/fit.h5"); };
-  k.load = [](const std::string& dir) {
+  k.load = [](const std::string& dir, const DrawOptions&) {
     const Chain c = read_chain(H5Input(dir + "/fit.h5", "traces"));
     return std::function<void(Figure&)>([c](Figure& f) { draw(c, f); });
   };

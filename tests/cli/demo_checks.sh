@@ -2,11 +2,12 @@
 # The demo as the README runs it, and its data: the committed "measured" catalog is regenerated
 # bit for bit (on 1 and 2 threads), demo/run.sh runs the whole job, the spiral model wins, and
 # bad whole-run input stops with a clear message and no misleading tables.
-# Usage: demo_checks.sh <undertow> <source dir> <work dir>
+# Usage: demo_checks.sh <undertow> <source dir> <work dir> <png_probe>
 set -euo pipefail
 undertow=$(realpath "$1")
 src=$2
 work=$3
+png_probe=$(realpath "$4")
 rm -rf "$work"
 mkdir -p "$work"
 cd "$work"
@@ -76,6 +77,12 @@ for key, truth in (("theta0_kms", 228.0), ("u_sun_kms", 11.1)):
     print(f"Kestrel fit: {key} = {med:.4g} -{lo:.2g} +{hi:.2g} (truth {truth}, |pull| {pulls[-1]:.2f})")
 assert max(pulls) > 2
 PY
+
+# The figures the runs and fits drew, and redrawn in every format.
+[ -s "$work/demo/spiral/figures/fig-face-on.png" ] || fail "the run drew no face-on map"
+[ -s "$work/demo/kestrel-fit/figures/fig-corner.pdf" ] || fail "the fit drew no corner plot"
+bash "$src/tests/cli/figure_checks.sh" "$undertow" "$png_probe" "$work/demo" "$work/figures" ||
+  fail "figure checks"
 
 # 3. Bad input to the whole run.
 cp "$src/demo/spiral.toml" typo.toml

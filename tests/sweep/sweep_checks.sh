@@ -134,6 +134,23 @@ for r in rows[1:]:
 print("gathered HDF5 read by h5py: 7 points, units present, ln L equal to the CSV")
 PY
 
+# 4b. The gathered sweep's figures (docs/figures.md): drawn by gather, redrawn in every format,
+# with chosen axes; unknown axes refused.
+for f in fig-sweep-map.png fig-sweep-profiles.png fig-sweep-map.pdf; do
+  [ -s "one/figures/$f" ] || fail "gather drew no $f"
+done
+"$U" draw one --format png,svg,pdf -o figs >/dev/null || fail "draw on a gathered sweep"
+"$U" draw one --figure sweep-map --axes force_ratio pattern_speed_kms_kpc --format svg -o figs-axes \
+  >/dev/null || fail "draw --axes"
+[ "$(pdfinfo figs/fig-sweep-map.pdf | awk '/^Pages:/ {print $2}')" = 1 ] || fail "sweep map PDF pages"
+/usr/bin/python3 -c "import sys, xml.etree.ElementTree as E; E.parse(sys.argv[1])" figs/fig-sweep-profiles.svg ||
+  fail "sweep profiles SVG is not XML"
+if "$U" draw one --figure sweep-map --axes force_ratio pitch_deg -o figs-bad 2>axes.err; then
+  fail "an axis that was not swept was accepted"
+fi
+grep -q "'pitch_deg' is not a numeric swept parameter" axes.err || { cat axes.err; fail "axes message"; }
+echo "sweep figures drawn by gather and redrawn as PNG, SVG, PDF; --axes checked"
+
 # 5. Gathering twice gives identical files; a missing point makes gather fail unless --partial.
 cp one/ci-results.h5 first.h5
 "$U" sweep gather one >/dev/null

@@ -14,6 +14,15 @@ namespace undertow::plot {
 enum class Source { run, fit, sweep };
 std::string source_name(Source s);
 
+struct DrawOptions {
+  std::vector<Format> formats{Format::png, Format::pdf};
+  double width_mm = 0, height_mm = 0; // 0: the figure's own size
+  double dpi = 300;
+  // The sweep map's axes: two swept parameters' key paths, or their last parts; empty: the
+  // first two numeric ones.
+  std::vector<std::string> sweep_axes;
+};
+
 struct FigureKind {
   std::string name; // file fig-<name>.<ext>
   Source source;
@@ -23,17 +32,11 @@ struct FigureKind {
   std::function<bool(const std::string& dir)> available;
   // Reads what the figure needs (InputError naming file and dataset when something is missing)
   // and returns the drawing, so that nothing is written unless every input was read.
-  std::function<std::function<void(Figure&)>(const std::string& dir)> load;
+  std::function<std::function<void(Figure&)>(const std::string& dir, const DrawOptions& o)> load;
 };
 
 const std::vector<FigureKind>& catalogue();
 const FigureKind& figure_kind(const std::string& name); // InputError listing the names
-
-struct DrawOptions {
-  std::vector<Format> formats{Format::png, Format::pdf};
-  double width_mm = 0, height_mm = 0; // 0: the figure's own size
-  double dpi = 300;
-};
 
 // Draws the named figures (all available ones of the folder's kind when `names` is empty) from
 // `dir` into `out_dir` as fig-<name>.<ext>; returns the files written.
@@ -52,6 +55,7 @@ FigureKind lag_by_age_figure();
 FigureKind lag_by_phase_figure();
 FigureKind face_on_figure();
 FigureKind rotation_curve_figure();
+FigureKind fit_rotation_figure();
 FigureKind corner_figure();
 FigureKind traces_figure();
 FigureKind sweep_map_figure();

@@ -16,6 +16,9 @@ enum class Format { png, svg, pdf };
 Format format_from_name(const std::string& name); // "png", "svg", "pdf"; throws InputError
 std::string extension(Format f);                  // "png", ...
 std::vector<Format> formats_from_list(const std::string& list); // "png,pdf"
+// InputError when PLplot lacks the cairo driver of a format or fontconfig finds no sans-serif
+// font: checked before anything is drawn or any folder made.
+void require_drawing(const std::vector<Format>& formats);
 
 // The page: physical size and, for PNG, pixels per inch. 88 mm is a single journal column
 // (common practice); text is set in millimetres, so it reads the same at any resolution.
@@ -54,7 +57,7 @@ public:
   void axes(const std::string& x_label, const std::string& y_label, bool x_numbers = true,
             bool y_numbers = true, bool log_x = false, bool log_y = false, double x_tick = 0,
             double y_tick = 0);
-  // Where axes() puts its labels, in character heights from the frame (defaults 3.0 and 3.6).
+  // Where axes() puts its labels, in character heights from the frame (defaults 3.3 and 4.2).
   void label_offsets(double x, double y) { label_x_ = x, label_y_ = y; }
   // A panel whose world box has equal x and y scales, centred in the viewport.
   void equal_panel(const Panel& p);
@@ -69,8 +72,8 @@ public:
                     const std::vector<double>& hi);
   void arrow(double x, double y, double dx, double dy, double head_mm);
   void ellipse(double x, double y, double a, double b, double angle_rad);
-  // Text at a world point; just = 0 left, 0.5 centred, 1 right.
-  void text(double x, double y, const std::string& s, double just = 0);
+  // Text at a world point; just = 0 left, 0.5 centred, 1 right; turned by angle_deg.
+  void text(double x, double y, const std::string& s, double just = 0, double angle_deg = 0);
   // Text relative to the viewport: side "t", "b", "l", "r" (PLplot's mtex), displacement in
   // character heights, position along the side in [0, 1].
   void side_text(const std::string& side, double disp, double pos, double just,
@@ -92,8 +95,19 @@ public:
   void image(const std::vector<double>& z, int nx, int ny, double lo, double hi);
   // Contours of z (same layout) over the world box at the given levels.
   void contours(const std::vector<double>& z, int nx, int ny, const std::vector<double>& levels);
+  // The same on a rectilinear grid: z[iy * xg.size() + ix] at (xg[ix], yg[iy]).
+  void contours(const std::vector<double>& z, const std::vector<double>& xg,
+                const std::vector<double>& yg, const std::vector<double>& levels);
+  // Filled rectangles [x_edges[i], x_edges[i+1]] x [y_edges[j], y_edges[j+1]] coloured by
+  // z[j * nx + i] on the depth() map from lo to hi (NaN: left empty).
+  void cells(const std::vector<double>& z, const std::vector<double>& x_edges,
+             const std::vector<double>& y_edges, double lo, double hi);
   // A colour bar to the right of the current panel.
   void colour_bar(double lo, double hi, const std::string& label);
+
+  // Where a world point of the current panel lands on the page, as fractions of its width
+  // (from the left) and height (from the top): for checks of the drawn pixels.
+  std::pair<double, double> page_fraction(double x, double y);
 
   // Finishes the file and moves it into place.
   void commit();
@@ -107,7 +121,7 @@ private:
   Panel panel_;
   std::unique_ptr<plstream> pls_;
   bool done_ = false;
-  double label_x_ = 3.0, label_y_ = 3.6;
+  double label_x_ = 3.3, label_y_ = 4.2;
 };
 
 } // namespace undertow::plot
