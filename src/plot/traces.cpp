@@ -26,7 +26,7 @@ void draw(const Chain& c, Figure& fig) {
         all.push_back(c.at(s, w, p));
     const auto [lo, hi] = range_of({{quantile(all, 0.001), quantile(all, 0.999)}}, 0.05);
     const double y1 = top - double(p) * (h + gap);
-    fig.panel({0.2, 0.97, y1 - h, y1, 0, double(c.steps), lo, hi});
+    fig.panel({0.3, 0.97, y1 - h, y1, 0, double(c.steps), lo, hi});
     fig.colour(series(Series::band), 0.2);
     fig.fill({0, double(c.burn), double(c.burn), 0}, {lo, lo, hi, hi});
     fig.colour(series(Series::simulated), 0.25);
@@ -41,8 +41,10 @@ void draw(const Chain& c, Figure& fig) {
     fig.axes(p + 1 == n ? "step" : "", "", p + 1 == n, true, false, false, 0,
              round_step((hi - lo) / 2.2));
     fig.colour(kInk);
-    fig.side_text("l", 5.0, 0.5, 0.5, parameter_label(c.names[p]));
+    fig.side_text("lv", 4.0, 0.5, 1.0,
+                  parameter_label(c.names[p])); // horizontal: the panels are low
     if (p == 0) fig.note(0, "burn-in (discarded)", 0.9);
+    fig.text_scale(0.8); // note() leaves the default size
   }
   fig.text_scale(1.0);
 }
