@@ -78,7 +78,12 @@ std::optional<int> run_draw_command(const DrawArgs& a) {
   o.formats = plot::formats_from_list(a.formats);
   o.width_mm = a.width_mm, o.height_mm = a.height_mm, o.dpi = a.dpi;
   o.sweep_axes = a.axes;
-  const std::string out = a.output.empty() ? a.dir + "/figures" : a.output;
+  // FOLDER/figures, or figures/ beside a sweep's *-results.h5
+  const std::filesystem::path p(a.dir);
+  const std::string out =
+      !a.output.empty()
+          ? a.output
+          : ((std::filesystem::is_directory(p) ? p : p.parent_path()) / "figures").string();
   for (const auto& f : plot::draw_figures(src, a.dir, out, a.figures, o))
     std::cout << "wrote " << f << "\n";
   return 0;

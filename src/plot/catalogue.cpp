@@ -26,7 +26,7 @@ const std::vector<FigureKind>& catalogue() {
       pulls_figure(),
       lag_by_age_figure(),
       lag_by_phase_figure(),
-      corner_figure(),
+      posterior_figure(),
       fit_rotation_figure(),
       traces_figure(),
       sweep_map_figure(),

@@ -76,7 +76,7 @@ Lab srgb_to_lab(const Rgb& c) {
   return {116 * fy - 16, 500 * (fx - fy), 200 * (fy - fz)};
 }
 
-Rgb depth(double t) {
+Rgb sequential(double t) {
   t = std::clamp(t, 0.0, 1.0);
   // Lightness linear in t; hue from 265 deg (blue) down through 190 (teal) to 85 (sand); chroma
   // lower at the dark and light ends, where sRGB has little room, so no point leaves the gamut.

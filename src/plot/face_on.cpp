@@ -22,6 +22,7 @@ constexpr double kDeg = std::numbers::pi / 180;
 
 struct FaceOn {
   double r0 = 8.1, time = 0;
+  bool has_patterns = false;
   double x0 = 0, x1 = 1, y0 = 0, y1 = 1; // kpc
   int nx = 0, ny = 0;
   std::vector<double> sim_density; // young sources per kpc^2, smoothed
@@ -110,10 +111,14 @@ void draw(const FaceOn& d, Figure& fig) {
   fig.panel({0.07, 0.97, 0.12, 0.9, 0, 1, 0, 1});
   char t[64];
   std::snprintf(t, sizeof t, "t = %g Myr", d.time);
-  fig.legend_above({{series(Series::measured), "measured U#ds#u, V#ds#u and 1#gs ellipse", 'l'},
-                    {series(Series::simulated), "model at the same places", 'l'},
-                    {series(Series::model), "arm crests (" + std::string(t) + ")", 'l'},
-                    {depth(0.35), "simulated young sources", 'b'}});
+  std::vector<Figure::Key> keys{
+      {series(Series::measured), "measured U#ds#u, V#ds#u and 1#gs ellipse", 'l'},
+      {series(Series::simulated), "model at the same places", 'l'}};
+  if (d.has_patterns)
+    keys.push_back({series(Series::model),
+                    "arm crests: 85 % of the ring's peak density (" + std::string(t) + ")", 'l'});
+  keys.push_back({sequential(0.35), "simulated young sources", 'b'});
+  fig.legend_above(keys);
 }
 
 } // namespace
@@ -138,13 +143,17 @@ FigureKind face_on_figure() {
     const H5Input cmp(dir + "/comparison.h5", "face-on");
     FaceOn d;
     d.r0 = rm.r0_kpc, d.time = rm.time_myr;
+    d.has_patterns = !rm.model.patterns.empty();
     const auto names = meas.strings("sources/name");
-    const auto R = meas.doubles("sources/R_kpc"), psi = meas.doubles("sources/psi_deg");
-    const auto U = meas.doubles("sources/U_kms"), V = meas.doubles("sources/V_kms");
-    const auto Ue = meas.doubles("sources/U_err_kms"), Ve = meas.doubles("sources/V_err_kms");
+    const std::size_t n = names.size();
+    const auto R = meas.doubles_n("sources/R_kpc", n), psi = meas.doubles_n("sources/psi_deg", n);
+    const auto U = meas.doubles_n("sources/U_kms", n), V = meas.doubles_n("sources/V_kms", n);
+    const auto Ue = meas.doubles_n("sources/U_err_kms", n),
+               Ve = meas.doubles_n("sources/V_err_kms", n);
     std::map<std::string, std::size_t> local;
     const auto lname = cmp.strings("local/name");
-    const auto up = cmp.doubles("local/U_pred_kms"), vp = cmp.doubles("local/V_pred_kms");
+    const auto up = cmp.doubles_n("local/U_pred_kms", lname.size()),
+               vp = cmp.doubles_n("local/V_pred_kms", lname.size());
     for (std::size_t i = 0; i < lname.size(); ++i)
       local[lname[i]] = i;
     std::vector<double> all_x{0, -d.r0}, all_y{0, 0};
@@ -157,7 +166,8 @@ FigureKind face_on_figure() {
       d.v_pred.push_back(it == local.end() ? NAN : vp[it->second]);
       all_x.push_back(x), all_y.push_back(y);
     }
-    const auto sR = sim.doubles("sources/R_kpc"), spsi = sim.doubles("sources/psi_deg");
+    const auto sR = sim.doubles("sources/R_kpc");
+    const auto spsi = sim.doubles_n("sources/psi_deg", sR.size());
     std::vector<double> sx, sy;
     for (std::size_t i = 0; i < sR.size(); ++i) {
       const auto [x, y] = place(sR[i], spsi[i]);
@@ -175,8 +185,9 @@ FigureKind face_on_figure() {
     // for a density map: a few cells, well below the arm spacing).
     std::vector<double> counts(std::size_t(d.nx * d.ny), 0.0);
     for (std::size_t i = 0; i < sx.size(); ++i) {
-      const int ix = int((sx[i] - d.x0) / cell), iy = int((sy[i] - d.y0) / cell);
-      if (ix >= 0 && ix < d.nx && iy >= 0 && iy < d.ny) counts[std::size_t(iy * d.nx + ix)] += 1;
+      const double fx = std::floor((sx[i] - d.x0) / cell), fy = std::floor((sy[i] - d.y0) / cell);
+      if (!(fx >= 0 && fx < d.nx && fy >= 0 && fy < d.ny)) continue; // NaN fails too
+      counts[std::size_t(fy) * std::size_t(d.nx) + std::size_t(fx)] += 1;
     }
     const double sig = 0.3 / cell;
     const int reach = int(std::ceil(3 * sig));

@@ -10,6 +10,7 @@
 #include <mutex>
 #include <numbers>
 #include <sstream>
+#include <stdexcept>
 #include <unistd.h>
 
 #include "undertow/error.hpp"
@@ -133,6 +134,7 @@ Figure::Figure(std::string path, Format format, const Page& page)
 
   static std::once_flag once;
   std::call_once(once, [] { plsabort(on_abort); });
+  plplot_error.clear(); // from an abandoned figure
   pls_ = std::make_unique<plstream>();
   plstream& s = *pls_;
   s.sdev(dev.c_str());
@@ -146,6 +148,8 @@ Figure::Figure(std::string path, Format format, const Page& page)
   if (!plplot_error.empty()) {
     const std::string e = plplot_error;
     plplot_error.clear();
+    pls_.reset(); // the destructor does not run for a constructor that throws
+    std::remove(tmp_.c_str());
     throw InputError(path_ + ": " + e);
   }
   s.sfont(PL_FCI_SANS, PL_FCI_UPRIGHT, PL_FCI_MEDIUM);
@@ -156,10 +160,10 @@ Figure::Figure(std::string path, Format format, const Page& page)
   s.smin(0.8 * mm_scale(), 1.0);
   colour(kInk);
   line_width(0.6);
-  // The depth() map as colour map 1, for images.
+  // The sequential() map as colour map 1, for images.
   std::vector<PLINT> r(256), g(256), b(256);
   for (int i = 0; i < 256; ++i) {
-    const auto c = depth(i / 255.0).bytes();
+    const auto c = sequential(i / 255.0).bytes();
     r[i] = c[0], g[i] = c[1], b[i] = c[2];
   }
   s.scmap1n(256);
@@ -289,7 +293,8 @@ void Figure::fill(const std::vector<double>& x, const std::vector<double>& y) {
 
 void Figure::error_bars_y(const std::vector<double>& x, const std::vector<double>& lo,
                           const std::vector<double>& hi) {
-  for (std::size_t i = 0; i < x.size(); ++i)
+  const std::size_t n = std::min({x.size(), lo.size(), hi.size()});
+  for (std::size_t i = 0; i < n; ++i)
     if (std::isfinite(lo[i]) && std::isfinite(hi[i])) pls_->join(x[i], lo[i], x[i], hi[i]);
 }
 
@@ -472,12 +477,14 @@ void Figure::contours(const std::vector<double>& z, const std::vector<double>& x
 
 void Figure::cells(const std::vector<double>& z, const std::vector<double>& x_edges,
                    const std::vector<double>& y_edges, double lo, double hi) {
+  if (x_edges.size() < 2 || y_edges.size() < 2) return;
   const std::size_t nx = x_edges.size() - 1, ny = y_edges.size() - 1;
+  if (z.size() < nx * ny) throw std::invalid_argument("Figure::cells: z smaller than the grid");
   for (std::size_t j = 0; j < ny; ++j)
     for (std::size_t i = 0; i < nx; ++i) {
       const double v = z[j * nx + i];
       if (!std::isfinite(v)) continue;
-      colour(depth(hi > lo ? (v - lo) / (hi - lo) : 1));
+      colour(sequential(hi > lo ? (v - lo) / (hi - lo) : 1));
       const double a = x_edges[i], b = x_edges[i + 1], c = y_edges[j], d = y_edges[j + 1];
       std::vector<double> px{a, b, b, a}, py{c, c, d, d};
       pls_->fill(4, px.data(), py.data());

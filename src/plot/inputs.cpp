@@ -37,6 +37,15 @@ std::vector<double> H5Input::doubles(const std::string& dataset, std::size_t col
   return io::h5::read_doubles(file_, file_.id(), dataset, cols, rows);
 }
 
+std::vector<double> H5Input::doubles_n(const std::string& dataset, std::size_t rows) const {
+  auto v = doubles(dataset);
+  if (v.size() != rows)
+    throw InputError(file_.path() + ": /" + dataset + " has " + std::to_string(v.size()) +
+                     " rows, not " + std::to_string(rows) +
+                     " like the datasets beside it (figure '" + figure_ + "')");
+  return v;
+}
+
 std::vector<std::string> H5Input::strings(const std::string& dataset) const {
   if (!has(dataset)) missing(dataset);
   return io::h5::read_strings(file_, file_.id(), dataset);

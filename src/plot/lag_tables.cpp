@@ -21,14 +21,15 @@ struct LagTable {
 LagTable read(const H5Input& in, const std::string& group, const std::string& lo,
               const std::string& hi) {
   LagTable t;
-  t.lo = in.doubles(group + "/" + lo), t.hi = in.doubles(group + "/" + hi);
+  t.lo = in.doubles(group + "/" + lo);
+  t.hi = in.doubles_n(group + "/" + hi, t.lo.size());
   const char* comp[2] = {"u", "v"};
   const char* kind[2] = {"sim", "mock"};
   for (int c = 0; c < 2; ++c)
     for (int k = 0; k < 2; ++k) {
       const std::string base = group + "/mean_" + comp[c] + "_" + kind[k];
-      t.mean[c][k] = in.doubles(base + "_kms");
-      t.err[c][k] = in.doubles(base + "_err_kms");
+      t.mean[c][k] = in.doubles_n(base + "_kms", t.lo.size());
+      t.err[c][k] = in.doubles_n(base + "_err_kms", t.lo.size());
     }
   return t;
 }
@@ -66,7 +67,7 @@ void draw(const LagTable& t, Figure& fig) {
         fig.line({xh[i], xh[i]}, {y0, y1});
       }
     for (int k = 0; k < 2; ++k) {
-      const Rgb col = series(k == 0 ? Series::simulated : Series::measured);
+      const Rgb col = series(k == 0 ? Series::simulated : Series::band);
       std::vector<double> xs(n), lo(n), hi(n);
       for (std::size_t i = 0; i < n; ++i) {
         xs[i] = x[i] + (k == 0 ? -dx : dx);
@@ -82,7 +83,7 @@ void draw(const LagTable& t, Figure& fig) {
   }
   fig.panel({0.17, 0.96, 0.86 - 0.345, 0.86, 0, 1, 0, 1});
   fig.legend_above({{series(Series::simulated), "young stars (true motions)", 'p'},
-                    {series(Series::measured), "through the mock survey", 'o'}});
+                    {series(Series::band), "through the mock survey", 'o'}});
 }
 
 FigureKind lag_figure(const std::string& name, const std::string& group, const std::string& lo,

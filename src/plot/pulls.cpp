@@ -67,6 +67,14 @@ void draw(const Pulls& d, Figure& fig) {
                col == 0 ? std::string("pull ") + names[row] + "#ds#u [#gs]" : "", row == 2,
                col == 0);
       if (col == 0) fig.note(0, moments(d.pull[row]), 0.85);
+      std::size_t clipped = 0;
+      for (double v : d.pull[row])
+        clipped += std::fabs(v) > big ? 1 : 0;
+      if (col == 1 && clipped > 0)
+        fig.note(0,
+                 std::to_string(clipped) + " beyond ±" + std::to_string(int(big)) +
+                     "#gs drawn at the edge",
+                 0.85, true);
     }
   }
   fig.panel({0.08, 0.5, bottom, top, 0, 1, 0, 1});
@@ -93,14 +101,16 @@ FigureKind pulls_figure() {
     const H5Input meas(dir + "/measured-residuals.h5", "pulls");
     const H5Input cmp(dir + "/comparison.h5", "pulls");
     const auto names = meas.strings("sources/name");
-    const auto R = meas.doubles("sources/R_kpc"), psi = meas.doubles("sources/psi_deg");
+    const auto R = meas.doubles_n("sources/R_kpc", names.size()),
+               psi = meas.doubles_n("sources/psi_deg", names.size());
     std::map<std::string, std::size_t> at;
     for (std::size_t i = 0; i < names.size(); ++i)
       at[names[i]] = i;
     const auto local = cmp.strings("local/name");
     Pulls d;
-    std::array<std::vector<double>, 3> p{cmp.doubles("local/pull_U"), cmp.doubles("local/pull_V"),
-                                         cmp.doubles("local/pull_W")};
+    std::array<std::vector<double>, 3> p{cmp.doubles_n("local/pull_U", local.size()),
+                                         cmp.doubles_n("local/pull_V", local.size()),
+                                         cmp.doubles_n("local/pull_W", local.size())};
     for (std::size_t i = 0; i < local.size(); ++i) {
       const auto it = at.find(local[i]);
       if (it == at.end())
@@ -108,7 +118,7 @@ FigureKind pulls_figure() {
                          meas.path());
       d.psi.push_back(psi[it->second]), d.R.push_back(R[it->second]);
       for (int c = 0; c < 3; ++c)
-        d.pull[c].push_back(p[c].at(i));
+        d.pull[c].push_back(p[c][i]);
     }
     return std::function<void(Figure&)>([d](Figure& f) { draw(d, f); });
   };

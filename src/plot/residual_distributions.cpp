@@ -5,6 +5,7 @@
 #include <cstdio>
 #include <filesystem>
 
+#include "undertow/error.hpp"
 #include "undertow/plot/catalogue.hpp"
 #include "undertow/plot/density_estimate.hpp"
 #include "undertow/plot/inputs.hpp"
@@ -57,8 +58,9 @@ void draw(const std::vector<Component>& comps, Figure& fig) {
     for (std::size_t i = 0; i < hm.density.size(); ++i)
       ymax = std::max({ymax, (hm.density[i] + hm.error[i]) * to_counts,
                        (hs.density[i] + hs.error[i]) * to_counts});
-    for (double y : km)
-      ymax = std::max(ymax, y);
+    for (const auto* v : {&km, &ks})
+      for (double y : *v)
+        ymax = std::max(ymax, y);
     const double y1 = top - double(k) * (h + gap);
     fig.panel({0.14, 0.97, y1 - h, y1, lo, hi, 0, 1.45 * ymax});
     // Simulated: shaded bars and a solid curve; measured: points with Poisson error bars and a
@@ -68,11 +70,16 @@ void draw(const std::vector<Component>& comps, Figure& fig) {
       const double a = hs.edges[i], b = hs.edges[i + 1], y = hs.density[i] * to_counts;
       fig.fill({a, b, b, a}, {0, 0, y, y});
     }
-    fig.colour(series(Series::simulated));
+    // A kernel estimate needs two distinct values (a zero bandwidth draws nothing).
     fig.line_width(1.0);
-    fig.line(grid, ks);
-    fig.colour(series(Series::measured));
-    fig.dashed(grid, km);
+    if (silverman_bandwidth(c.sim) > 0) {
+      fig.colour(series(Series::simulated));
+      fig.line(grid, ks);
+    }
+    if (silverman_bandwidth(c.meas) > 0) {
+      fig.colour(series(Series::measured));
+      fig.dashed(grid, km);
+    }
     std::vector<double> mid, y, lo_e, hi_e;
     for (std::size_t i = 0; i < hm.density.size(); ++i) {
       mid.push_back(0.5 * (hm.edges[i] + hm.edges[i + 1]));
@@ -89,6 +96,12 @@ void draw(const std::vector<Component>& comps, Figure& fig) {
     fig.axes(k + 1 == n ? "peculiar motion [km s#u-1#d]" : "", ylab, k + 1 == n, true);
     fig.note(0, c.label, 1.2);
     if (!c.stats.empty()) fig.note(1, c.stats, 0.85);
+    std::size_t outside = 0;
+    for (const auto* v : {&c.meas, &c.sim})
+      for (double x : *v)
+        outside += x < lo || x > hi ? 1 : 0;
+    if (outside > 0)
+      fig.note(0, std::to_string(outside) + " beyond the axis (both samples)", 0.8, true);
     if (k == 0)
       fig.legend_above(
           {{series(Series::measured), "measured (" + std::to_string(c.meas.size()) + ")", 'p'},
@@ -114,11 +127,16 @@ FigureKind residual_distributions_figure() {
     const H5Input meas(dir + "/measured-residuals.h5", "residuals");
     const H5Input sim(dir + "/mock-residuals.h5", "residuals");
     std::vector<Component> comps;
-    for (const char* c : {"U", "V", "W"})
-      comps.push_back({std::string(c) + "#ds#u",
-                       meas.doubles(std::string("sources/") + c + "_kms"),
-                       sim.doubles(std::string("sources/") + c + "_kms"),
-                       {}});
+    for (const char* c : {"U", "V", "W"}) {
+      auto m = meas.doubles(std::string("sources/") + c + "_kms");
+      auto s = sim.doubles(std::string("sources/") + c + "_kms");
+      for (auto* v : {&m, &s})
+        std::erase_if(*v, [](double x) { return !std::isfinite(x); });
+      if (m.empty() || s.empty())
+        throw InputError((m.empty() ? meas.path() : sim.path()) + ": no finite value in /sources/" +
+                         c + "_kms (figure 'residuals')");
+      comps.push_back({std::string(c) + "#ds#u", m, s, {}});
+    }
     // The comparison's statistics for the whole sample ("all U_s", ...), when it was made.
     if (std::filesystem::exists(dir + "/comparison.h5")) {
       const H5Input cmp(dir + "/comparison.h5", "residuals");

@@ -136,8 +136,9 @@ FigureKind rotation_curve_figure() {
     const H5Input meas(dir + "/measured-residuals.h5", "rotation");
     RotationData d;
     d.r0 = rm.r0_kpc;
-    const auto R = meas.doubles("sources/R_kpc"), V = meas.doubles("sources/V_kms"),
-               Ve = meas.doubles("sources/V_err_kms");
+    const auto R = meas.doubles("sources/R_kpc");
+    const auto V = meas.doubles_n("sources/V_kms", R.size()),
+               Ve = meas.doubles_n("sources/V_err_kms", R.size());
     double top = 1.6 * rm.r0_kpc;
     for (double r : R)
       if (std::isfinite(r)) top = std::max(top, 1.1 * r);
@@ -174,7 +175,7 @@ FigureKind rotation_curve_figure() {
           auto same = std::find_if(d.resonances.begin(), d.resonances.end(),
                                    [&](const Marker& m) { return std::fabs(m.R - r) < 1e-3; });
           if (same != d.resonances.end())
-            same->label = shorten(res.name) + "/" + same->label;
+            same->label = shorten(res.name) + " " + p.label + " = " + same->label;
           else
             d.resonances.push_back({r, shorten(res.name) + " " + p.label});
         }
@@ -197,8 +198,10 @@ FigureKind fit_rotation_figure() {
     const std::string path = dir + "/fit.h5";
     const H5Input in(path, "fit-rotation");
     const auto g = fit::read_galactic_parameters(path);
-    const auto R = in.doubles("sources/R_kpc"), V = in.doubles("sources/V_s_kms"),
-               Vlo = in.doubles("sources/V_s_lo_kms"), Vhi = in.doubles("sources/V_s_hi_kms");
+    const auto R = in.doubles("sources/R_kpc");
+    const auto V = in.doubles_n("sources/V_s_kms", R.size()),
+               Vlo = in.doubles_n("sources/V_s_lo_kms", R.size()),
+               Vhi = in.doubles_n("sources/V_s_hi_kms", R.size());
     RotationData d;
     d.fit = true;
     d.r0 = g.median[std::size_t(fit::Param::r0)];

@@ -1,8 +1,8 @@
 // A gathered sweep: the likelihood over two swept parameters as a map (the profile over the
-// others), with the regions Δ ln L = 1.15 and 3.09 below the best point (68 % and 95 % for two
-// parameters, common practice: half the chi-square quantiles with 2 degrees of freedom), and one
-// profile per parameter with its realisation error bars and the 1- and 2-sigma lines for one
-// parameter (Δ ln L = 0.5 and 1.92).
+// others), with the regions Δ ln L = 1.15 and 3.09 below the best point (68.3 % and 95.4 % for
+// two parameters, common practice: half the chi-square quantiles with 2 degrees of freedom), and
+// one profile per parameter with its realisation error bars and the 1- and 2-sigma lines for one
+// parameter (Δ ln L = 0.5 and 2).
 #include <algorithm>
 #include <cmath>
 #include <cstdio>
@@ -53,13 +53,13 @@ SweepData read(const std::string& dir, const std::string& figure) {
   d.statistic =
       in.has("statistics/delta_log_likelihood") ? "delta_log_likelihood" : "log_likelihood";
   const auto lnl = in.doubles("statistics/" + d.statistic);
-  const auto scatter = in.doubles("statistics/log_likelihood_scatter");
-  const auto k = in.doubles("statistics/realisations");
+  const auto scatter = in.doubles_n("statistics/log_likelihood_scatter", lnl.size());
+  const auto k = in.doubles_n("statistics/realisations", lnl.size());
   std::vector<std::vector<double>> vals;
   for (const auto& key : io::h5::children(in.file(), "parameters")) {
     if (key == "replicate") continue;
     try {
-      vals.push_back(in.doubles("parameters/" + key));
+      vals.push_back(in.doubles_n("parameters/" + key, lnl.size()));
       d.keys.push_back(key);
     } catch (const InputError&) { // a parameter that is not a number: not on an axis
     }
@@ -104,7 +104,10 @@ std::vector<double> levels_of(const std::vector<double>& v) {
 }
 std::vector<double> edges_of(const std::vector<double>& u) {
   std::vector<double> e;
-  if (u.size() == 1) return {u[0] - 0.5, u[0] + 0.5};
+  if (u.size() == 1) { // one value: a cell of 10 % of it (or of 1 at 0)
+    const double w = u[0] != 0 ? 0.05 * std::fabs(u[0]) : 0.5;
+    return {u[0] - w, u[0] + w};
+  }
   e.push_back(u[0] - 0.5 * (u[1] - u[0]));
   for (std::size_t i = 0; i + 1 < u.size(); ++i)
     e.push_back(0.5 * (u[i] + u[i + 1]));
@@ -117,10 +120,12 @@ void draw_map(const SweepData& d, Figure& fig) {
   const auto& yv = d.values[1];
   const auto xs = levels_of(xv), ys = levels_of(yv);
   const bool grid = xs.size() * ys.size() <= 4 * d.lnl.size(); // else scattered (hypercube)
+  const bool contoured = grid && xs.size() >= 2 && ys.size() >= 2;
   const auto xe = edges_of(xs), ye = edges_of(ys);
   double lo = -10;
   for (double v : d.lnl)
     lo = std::min(lo, v);
+  const bool clipped = lo < -30;
   lo = std::max(lo, -30.0);
   const auto [xa, xb] = grid ? std::pair{xe.front(), xe.back()} : range_of({xv}, 0.05);
   const auto [ya, yb] = grid ? std::pair{ye.front(), ye.back()} : range_of({yv}, 0.05);
@@ -137,16 +142,20 @@ void draw_map(const SweepData& d, Figure& fig) {
       c = std::isfinite(c) ? std::max(c, d.lnl[i]) : d.lnl[i];
     }
     fig.cells(z, xe, ye, lo, 0);
-    if (xs.size() >= 2 && ys.size() >= 2) {
+    if (contoured) {
+      // Cells without a result lie below every level, so no contour runs through them unseen.
+      std::vector<double> zc(z);
+      for (double& v : zc)
+        if (!std::isfinite(v)) v = lo - 100;
       fig.colour(series(Series::measured));
       fig.line_width(1.2);
-      fig.contours(z, xs, ys, {-1.15});
+      fig.contours(zc, xs, ys, {-1.15});
       fig.line_width(0.7);
-      fig.contours(z, xs, ys, {-3.09});
+      fig.contours(zc, xs, ys, {-3.09});
     }
   } else {
     for (std::size_t i = 0; i < d.lnl.size(); ++i) {
-      fig.colour(depth((std::max(d.lnl[i], lo) - lo) / -lo));
+      fig.colour(sequential((std::max(d.lnl[i], lo) - lo) / -lo));
       fig.points({xv[i]}, {yv[i]}, 1.6);
     }
   }
@@ -155,16 +164,18 @@ void draw_map(const SweepData& d, Figure& fig) {
   fig.points({xv[d.best]}, {yv[d.best]}, 2.2, false);
   fig.line_width(0.6);
   fig.axes(short_key(d.keys[0]), short_key(d.keys[1]));
-  fig.colour_bar(lo, 0, "ln L − ln L#dbest#u");
+  fig.colour_bar(lo, 0,
+                 clipped ? "ln L − ln L#dbest#u (below −30: as −30)" : "ln L − ln L#dbest#u");
   std::vector<Figure::Key> keys{{series(Series::measured), "best point", 'o'}};
-  if (grid) keys.push_back({series(Series::measured), "Δ ln L = −1.15, −3.09 (68, 95 %)", 'l'});
+  if (contoured)
+    keys.push_back({series(Series::measured), "Δ ln L = −1.15, −3.09 (68.3, 95.4 %)", 'l'});
   fig.legend_above(keys);
   if (!d.noise_note.empty()) fig.side_text("b", 5.2, 0, 0, d.noise_note);
 }
 
 void draw_profiles(const SweepData& d, Figure& fig) {
   const std::size_t n = d.keys.size();
-  const double top = 0.9, bottom = 0.1, gap = 0.1;
+  const double top = 0.9, bottom = 0.1, gap = std::min(0.1, 0.3 / double(n));
   const double h = (top - bottom - gap * double(n - 1)) / double(n);
   for (std::size_t p = 0; p < n; ++p) {
     const auto xs = levels_of(d.values[p]);
@@ -178,13 +189,13 @@ void draw_profiles(const SweepData& d, Figure& fig) {
     for (std::size_t k = 0; k < xs.size(); ++k)
       lo[k] = prof[k] - (std::isfinite(perr[k]) ? perr[k] : 0),
       hi[k] = prof[k] + (std::isfinite(perr[k]) ? perr[k] : 0);
-    auto [ya, yb] = range_of({lo, hi, {0.0, -2.5}}, 0.08);
+    auto [ya, yb] = range_of({lo, hi, {0.0, -2.6}}, 0.08);
     const auto [xa, xb] = range_of({xs}, 0.06);
     const double y1 = top - double(p) * (h + gap);
     fig.panel({0.17, 0.96, y1 - h, y1, xa, xb, ya, yb});
     fig.colour(series(Series::mute));
     fig.dashed({xa, xb}, {-0.5, -0.5});
-    fig.dashed({xa, xb}, {-1.92, -1.92});
+    fig.dashed({xa, xb}, {-2.0, -2.0});
     fig.colour(series(Series::simulated));
     fig.line_width(0.9);
     fig.line(xs, prof);
@@ -195,7 +206,7 @@ void draw_profiles(const SweepData& d, Figure& fig) {
   }
   fig.panel({0.17, 0.96, top - h, top, 0, 1, 0, 1});
   fig.legend_above({{series(Series::simulated), "profile (best over the others) ± noise", 'p'},
-                    {series(Series::mute), "Δ ln L = 0.5, 1.92 (68 %, 95 %)", 'd'}});
+                    {series(Series::mute), "Δ ln L = −0.5, −2 (68.3, 95.4 %)", 'd'}});
 }
 
 bool is_sweep(const std::string& dir) {
@@ -213,7 +224,7 @@ FigureKind sweep_map_figure() {
   k.name = "sweep-map";
   k.source = Source::sweep;
   k.summary = "ln L over two swept parameters (the first two, or --axes; the best over any "
-              "others), the 68 % and 95 % regions and the best point";
+              "others), the 68.3 % and 95.4 % regions and the best point";
   k.page = {88, 80, 300};
   k.available = [](const std::string& dir) {
     if (!is_sweep(dir)) return false;
@@ -263,7 +274,7 @@ FigureKind sweep_profiles_figure() {
   k.name = "sweep-profiles";
   k.source = Source::sweep;
   k.summary = "for each swept parameter, the best ln L at each value with its realisation "
-              "noise, and the 68 % and 95 % lines";
+              "noise, and the 68.3 % and 95.4 % lines";
   k.page = {88, 110, 300};
   k.available = [](const std::string& dir) {
     if (!is_sweep(dir)) return false;

@@ -80,7 +80,7 @@ PY
 
 # The figures the runs and fits drew, and redrawn in every format.
 [ -s "$work/demo/spiral/figures/fig-face-on.png" ] || fail "the run drew no face-on map"
-[ -s "$work/demo/kestrel-fit/figures/fig-corner.pdf" ] || fail "the fit drew no corner plot"
+[ -s "$work/demo/kestrel-fit/figures/fig-posterior.pdf" ] || fail "the fit drew no posterior figure"
 bash "$src/tests/cli/figure_checks.sh" "$undertow" "$png_probe" "$work/demo" "$work/figures" ||
   fail "figure checks"
 

@@ -16,7 +16,7 @@ fail() { echo "FAILED (figures): $*" >&2; exit 1; }
 declare -A expected=(
   [spiral]="face-on rotation residuals pulls lag-age lag-phase"
   [axisymmetric]="face-on rotation residuals pulls"
-  [kinematic-fit]="corner traces fit-rotation"
+  [kinematic-fit]="posterior traces fit-rotation"
 )
 for run in "${!expected[@]}"; do
   "$U" draw "$DEMO/$run" --format png,svg,pdf --dpi 150 -o "$W/$run" > "$W/$run.log" ||
@@ -71,7 +71,7 @@ fi
 grep -q "comparison.h5: no dataset /local/name (figure 'pulls' needs it)" "$W/broken.err" ||
   { cat "$W/broken.err"; fail "the message does not name the file and the dataset"; }
 [ ! -e "$W/broken/figs" ] || fail "a refused figure left its folder"
-if "$U" draw "$DEMO/spiral" --figure corner -o "$W/wrong" 2> "$W/wrong.err"; then
+if "$U" draw "$DEMO/spiral" --figure posterior -o "$W/wrong" 2> "$W/wrong.err"; then
   fail "a fit's figure was drawn from a run's folder"
 fi
 grep -q "drawn from a fit folder" "$W/wrong.err" || { cat "$W/wrong.err"; fail "wrong-folder message"; }

@@ -59,7 +59,7 @@ TEST_CASE("The depth map's lightness rises linearly, inside the sRGB gamut, in n
   Lab prev{};
   for (int i = 0; i <= 256; ++i) {
     const double t = i / 256.0;
-    const Lab lab = srgb_to_lab(depth(t));
+    const Lab lab = srgb_to_lab(sequential(t));
     // Out of gamut the map would be clipped, and the lightness would leave its line.
     CHECK(lab.L == Approx(18 + 76 * t).margin(0.05));
     CHECK(lab.L > prev_L);

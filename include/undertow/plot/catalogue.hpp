@@ -56,7 +56,7 @@ FigureKind lag_by_phase_figure();
 FigureKind face_on_figure();
 FigureKind rotation_curve_figure();
 FigureKind fit_rotation_figure();
-FigureKind corner_figure();
+FigureKind posterior_figure();
 FigureKind traces_figure();
 FigureKind sweep_map_figure();
 FigureKind sweep_profiles_figure();

@@ -1,7 +1,7 @@
 #pragma once
 // Colours of undertow's figures, defined here and nowhere else.
 //
-// - `depth(t)`, t in [0, 1]: the sequential map for images (densities, likelihood maps). It is
+// - `sequential(t)`, t in [0, 1]: the sequential map for images (densities, likelihood maps). It is
 //   built in CIE 1976 L*a*b* (CIE 15:2004) with a lightness L* rising linearly from 18 to 94,
 //   following Kovesi (2015, "Good colour maps: how to design them", arXiv:1509.03700): equal
 //   steps in t are near-equal perceived steps, and because lightness alone orders the map it reads
@@ -28,7 +28,7 @@ struct Lab {
 Rgb lab_to_srgb(const Lab& c);
 Lab srgb_to_lab(const Rgb& c);
 
-Rgb depth(double t); // t clamped to [0, 1]
+Rgb sequential(double t); // t clamped to [0, 1]
 
 // The series colours by role, so every figure uses them alike.
 enum class Series { ink, measured, simulated, model, accent, fit, band, mute };

@@ -1,8 +1,8 @@
 #pragma once
-// Histograms with Poisson errors and a Gaussian kernel density estimate, for the residual
-// distributions. The bandwidth is Silverman's rule of thumb h = (4/3)^(1/5) sigma n^(-1/5), which
-// Silverman (1986, "Density Estimation", eq. 3.28) rounds to 1.06 sigma n^(-1/5); in one
-// dimension it is scipy's gaussian_kde with bw_method="silverman".
+// Histograms with Poisson errors and a Gaussian kernel density estimate (Silverman 1986, "Density
+// Estimation for Statistics and Data Analysis", ch. 3), for the residual distributions. The
+// bandwidth is Silverman's rule of thumb h = (4/3)^(1/5) sigma n^(-1/5) (his eq. 3.28, rounded
+// there to 1.06 sigma n^(-1/5)); the tests compare both with scipy's implementation.
 #include <vector>
 
 namespace undertow::plot {

@@ -91,7 +91,7 @@ public:
   // A line of text inside the panel's top left (or right) corner; row 0 is the top line.
   void note(int row, const std::string& s, double scale = 1.0, bool right = false);
 
-  // A colour image of z[iy * nx + ix] over the world box, the depth() map from lo to hi.
+  // A colour image of z[iy * nx + ix] over the world box, the sequential() map from lo to hi.
   void image(const std::vector<double>& z, int nx, int ny, double lo, double hi);
   // Contours of z (same layout) over the world box at the given levels.
   void contours(const std::vector<double>& z, int nx, int ny, const std::vector<double>& levels);
@@ -99,7 +99,7 @@ public:
   void contours(const std::vector<double>& z, const std::vector<double>& xg,
                 const std::vector<double>& yg, const std::vector<double>& levels);
   // Filled rectangles [x_edges[i], x_edges[i+1]] x [y_edges[j], y_edges[j+1]] coloured by
-  // z[j * nx + i] on the depth() map from lo to hi (NaN: left empty).
+  // z[j * nx + i] on the sequential() map from lo to hi (NaN: left empty).
   void cells(const std::vector<double>& z, const std::vector<double>& x_edges,
              const std::vector<double>& y_edges, double lo, double hi);
   // A colour bar to the right of the current panel.

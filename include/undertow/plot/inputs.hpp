@@ -16,6 +16,8 @@ public:
   std::vector<double> doubles(const std::string& dataset, std::size_t cols = 1,
                               std::size_t* rows = nullptr) const;
   std::vector<std::string> strings(const std::string& dataset) const;
+  // The same, required to have `rows` rows (as another dataset it is read beside).
+  std::vector<double> doubles_n(const std::string& dataset, std::size_t rows) const;
   std::string attribute(const std::string& object, const std::string& name) const;
   const std::string& path() const { return file_.path(); }
   const io::h5::File& file() const { return file_; }

@@ -19,7 +19,7 @@ struct Corner {
 };
 
 // The density level above which a share `mass` of the total lies (the highest-density region
-// of a binned distribution; common practice for corner plots).
+// of a binned distribution; common practice for plots of posterior samples).
 double level_for(std::vector<double> z, double mass) {
   std::sort(z.begin(), z.end(), std::greater<>());
   double total = 0;
@@ -38,8 +38,10 @@ std::vector<double> density2d(const std::vector<double>& x, const std::vector<do
                               double x1, double y0, double y1, int n) {
   std::vector<double> h(std::size_t(n * n), 0.0), s(h.size(), 0.0);
   for (std::size_t i = 0; i < x.size(); ++i) {
-    const int ix = int((x[i] - x0) / (x1 - x0) * n), iy = int((y[i] - y0) / (y1 - y0) * n);
-    if (ix >= 0 && ix < n && iy >= 0 && iy < n) h[std::size_t(iy * n + ix)] += 1;
+    const double fx = std::floor((x[i] - x0) / (x1 - x0) * n);
+    const double fy = std::floor((y[i] - y0) / (y1 - y0) * n);
+    if (!(fx >= 0 && fx < n && fy >= 0 && fy < n)) continue; // NaN fails too
+    h[std::size_t(fy) * std::size_t(n) + std::size_t(fx)] += 1;
   }
   const double w[3] = {1, 2, 1};
   for (int iy = 0; iy < n; ++iy)
@@ -84,8 +86,8 @@ void draw(const Corner& c, Figure& fig) {
         const int bins = 40;
         std::vector<double> h(bins, 0.0);
         for (double v : c.samples[col]) {
-          const int i = int((v - xa) / (xb - xa) * bins);
-          if (i >= 0 && i < bins) h[std::size_t(i)] += 1;
+          const double f = std::floor((v - xa) / (xb - xa) * bins);
+          if (f >= 0 && f < bins) h[std::size_t(f)] += 1;
         }
         const double hmax = *std::max_element(h.begin(), h.end());
         fig.panel(
@@ -131,21 +133,27 @@ void draw(const Corner& c, Figure& fig) {
       fig.axes(xl, left_col ? parameter_label(c.names[row]) : "", bottom_row, left_col, false,
                false, tick[col], tick[row]);
     }
+  // The key, in the empty upper right.
+  fig.panel({0.5, 0.97, 0.8, 0.96, 0, 1, 0, 1});
+  fig.note(0, std::to_string(c.samples[0].size()) + " samples of the kept chain (after burn-in)",
+           0.9);
+  fig.note(1, "pairs: thinned samples, contours holding 68 % (thick) and 95 % (thin)", 0.9);
+  fig.note(2, "diagonal: the marginal, its median (solid) and 16 and 84 % (dashed)", 0.9);
   fig.text_scale(1.0);
 }
 
 } // namespace
 
-FigureKind corner_figure() {
+FigureKind posterior_figure() {
   FigureKind k;
-  k.name = "corner";
+  k.name = "posterior";
   k.source = Source::fit;
   k.summary = "the fit's posterior: each parameter's marginal (median, 16 and 84 %) and each "
               "pair's joint distribution with its 68 % and 95 % regions";
   k.page = {180, 180, 200};
   k.available = [](const std::string& dir) { return std::filesystem::exists(dir + "/fit.h5"); };
   k.load = [](const std::string& dir, const DrawOptions&) {
-    const Chain ch = read_chain(H5Input(dir + "/fit.h5", "corner"));
+    const Chain ch = read_chain(H5Input(dir + "/fit.h5", "posterior"));
     Corner c;
     c.names = ch.names;
     c.samples.resize(ch.names.size());
