@@ -19,11 +19,7 @@ void add_figure_options(CLI::App& cmd, FigureArgs& a) {
 
 void draw_after(const FigureArgs& a, const std::string& where) {
   if (a.none) return;
-  // A folder's figures go into FOLDER/figures; a gathered sweep's (a *-results.h5 file) into
-  // figures/ beside it.
-  const std::filesystem::path p(where);
-  const std::string out =
-      ((std::filesystem::is_directory(p) ? p : p.parent_path()) / "figures").string();
+  const std::string out = plot::figures_folder(where);
   try {
     plot::DrawOptions o;
     o.formats = plot::formats_from_list(a.formats);
@@ -78,12 +74,7 @@ std::optional<int> run_draw_command(const DrawArgs& a) {
   o.formats = plot::formats_from_list(a.formats);
   o.width_mm = a.width_mm, o.height_mm = a.height_mm, o.dpi = a.dpi;
   o.sweep_axes = a.axes;
-  // FOLDER/figures, or figures/ beside a sweep's *-results.h5
-  const std::filesystem::path p(a.dir);
-  const std::string out =
-      !a.output.empty()
-          ? a.output
-          : ((std::filesystem::is_directory(p) ? p : p.parent_path()) / "figures").string();
+  const std::string out = a.output.empty() ? plot::figures_folder(a.dir) : a.output;
   for (const auto& f : plot::draw_figures(src, a.dir, out, a.figures, o))
     std::cout << "wrote " << f << "\n";
   return 0;

@@ -44,6 +44,11 @@ const FigureKind& figure_kind(const std::string& name) {
   throw InputError("no figure '" + name + "' (figures: " + names + ")");
 }
 
+std::string figures_folder(const std::string& where) {
+  const std::filesystem::path p(where);
+  return ((std::filesystem::is_directory(p) ? p : p.parent_path()) / "figures").string();
+}
+
 Source detect_source(const std::string& dir) {
   namespace fs = std::filesystem;
   if (fs::is_regular_file(dir) && dir.ends_with("-results.h5")) return Source::sweep;
@@ -61,33 +66,33 @@ std::vector<std::string> draw_figures(Source source, const std::string& dir,
                                       const std::string& out_dir,
                                       const std::vector<std::string>& names,
                                       const DrawOptions& options) {
-  std::vector<const FigureKind*> todo;
+  std::vector<const FigureKind*> chosen;
   if (names.empty()) {
     for (const auto& k : catalogue())
-      if (k.source == source && k.available(dir)) todo.push_back(&k);
+      if (k.source == source && k.available(dir)) chosen.push_back(&k);
   } else {
     for (const auto& n : names) {
       const FigureKind& k = figure_kind(n);
       if (k.source != source)
         throw InputError("figure '" + n + "' is drawn from a " + source_name(k.source) +
                          " folder, and " + dir + " is a " + source_name(source) + " folder");
-      todo.push_back(&k);
+      chosen.push_back(&k);
     }
   }
   require_drawing(options.formats);
   // Every figure's inputs are read before any file is written.
   std::vector<std::function<void(Figure&)>> drawings;
-  for (const FigureKind* k : todo)
+  for (const FigureKind* k : chosen)
     drawings.push_back(k->load(dir, options));
   std::filesystem::create_directories(out_dir);
   std::vector<std::string> written;
-  for (std::size_t i = 0; i < todo.size(); ++i) {
-    Page page = todo[i]->page;
+  for (std::size_t i = 0; i < chosen.size(); ++i) {
+    Page page = chosen[i]->page;
     if (options.width_mm > 0) page.width_mm = options.width_mm;
     if (options.height_mm > 0) page.height_mm = options.height_mm;
     page.dpi = options.dpi;
     for (Format f : options.formats) {
-      const std::string path = out_dir + "/fig-" + todo[i]->name + "." + extension(f);
+      const std::string path = out_dir + "/fig-" + chosen[i]->name + "." + extension(f);
       Figure fig(path, f, page);
       drawings[i](fig);
       fig.commit();

@@ -342,8 +342,8 @@ namespace {
 double label_width_mm(const std::string& s, double char_mm) {
   double n = 0;
   for (std::size_t i = 0; i < s.size(); ++i) {
-    if (s[i] == '#' && i + 1 < s.size()) {
-      i += s[i + 1] == 'g' ? 1 : 1;
+    if (s[i] == '#' && i + 1 < s.size()) { // "#u", "#d", and the "#g" of "#gX"
+      ++i;
       continue;
     }
     if ((static_cast<unsigned char>(s[i]) & 0xC0) == 0x80) continue; // UTF-8 continuation

@@ -49,8 +49,9 @@ void draw(const std::vector<Component>& comps, Figure& fig) {
     std::vector<double> grid(241);
     for (std::size_t i = 0; i < grid.size(); ++i)
       grid[i] = lo + (hi - lo) * double(i) / double(grid.size() - 1);
-    auto km = kernel_density(c.meas, grid, silverman_bandwidth(c.meas));
-    auto ks = kernel_density(c.sim, grid, silverman_bandwidth(c.sim));
+    const double bm = silverman_bandwidth(c.meas), bs = silverman_bandwidth(c.sim);
+    auto km = kernel_density(c.meas, grid, bm);
+    auto ks = kernel_density(c.sim, grid, bs);
     for (auto* v : {&km, &ks})
       for (double& y : *v)
         y *= to_counts;
@@ -72,11 +73,11 @@ void draw(const std::vector<Component>& comps, Figure& fig) {
     }
     // A kernel estimate needs two distinct values (a zero bandwidth draws nothing).
     fig.line_width(1.0);
-    if (silverman_bandwidth(c.sim) > 0) {
+    if (bs > 0) {
       fig.colour(series(Series::simulated));
       fig.line(grid, ks);
     }
-    if (silverman_bandwidth(c.meas) > 0) {
+    if (bm > 0) {
       fig.colour(series(Series::measured));
       fig.dashed(grid, km);
     }

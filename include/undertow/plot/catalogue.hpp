@@ -45,6 +45,10 @@ std::vector<std::string> draw_figures(Source source, const std::string& dir,
                                       const std::vector<std::string>& names,
                                       const DrawOptions& options);
 
+// Where a folder's figures go by default: FOLDER/figures, or figures/ beside a sweep's
+// *-results.h5 file.
+std::string figures_folder(const std::string& where);
+
 // What kind of output folder `dir` is, from the files in it; InputError when none.
 Source detect_source(const std::string& dir);
 
