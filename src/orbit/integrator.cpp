@@ -86,9 +86,10 @@ using McLachlan = ode::symplectic_rkn_sb3a_mclachlan<Vec, Vec, double, Vec, Vec,
 // arithmetic of odeint's velocity_verlet::do_step_v1 (the same expressions in the same order,
 // so the bits match the copying path below), without copying positions, velocities and
 // accelerations into and out of a batch state, which cost as much as the kicks and drifts.
+// Each step spans `stride` of the segment's steps of length dt: steps k0, k0 + stride, ...
 void advance_batch_carried(const Model& m, PhaseSpace& p, std::size_t first, std::size_t n,
                            double t0, double dt, std::size_t k0, std::size_t steps,
-                           CarriedAccelerations& c) {
+                           std::size_t stride, CarriedAccelerations& c) {
   double *x = p.x.data() + first, *y = p.y.data() + first, *z = p.z.data() + first;
   double *vx = p.vx.data() + first, *vy = p.vy.data() + first, *vz = p.vz.data() + first;
   double *ax = c.ax.data() + first, *ay = c.ay.data() + first, *az = c.az.data() + first;
@@ -106,13 +107,14 @@ void advance_batch_carried(const Model& m, PhaseSpace& p, std::size_t first, std
     for (std::size_t i = 0; i < n; ++i)
       if (std::isnan(ax[i])) ax[i] = bx[i], ay[i] = by[i], az[i] = bz[i];
   }
-  const double h = 0.5 * dt * dt, hdt = 0.5 * dt;
+  const double D = double(stride) * dt; // exactly dt for stride 1: the bits of advance()
+  const double h = 0.5 * D * D, hdt = 0.5 * D;
   // One component at a time, element by element: the loops vectorise.
-  const auto drift = [n, dt, h](double* __restrict q, const double* __restrict v,
-                                const double* __restrict a) {
+  const auto drift = [n, D, h](double* __restrict q, const double* __restrict v,
+                               const double* __restrict a) {
 #pragma omp simd
     for (std::size_t i = 0; i < n; ++i)
-      q[i] = 1.0 * q[i] + dt * v[i] + h * a[i];
+      q[i] = 1.0 * q[i] + D * v[i] + h * a[i];
   };
   const auto kick = [n, hdt](double* __restrict v, double* __restrict a0,
                              const double* __restrict a1) {
@@ -122,9 +124,10 @@ void advance_batch_carried(const Model& m, PhaseSpace& p, std::size_t first, std
       a0[i] = a1[i];
     }
   };
-  for (std::size_t k = k0; k < k0 + steps; ++k) {
+  for (std::size_t j = 0; j < steps; ++j) {
+    const std::size_t k = k0 + j * stride;
     drift(x, vx, ax), drift(y, vy, ay), drift(z, vz, az);
-    force(t0 + double(k) * dt + dt);
+    force(t0 + double(k) * dt + D);
     kick(vx, ax, bx), kick(vy, ay, by), kick(vz, az, bz);
   }
 }
@@ -281,20 +284,13 @@ void CarriedAccelerations::forget(std::size_t n) {
     a->assign(n, NAN);
 }
 
-bool advance_steps(const Model& m, PhaseSpace& p, double t0_myr, double t1_myr, std::size_t first,
-                   std::size_t count, const IntegrationSettings& s, const std::atomic<bool>* stop,
-                   CarriedAccelerations* carried) {
-  if (!is_symplectic(s.method))
-    throw InputError("advance_steps needs a fixed-step method, not " + method_name(s.method));
-  const std::size_t N = p.size();
-  if (N == 0 || t0_myr == t1_myr || count == 0) return true;
-  if (s.batch == 0) throw InputError("batch size must be positive");
-  const std::size_t steps = steps_for(t0_myr, t1_myr, s.step_myr);
-  if (first + count > steps) throw InputError("advance_steps: steps beyond the segment");
-  const double dt = (t1_myr - t0_myr) / double(steps) / kMyr, t0 = t0_myr / kMyr;
-  const long nb = long((N + s.batch - 1) / s.batch);
-  if (s.method != Method::leapfrog) carried = nullptr;
-  if (carried && carried->ax.size() != N) carried->forget(N);
+namespace {
+// The tracers [begin, end) in batches of s.batch, over OpenMP threads; false when stopped.
+template <class Batch>
+bool over_batches(std::size_t begin, std::size_t end, std::size_t batch,
+                  const std::atomic<bool>* stop, const Batch& advance_batch) {
+  if (batch == 0) throw InputError("batch size must be positive");
+  const long nb = long((end - begin + batch - 1) / batch);
   bool stopped = false;
 #pragma omp parallel for schedule(dynamic, 1) reduction(|| : stopped)
   for (long b = 0; b < nb; ++b) {
@@ -302,13 +298,47 @@ bool advance_steps(const Model& m, PhaseSpace& p, double t0_myr, double t1_myr, 
       stopped = true;
       continue;
     }
-    const std::size_t i0 = std::size_t(b) * s.batch, n = std::min(s.batch, N - i0);
-    if (carried)
-      advance_batch_carried(m, p, i0, n, t0, dt, first, count, *carried);
-    else
-      advance_batch_symplectic(m, p, i0, n, t0, dt, first, count, s.method);
+    const std::size_t i0 = begin + std::size_t(b) * batch;
+    advance_batch(i0, std::min(batch, end - i0));
   }
   return !stopped;
+}
+} // namespace
+
+bool advance_steps(const Model& m, PhaseSpace& p, double t0_myr, double t1_myr, std::size_t first,
+                   std::size_t count, const IntegrationSettings& s, const std::atomic<bool>* stop,
+                   CarriedAccelerations* carried) {
+  if (s.method == Method::leapfrog && carried)
+    return advance_steps_strided(m, p, t0_myr, t1_myr, first, count, 1, 0, p.size(), s, *carried,
+                                 stop);
+  if (!is_symplectic(s.method))
+    throw InputError("advance_steps needs a fixed-step method, not " + method_name(s.method));
+  const std::size_t N = p.size();
+  if (N == 0 || t0_myr == t1_myr || count == 0) return true;
+  const std::size_t steps = steps_for(t0_myr, t1_myr, s.step_myr);
+  if (first + count > steps) throw InputError("advance_steps: steps beyond the segment");
+  const double dt = (t1_myr - t0_myr) / double(steps) / kMyr, t0 = t0_myr / kMyr;
+  return over_batches(0, N, s.batch, stop, [&](std::size_t i0, std::size_t n) {
+    advance_batch_symplectic(m, p, i0, n, t0, dt, first, count, s.method);
+  });
+}
+
+bool advance_steps_strided(const Model& m, PhaseSpace& p, double t0_myr, double t1_myr,
+                           std::size_t first, std::size_t count, std::size_t stride,
+                           std::size_t begin, std::size_t end, const IntegrationSettings& s,
+                           CarriedAccelerations& carried, const std::atomic<bool>* stop) {
+  if (s.method != Method::leapfrog)
+    throw InputError("carried accelerations need the leapfrog, not " + method_name(s.method));
+  if (begin > end || end > p.size()) throw InputError("advance_steps: tracers beyond the state");
+  if (stride == 0) throw InputError("advance_steps: a step must span at least one step");
+  if (begin == end || t0_myr == t1_myr || count == 0) return true;
+  const std::size_t steps = steps_for(t0_myr, t1_myr, s.step_myr);
+  if (first + count * stride > steps) throw InputError("advance_steps: steps beyond the segment");
+  const double dt = (t1_myr - t0_myr) / double(steps) / kMyr, t0 = t0_myr / kMyr;
+  if (carried.ax.size() != p.size()) carried.forget(p.size());
+  return over_batches(begin, end, s.batch, stop, [&](std::size_t i0, std::size_t n) {
+    advance_batch_carried(m, p, i0, n, t0, dt, first, count, stride, carried);
+  });
 }
 
 } // namespace undertow::orbit

@@ -8,6 +8,7 @@
 
 #include "undertow/error.hpp"
 #include "undertow/gas/cloud_gas.hpp"
+#include "undertow/gas/gas_orbits.hpp"
 #include "undertow/io/text_file.hpp"
 #include "undertow/orbit/conserved.hpp"
 #include "undertow/orbit/frame.hpp"
@@ -134,13 +135,12 @@ bool advance_segment(const scenario::Scenario& s, const gas::CircularFlow& flow,
   // interrupted run resumes: the resumed run repeats the same arithmetic.
   g.acc.forget(g.p.size());
   for (std::size_t j = 0; j < n; ++j) {
-    const double t0 = ta + (tb - ta) * double(j) / double(n);
-    const double t1 = j + 1 == n ? tb : ta + (tb - ta) * double(j + 1) / double(n);
-    const auto step = gas::gas_step(g, *s.gas, flow, t0, t1 - t0, s.seed);
+    gas::StepReport step;
+    const bool done = gas::advance_gas_step(s.model, g, *s.gas, flow, s.integration, ta, tb, j, n,
+                                            s.seed, step, stop);
     res.collisions += step.collisions;
     res.stars_formed += step.stars_formed;
-    if (!orbit::advance_steps(s.model, g.p, ta, tb, j, 1, s.integration, stop, &g.acc))
-      return false;
+    if (!done) return false;
     report((j + 1) * g.p.size() / n);
   }
   // gas_step retires old stars in bulk; the snapshot holds those of the last step's start

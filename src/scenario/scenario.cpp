@@ -104,8 +104,8 @@ void read_integration(Scenario& s, const TableReader& r) {
 }
 
 void read_gas(Scenario& s, const TableReader& r) {
-  r.check_keys({"cloud_radius_kpc", "normal_restitution", "tangential_restitution",
-                "stirring_kms", "extent_kpc", "stars"});
+  r.check_keys({"cloud_radius_kpc", "normal_restitution", "tangential_restitution", "stirring_kms",
+                "extent_kpc", "stars"});
   gas::GasSettings g;
   auto& c = g.collisions;
   c.radius_kpc = r.number_or("cloud_radius_kpc", c.radius_kpc);
@@ -125,12 +125,21 @@ void read_gas(Scenario& s, const TableReader& r) {
   });
   if (const toml::table* t = r.table("stars")) {
     const TableReader q(*t, s.path, "gas.stars");
-    q.check_keys({"threshold_kms", "efficiency", "dispersion_kms", "max_age_myr"});
+    q.check_keys({"threshold_kms", "efficiency", "dispersion_kms", "max_age_myr", "step_ratio"});
     gas::StarFormation f;
     f.threshold_kms = q.number_or("threshold_kms", f.threshold_kms);
     f.efficiency = q.number_or("efficiency", f.efficiency);
     f.dispersion_kms = q.number_or("dispersion_kms", f.dispersion_kms);
     f.max_age_myr = q.number_or("max_age_myr", f.max_age_myr);
+    if (q.has("step_ratio")) {
+      f.step_ratio = q.integer("step_ratio");
+      if (f.step_ratio != 1 && s.integration.method != orbit::Method::leapfrog)
+        q.fail("step_ratio", "longer steps for the stars need the leapfrog; with " +
+                                 orbit::method_name(s.integration.method) +
+                                 " the stars step with the gas (step_ratio = 1)");
+    } else if (s.integration.method != orbit::Method::leapfrog) {
+      f.step_ratio = 1;
+    }
     at_keys(q, [&] {
       f.validate();
       return 0;

@@ -10,6 +10,7 @@
 #include <omp.h>
 
 #include "undertow/gas/cloud_gas.hpp"
+#include "undertow/gas/gas_orbits.hpp"
 #include "undertow/orbit/integrator.hpp"
 #include "undertow/potential/model_file.hpp"
 #include "undertow/tracers/disk_population.hpp"
@@ -25,6 +26,8 @@ struct Setup {
   gas::GasState state;
   orbit::IntegrationSettings orbit;
 };
+
+void step(Setup& s, std::size_t k);
 
 // The demo's gas, with n clouds; warmed up for 20 Myr so that stars exist and clouds are mixed.
 Setup setup(std::size_t n) {
@@ -45,12 +48,15 @@ Setup setup(std::size_t n) {
   s.state = gas::GasState::of_clouds(tracers::sample(s.model, d, 5, 0, n), 0);
   s.orbit.method = orbit::Method::leapfrog;
   s.orbit.step_myr = 0.5;
-  for (int k = 0; k < 40; ++k) {
-    gas::gas_step(s.state, s.gas, s.flow, 0.5 * k, 0.5, 5);
-    orbit::advance_steps(s.model, s.state.p, 0.5 * k, 0.5 * (k + 1), 0, 1, s.orbit, nullptr,
-                         &s.state.acc);
-  }
+  for (std::size_t k = 0; k < 40; ++k)
+    step(s, k);
   return s;
+}
+
+// Step k of 2 000 000 from t = 0 at 0.5 Myr, the way a run steps (gas_orbits.hpp).
+void step(Setup& s, std::size_t k) {
+  gas::StepReport r;
+  gas::advance_gas_step(s.model, s.state, s.gas, s.flow, s.orbit, 0, 1e6, k, 2000000, 5, r);
 }
 
 void BM_collision_search(benchmark::State& st) {
@@ -71,25 +77,21 @@ void BM_collision_search(benchmark::State& st) {
 
 void BM_gas_step(benchmark::State& st) {
   auto s = setup(std::size_t(st.range(0)));
-  double t = 20;
-  for (auto _ : st) {
-    gas::gas_step(s.state, s.gas, s.flow, t, 0.5, 5);
-    orbit::advance_steps(s.model, s.state.p, t, t + 0.5, 0, 1, s.orbit, nullptr, &s.state.acc);
-    t += 0.5;
-  }
+  std::size_t k = 40;
+  for (auto _ : st)
+    step(s, k++);
   const double cloud_steps = double(st.iterations()) * double(s.state.clouds);
   st.counters["cloud_steps/s"] = benchmark::Counter(cloud_steps, benchmark::Counter::kIsRate);
   st.counters["stars"] = double(s.state.stars());
 }
 
+// Arguments: clouds, and the stars' steps per gas step (StarFormation::step_ratio).
 void BM_gas_full_1gyr(benchmark::State& st) {
   for (auto _ : st) {
     auto s = setup(std::size_t(st.range(0)));
-    for (int k = 40; k < 2000; ++k) {
-      gas::gas_step(s.state, s.gas, s.flow, 0.5 * k, 0.5, 5);
-      orbit::advance_steps(s.model, s.state.p, 0.5 * k, 0.5 * (k + 1), 0, 1, s.orbit, nullptr,
-                           &s.state.acc);
-    }
+    s.gas.stars->step_ratio = int(st.range(1));
+    for (std::size_t k = 40; k < 2000; ++k)
+      step(s, k);
     st.counters["stars_at_end"] = double(s.state.stars());
   }
 }
@@ -103,8 +105,10 @@ BENCHMARK(BM_collision_search)
     ->UseRealTime();
 BENCHMARK(BM_gas_step)->Arg(100000)->Arg(1000000)->Unit(benchmark::kMillisecond)->UseRealTime();
 BENCHMARK(BM_gas_full_1gyr)
-    ->Arg(100000)
-    ->Arg(1000000)
+    ->Args({100000, 1})
+    ->Args({100000, 2})
+    ->Args({1000000, 1})
+    ->Args({1000000, 2})
     ->Iterations(1)
     ->Unit(benchmark::kSecond)
     ->UseRealTime();

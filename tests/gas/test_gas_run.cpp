@@ -210,10 +210,21 @@ TEST_CASE("Gas runs: a negative cloud radius, a restitution outside 0-1, a negat
       {"[gas]\n[gas.stars]\nefficiency = 0\n", "efficiency"},
       {"[gas]\n[gas.stars]\nmax_age_myr = 0\n", "max_age_myr"},
       {"[gas]\ncell_kpc = 0.2\n", "cell_kpc"},
+      {"[gas]\n[gas.stars]\nstep_ratio = 0\n", "step_ratio"},
+      {"[gas]\n[gas.stars]\nstep_ratio = 1.5\n", "step_ratio"},
   };
   for (const auto& [text, key] : bad) {
     INFO(text);
     CHECK_THROWS_WITH(scenario::parse_scenario(smooth_disk(100, 5, 3, 10, text), "bad.toml"),
                       Catch::Contains(key));
   }
+  // longer star steps are the leapfrog's; another fixed-step method says so
+  auto other = smooth_disk(100, 5, 3, 10, "[gas]\n[gas.stars]\nstep_ratio = 2\n");
+  other.replace(other.find("\"leapfrog\""), 10, "\"mclachlan4\"");
+  CHECK_THROWS_WITH(scenario::parse_scenario(other, "bad.toml"),
+                    Catch::Contains("step_ratio") && Catch::Contains("leapfrog"));
+  other.replace(other.find("step_ratio = 2"), 14, "step_ratio = 1");
+  CHECK(scenario::parse_scenario(other, "ok.toml").gas->stars->step_ratio == 1);
+  other.replace(other.find("step_ratio = 1"), 14, "");
+  CHECK(scenario::parse_scenario(other, "ok.toml").gas->stars->step_ratio == 1);
 }

@@ -19,7 +19,10 @@ struct StarFormation {
   double efficiency = 1;     // probability that such a collision forms one
   double dispersion_kms = 1; // newborn velocity about the pair's centre of mass, per component
   double max_age_myr = 100;  // older stars leave the run (they are no longer young)
-  void validate() const;     // throws detail::ParameterError naming the key
+  // The stars are collisionless: with the leapfrog they take one step per `step_ratio` of the
+  // gas's steps (gas_orbits.hpp).
+  int step_ratio = 2;
+  void validate() const; // throws detail::ParameterError naming the key
 };
 
 struct Newborn {

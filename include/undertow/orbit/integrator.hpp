@@ -56,6 +56,15 @@ bool advance_steps(const potential::Model& m, PhaseSpace& p, double t0_myr, doub
                    const std::atomic<bool>* stop = nullptr,
                    CarriedAccelerations* carried = nullptr);
 
+// The leapfrog with carried accelerations for the tracers [begin, end) only, each of `count`
+// steps spanning `stride` of the segment's steps (steps first, first + stride, ...): collisionless
+// tracers that can take longer steps than the others (a run's stars beside its gas). With
+// stride 1 and all tracers, the bits of advance_steps.
+bool advance_steps_strided(const potential::Model& m, PhaseSpace& p, double t0_myr, double t1_myr,
+                           std::size_t first, std::size_t count, std::size_t stride,
+                           std::size_t begin, std::size_t end, const IntegrationSettings& s,
+                           CarriedAccelerations& carried, const std::atomic<bool>* stop = nullptr);
+
 // Number of fixed steps used for a segment, and their length.
 std::size_t steps_for(double t0_myr, double t1_myr, double step_myr);
 
