@@ -8,6 +8,7 @@ packages=(
   libboost-dev libeigen3-dev libhdf5-dev hdf5-tools libcli11-dev catch2
   libtomlplusplus-dev liberfa-dev libgsl-dev libbenchmark-dev libnlopt-cxx-dev libnanoflann-dev
   libplplot-dev plplot-driver-cairo libfontconfig-dev fonts-dejavu-core
+  libcfitsio-dev libyaml-cpp-dev
   libpng-dev poppler-utils
   python3-numpy python3-h5py python3-astropy python3-scipy python3-emcee
   slurm-wlm munge

@@ -21,6 +21,8 @@ void add_fit_command(CLI::App& app, FitArgs& a) {
              "sample the posterior");
   a.command->add_option("fitfile", a.fit_file, "Fit file (TOML, docs/fit.md)")->required();
   a.command->add_option("--catalog", a.catalog, "Catalog to fit instead of the fit file's");
+  a.command->add_option("--columns", a.columns,
+                        "Column map OURS=THEIRS,... instead of the fit file's catalog_columns");
   a.command->add_option("-o,--output", a.output, "Output folder (default: <fit file>-fit)");
   a.command->add_option("--threads", a.threads, "OpenMP threads")->check(CLI::Range(1, 4096));
   add_figure_options(*a.command, a.figures);
@@ -61,10 +63,15 @@ std::optional<int> run_fit_command(const FitArgs& a) {
   install_stop_handlers();
   FitFile f = load_fit_file(a.fit_file);
   if (!a.catalog.empty()) f.spec.catalog_path = a.catalog;
+  if (!a.columns.empty())
+    f.spec.catalog_columns = residuals::parse_column_map(a.columns, "--columns");
   const std::string folder =
       a.output.empty() ? std::filesystem::path(a.fit_file).stem().string() + "-fit" : a.output;
   check_output_folder(folder); // before minutes of work, not after
-  const auto cat = residuals::read_catalog(f.spec.catalog_path);
+  residuals::CatalogOptions read;
+  read.columns = f.spec.catalog_columns;
+  read.lsr = f.spec.model.lsr;
+  const auto cat = residuals::read_catalog(f.spec.catalog_path, read);
   const auto sel = select_sources(f, cat);
   for (const auto& e : sel.excluded)
     std::cout << "left out: " << e << "\n";

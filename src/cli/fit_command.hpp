@@ -10,7 +10,7 @@
 namespace undertow::cli {
 
 struct FitArgs {
-  std::string fit_file, output, catalog;
+  std::string fit_file, output, catalog, columns;
   int threads = 0;
   FigureArgs figures;
   CLI::App* command = nullptr;

@@ -71,12 +71,11 @@ int run_tabulate(const TabulateArgs& a) {
       std::string l;
       std::cout << "\n";
       while (std::getline(lines, l))
-        std::cout << (fmt == io::TableFormat::csv ? "# " : "") << l << "\n";
+        std::cout << (fmt == io::TableFormat::csv || fmt == io::TableFormat::ecsv ? "# " : "") << l
+                  << "\n";
     }
   } else {
-    io::AtomicFile f(a.output);
-    io::write_table(f.stream(), table, fmt);
-    f.commit();
+    io::write_table_file(a.output, table, fmt);
     std::cout << "wrote " << a.output << " (" << table.rows.size() << " radii)\n" << summary;
   }
   return 0;
@@ -126,7 +125,7 @@ int run_integrate(const IntegrateArgs& a) {
 }
 
 struct ResidualArgs {
-  std::string catalog, model, prefix;
+  std::string catalog, model, prefix, columns;
   std::optional<double> flat_theta0;
   double slope = 0;
   double r0 = 8.1, z_sun = 0.0;
@@ -232,7 +231,10 @@ int run_residuals(const ResidualArgs& a) {
   s.lsr = sky::lsr_form_from_name(lsr_name);
   s.draws = a.draws;
   s.seed = a.seed;
-  const auto cat = residuals::read_catalog(a.catalog);
+  residuals::CatalogOptions read;
+  read.columns = residuals::parse_column_map(a.columns, "--columns");
+  read.lsr = s.lsr;
+  const auto cat = residuals::read_catalog(a.catalog, read);
   const auto res = residuals::compute_residuals(cat, s);
   if (res.sources.empty())
     throw InputError(SourcePlace{a.catalog, 0, 0, {}},
@@ -381,9 +383,7 @@ int run_arm_flow(const ArmFlowArgs& a) {
     if (a.crossing_output.empty()) {
       io::write_table(std::cerr, ct, io::TableFormat::markdown);
     } else {
-      io::AtomicFile f(a.crossing_output);
-      io::write_table(f.stream(), ct, io::table_format_from_name(a.format));
-      f.commit();
+      io::write_table_file(a.crossing_output, ct, io::table_format_from_name(a.format));
       std::cerr << "wrote " << a.crossing_output << "\n";
     }
   }
@@ -392,9 +392,7 @@ int run_arm_flow(const ArmFlowArgs& a) {
   if (a.output.empty()) {
     io::write_table(std::cout, table, fmt);
   } else {
-    io::AtomicFile f(a.output);
-    io::write_table(f.stream(), table, fmt);
-    f.commit();
+    io::write_table_file(a.output, table, fmt);
     std::cout << "wrote " << a.output << " (" << table.rows.size() << " points across the arm)\n";
   }
   return 0;
@@ -414,8 +412,10 @@ int main(int argc, char** argv) {
   t->add_option("--from", tab.from, "First radius, kpc")->capture_default_str();
   t->add_option("--to", tab.to, "Last radius, kpc")->capture_default_str();
   t->add_option("--step", tab.step, "Radius step, kpc")->capture_default_str();
-  t->add_option("--format", tab.format, "Table format: csv, markdown or latex")
-      ->check(CLI::IsMember({"csv", "markdown", "md", "latex", "tex"}))
+  t->add_option("--format", tab.format,
+                "Table format: csv, ecsv, fits (needs -o), markdown or latex")
+      ->check(CLI::IsMember(std::vector<std::string>(std::begin(undertow::io::kTableFormatNames),
+                                                     std::end(undertow::io::kTableFormatNames))))
       ->capture_default_str();
   t->add_option("-o,--output", tab.output, "Write the table to this file (default: stdout)");
   t->add_option("--pattern-speed", tab.pattern_speed,
@@ -498,6 +498,8 @@ int main(int argc, char** argv) {
   rs->add_option("--min-parallax-snr", ra.min_snr,
                  "Leave out sources with parallax/error below this")
       ->capture_default_str();
+  rs->add_option("--columns", ra.columns,
+                 "Column map OURS=THEIRS,... (e.g. parallax_mas=plx); see docs/catalog-format.md");
   rs->add_option("--lsr", ra.lsr, "LSR definition: apex (exact, default) or components")
       ->check(CLI::IsMember({"apex", "components"}))
       ->capture_default_str();
@@ -560,8 +562,10 @@ int main(int argc, char** argv) {
   afc->add_option("--cells", af.cells, "Integration steps across one arm spacing")
       ->check(CLI::Range(64, 1 << 20))
       ->capture_default_str();
-  afc->add_option("--format", af.format, "Table format: csv, markdown or latex")
-      ->check(CLI::IsMember({"csv", "markdown", "md", "latex", "tex"}))
+  afc->add_option("--format", af.format,
+                  "Table format: csv, ecsv, fits (needs -o), markdown or latex")
+      ->check(CLI::IsMember(std::vector<std::string>(std::begin(undertow::io::kTableFormatNames),
+                                                     std::end(undertow::io::kTableFormatNames))))
       ->capture_default_str();
   afc->add_option("-o,--output", af.output, "Write the table to this file (default: stdout)");
   afc->add_option("--clouds", af.clouds,

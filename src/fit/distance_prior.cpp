@@ -5,7 +5,7 @@
 
 #include "undertow/detail/kernel.hpp"
 #include "undertow/error.hpp"
-#include "undertow/io/csv.hpp"
+#include "undertow/io/input_table.hpp"
 
 namespace undertow::fit {
 
@@ -77,7 +77,7 @@ std::string distance_prior_name(DistancePrior::Kind k) {
 }
 
 void read_density_table(const std::string& path, DistancePrior& p) {
-  const auto t = io::CsvTable::read_file(path);
+  const auto t = io::InputTable::read_file(path);
   const std::size_t cd = t.column("distance_kpc"), cr = t.column("density");
   p.table_distance_kpc.clear();
   p.table_ln_density.clear();

@@ -111,10 +111,12 @@ FitFile parse_fit_file(const std::string& text, const std::string& name) {
   s.file = name;
   const toml::table root = io::parse_toml_text(text, name);
   io::TableReader r(root, name, "");
-  const std::vector<std::string> top{"catalog",   "lsr",        "longitude_min_deg", "rotation",
-                                     "distances", "velocities", "sampler",           "parameters"};
+  const std::vector<std::string> top{"catalog",           "catalog_columns", "lsr",
+                                     "longitude_min_deg", "rotation",        "distances",
+                                     "velocities",        "sampler",         "parameters"};
   r.check_keys(top);
   s.catalog_path = io::path_beside(name, r.string("catalog"));
+  s.catalog_columns = r.string_map_or_empty("catalog_columns");
   KinematicModel& m = s.model;
   m.lsr = io::at_keys(r, [&] { return sky::lsr_form_from_name(r.string_or("lsr", "apex")); });
   if (r.has("radius_min_kpc"))

@@ -63,10 +63,10 @@ Selection select_sources(const FitFile& f, const residuals::Catalog& c) {
     }
     // the likelihood's own test: the parallax within 7 sigma of the prior's range
     if (!parallax_within_prior(s, prior, omin, omax)) {
-      sel.excluded.push_back(s.name + ": parallax " + detail::num(s.parallax_mas) + " ± " +
-                             detail::num(s.parallax_err_mas) + " mas is more than 7 sigma from the prior's range " +
-                             detail::num(prior.distance_min_kpc) + "-" +
-                             detail::num(prior.distance_max_kpc) + " kpc");
+      sel.excluded.push_back(
+          s.name + ": parallax " + detail::num(s.parallax_mas) + " ± " +
+          detail::num(s.parallax_err_mas) + " mas is more than 7 sigma from the prior's range " +
+          detail::num(prior.distance_min_kpc) + "-" + detail::num(prior.distance_max_kpc) + " kpc");
       continue;
     }
     sel.used.sources.push_back(s);
@@ -196,7 +196,7 @@ io::Table parameter_table(const FitFile& f, const FitResult& r, const std::strin
                {"plus", "+\\sigma", "+", "", 6},
                {"map", "\\mathrm{MAP}", "MAP", "", 10},
                {"free", "\\mathrm{free}", "free", "", 1},
-               {"tau_steps", "\\tau", "τ", "steps", 4},
+               {"tau_steps", "\\tau\\,(\\mathrm{steps})", "τ (steps)", "", 4},
                {"r_hat", "\\hat R", "R̂", "", 5}};
   for (const auto& q : f.spec.params) {
     const auto it = std::find(r.free.begin(), r.free.end(), q.param);

@@ -1,120 +1,70 @@
-#include "undertow/io/csv.hpp"
+#include "undertow/io/input_table.hpp"
 
-#include "undertow/io/text_file.hpp"
-
-#include <cerrno>
-#include <cmath>
-#include <cstdlib>
 #include <sstream>
 
 namespace undertow::io {
-namespace {
 
+namespace {
 std::string trim(const std::string& s) {
   const auto b = s.find_first_not_of(" \t\r");
   if (b == std::string::npos) return "";
   const auto e = s.find_last_not_of(" \t\r");
   return s.substr(b, e - b + 1);
 }
+} // namespace
 
-std::vector<std::string> split(const std::string& line) {
+// Inside quotes the delimiter is text and "" is one quote (RFC 4180). With ' ' as delimiter
+// (ECSV's default) runs of spaces separate one pair of fields.
+std::vector<std::string> split_fields(const std::string& line, char delimiter) {
   std::vector<std::string> out;
   std::string cur;
   bool quoted = false;
-  for (char c : line) {
-    if (c == '"')
+  for (std::size_t i = 0; i < line.size(); ++i) {
+    const char c = line[i];
+    if (c == '"' && quoted && i + 1 < line.size() && line[i + 1] == '"')
+      cur += line[++i];
+    else if (c == '"')
       quoted = !quoted;
-    else if (c == ',' && !quoted) {
-      out.push_back(trim(cur));
+    else if (c == delimiter && !quoted) {
+      out.push_back(delimiter == ' ' ? cur : trim(cur));
       cur.clear();
+      if (delimiter == ' ')
+        while (i + 1 < line.size() && line[i + 1] == ' ')
+          ++i;
     } else
       cur += c;
   }
-  out.push_back(trim(cur));
+  out.push_back(delimiter == ' ' ? cur : trim(cur));
   return out;
 }
 
-} // namespace
-
-CsvTable CsvTable::read_file(const std::string& path) {
-  return parse(read_text_file(path), path);
-}
-
-CsvTable CsvTable::parse(const std::string& text, const std::string& source) {
-  CsvTable t;
-  t.file_ = source;
-  std::istringstream in(text);
-  std::string line;
-  int n = 0;
-  while (std::getline(in, line)) {
-    ++n;
-    const std::string s = trim(line);
+void read_delimited(InputTable& t, std::istream& in, int line, char delimiter,
+                    const std::function<void(std::vector<std::string>, int)>& on_header) {
+  std::string text;
+  bool header = false;
+  while (std::getline(in, text)) {
+    ++line;
+    const std::string s = trim(text);
     if (s.empty() || s[0] == '#') continue;
-    auto cells = split(s);
-    if (t.header_.empty()) {
-      t.header_ = cells;
-      t.header_line_ = n;
-      for (std::size_t i = 0; i < cells.size(); ++i) {
-        if (cells[i].empty())
-          throw InputError(SourcePlace{source, n, 0, {}}, "empty column name in the header");
-        for (std::size_t j = 0; j < i; ++j)
-          if (cells[j] == cells[i])
-            throw InputError(SourcePlace{source, n, 0, cells[i]},
-                             "column named twice in the header");
-      }
-      continue;
+    auto cells = split_fields(s, delimiter);
+    if (!header) {
+      on_header(std::move(cells), line);
+      header = true;
+    } else {
+      t.add_row(std::move(cells), line);
     }
-    if (cells.size() != t.header_.size())
-      throw InputError(SourcePlace{source, n, 0, {}}, "row has " + std::to_string(cells.size()) +
-                                                          " fields, the header has " +
-                                                          std::to_string(t.header_.size()));
-    t.cells_.push_back(std::move(cells));
-    t.lines_.push_back(n);
   }
-  if (t.header_.empty())
-    throw InputError(SourcePlace{source, 0, 0, {}}, "empty file: no header row");
-  if (t.cells_.empty())
-    throw InputError(SourcePlace{source, t.header_line_, 0, {}}, "no data rows");
+  t.finish();
+}
+
+InputTable parse_csv(const std::string& text, const std::string& source) {
+  InputTable t(source, TableFileKind::csv);
+  std::istringstream in(text);
+  read_delimited(t, in, 0, ',', [&](std::vector<std::string> names, int line) {
+    const std::size_t k = names.size();
+    t.set_header(std::move(names), std::vector<std::string>(k), line);
+  });
   return t;
-}
-
-bool CsvTable::has_column(const std::string& name) const {
-  for (const auto& h : header_)
-    if (h == name) return true;
-  return false;
-}
-
-std::size_t CsvTable::column(const std::string& name) const {
-  for (std::size_t i = 0; i < header_.size(); ++i)
-    if (header_[i] == name) return i;
-  throw InputError(SourcePlace{file_, header_line_, 0, name}, "missing column");
-}
-
-SourcePlace CsvTable::place(std::size_t row, std::size_t col) const {
-  return SourcePlace{file_, lines_[row], 0, header_[col]};
-}
-
-double CsvTable::number(std::size_t row, std::size_t col) const {
-  const std::string& s = cells_[row][col];
-  if (s.empty()) throw InputError(place(row, col), "empty value");
-  char* end = nullptr;
-  errno = 0;
-  const double v = std::strtod(s.c_str(), &end);
-  if (end == s.c_str() || *end != '\0')
-    throw InputError(place(row, col), "not a number: '" + s + "'");
-  if (!std::isfinite(v) || errno == ERANGE)
-    throw InputError(place(row, col), "not a finite number: '" + s + "'");
-  return v;
-}
-
-std::uint64_t CsvTable::whole(std::size_t row, std::size_t col) const {
-  const std::string& s = cells_[row][col];
-  char* end = nullptr;
-  errno = 0;
-  const unsigned long long v = std::strtoull(s.c_str(), &end, 10);
-  if (s.empty() || s[0] == '-' || end == s.c_str() || *end != '\0' || errno == ERANGE)
-    throw InputError(place(row, col), "not a whole number: '" + s + "'");
-  return v;
 }
 
 } // namespace undertow::io

@@ -1,12 +1,15 @@
 #include "undertow/io/table.hpp"
 
 #include <cctype>
+#include <charconv>
 #include <cmath>
 #include <cstdio>
 #include <stdexcept>
 
 #include "undertow/error.hpp"
 #include "undertow/io/atomic_file.hpp"
+#include "undertow/io/table_ecsv.hpp"
+#include "undertow/io/table_fits.hpp"
 
 namespace undertow::io {
 
@@ -21,20 +24,48 @@ TableFormat table_format_from_name(const std::string& name) {
   if (name == "csv") return TableFormat::csv;
   if (name == "markdown" || name == "md") return TableFormat::markdown;
   if (name == "latex" || name == "tex") return TableFormat::latex;
-  throw InputError("unknown table format '" + name + "' (csv, markdown, latex)");
+  if (name == "ecsv") return TableFormat::ecsv;
+  if (name == "fits") return TableFormat::fits;
+  throw InputError("unknown table format '" + name + "' (csv, ecsv, fits, markdown, latex)");
+}
+
+void write_table_file(const std::string& path, const Table& t, TableFormat f) {
+  if (f == TableFormat::fits) return write_table_fits(path, t);
+  AtomicFile out(path);
+  write_table(out.stream(), t, f);
+  out.commit();
 }
 
 std::vector<std::string> write_table_files(const std::string& stem, const Table& t) {
-  const std::pair<const char*, TableFormat> formats[] = {
-      {".csv", TableFormat::csv}, {".md", TableFormat::markdown}, {".tex", TableFormat::latex}};
+  const std::pair<const char*, TableFormat> formats[] = {{".csv", TableFormat::csv},
+                                                         {".ecsv", TableFormat::ecsv},
+                                                         {".md", TableFormat::markdown},
+                                                         {".tex", TableFormat::latex},
+                                                         {".fits", TableFormat::fits}};
   std::vector<std::string> written;
   for (const auto& [ext, fmt] : formats) {
-    AtomicFile f(stem + ext);
-    write_table(f.stream(), t, fmt);
-    f.commit();
+    write_table_file(stem + ext, t, fmt);
     written.push_back(stem + ext);
   }
   return written;
+}
+
+std::string exact_number(double v) {
+  if (std::isnan(v)) return "nan";
+  if (std::isinf(v)) return v > 0 ? "inf" : "-inf";
+  char b[32];
+  const auto r = std::to_chars(b, b + sizeof b, v); // shortest text that reads back to v
+  return std::string(b, r.ptr);
+}
+
+std::string csv_field(const std::string& s) {
+  if (s.find_first_of(",\"\n\r") == std::string::npos &&
+      (s.empty() || (s.front() != ' ' && s.back() != ' ')))
+    return s;
+  std::string q = "\"";
+  for (char c : s)
+    q += c == '"' ? std::string("\"\"") : std::string(1, c);
+  return q + "\"";
 }
 
 std::string format_number(double v, int precision) {
@@ -98,21 +129,26 @@ void write_table(std::ostream& os, const Table& t, TableFormat f) {
     return format_number(t.rows[r][c], t.columns[c].precision);
   };
   switch (f) {
-  case TableFormat::csv:
+  case TableFormat::csv: // every digit: the numbers read back to the same doubles
     if (!t.title.empty()) os << "# " << t.title << "\n";
     for (const auto& n : t.notes)
       os << "# " << n << "\n";
-    if (labels) os << t.label_header << ",";
+    if (labels) os << csv_field(t.label_header) << ",";
     for (std::size_t c = 0; c < t.columns.size(); ++c)
-      os << (c ? "," : "") << t.columns[c].name;
+      os << (c ? "," : "") << csv_field(t.columns[c].name);
     os << "\n";
     for (std::size_t r = 0; r < t.rows.size(); ++r) {
-      if (labels) os << t.row_labels[r] << ",";
+      if (labels) os << csv_field(t.row_labels[r]) << ",";
       for (std::size_t c = 0; c < t.columns.size(); ++c)
-        os << (c ? "," : "") << cell(r, c);
+        os << (c ? "," : "") << exact_number(t.rows[r][c]);
       os << "\n";
     }
     break;
+  case TableFormat::ecsv:
+    write_table_ecsv(os, t);
+    break;
+  case TableFormat::fits:
+    throw InputError("a FITS table is binary: write it to a file (-o FILE)");
   case TableFormat::markdown:
     if (!t.title.empty()) os << "**" << t.title << "**\n\n";
     os << "|";

@@ -92,6 +92,20 @@ std::vector<std::string> TableReader::strings(std::string_view key) const {
   return out;
 }
 
+std::map<std::string, std::string> TableReader::string_map_or_empty(std::string_view key) const {
+  std::map<std::string, std::string> out;
+  const toml::node* n = get(key);
+  if (!n) return out;
+  const auto* t = n->as_table();
+  if (!t) fail(key, "must be a table of strings (e.g. {parallax_mas = \"plx\"})");
+  for (const auto& [k, v] : *t) {
+    const auto* s = v.as_string();
+    if (!s) fail(key, "'" + std::string(k.str()) + "' must be a string (a column name)");
+    out.emplace(std::string(k.str()), s->get());
+  }
+  return out;
+}
+
 bool TableReader::is_array(std::string_view key) const {
   const toml::node* n = get(key);
   return n && n->is_array();

@@ -189,9 +189,11 @@ ObservationSpec observation_from_table(const toml::table& t, const std::string& 
       e.kind = ErrorModel::Kind::fractional;
       e.parallax_fraction = pos("parallax_fraction", 0.1);
     } else if (kind == "catalog") {
-      q.check_keys({"kind", "catalog"});
+      q.check_keys({"kind", "catalog", "catalog_columns"});
       e.kind = ErrorModel::Kind::catalog;
-      e.reference = residuals::read_catalog(io::path_beside(file, q.string("catalog")));
+      residuals::CatalogOptions co;
+      co.columns = q.string_map_or_empty("catalog_columns");
+      e.reference = residuals::read_catalog(io::path_beside(file, q.string("catalog")), co);
     } else {
       q.fail("kind", "must be \"fixed\", \"fractional\" or \"catalog\", got \"" + kind + "\"");
     }

@@ -1,33 +1,148 @@
 #include "undertow/residuals/catalog.hpp"
 
+#include <algorithm>
 #include <cmath>
 #include <cstdio>
+#include <iterator>
+#include <stdexcept>
 #include <utility>
 
 #include "undertow/error.hpp"
 #include "undertow/io/atomic_file.hpp"
-#include "undertow/io/csv.hpp"
+#include "undertow/io/input_table.hpp"
+#include "undertow/io/unit_notation.hpp"
 
 namespace undertow::residuals {
 namespace {
 
-Catalog from_table(const io::CsvTable& t) {
+// Our columns: the unit a file's unit must equal (FITS notation), and the spellings other
+// catalogs use for them (astrometric archives' parallax_error, pmra_pmdec_corr, ...), tried when
+// our name is absent and no column map names the column.
+struct Wanted {
+  const char* ours;
+  const char* unit;
+  std::vector<const char*> aliases;
+};
+const Wanted kWanted[] = {
+    {"name", "", {"source_id", "source", "id", "designation"}},
+    {"ra_deg", "deg", {"ra", "RA", "RAJ2000", "ra_icrs"}},
+    {"dec_deg", "deg", {"dec", "DEC", "DEJ2000", "dec_icrs"}},
+    {"parallax_mas", "mas", {"parallax", "plx", "Plx"}},
+    {"parallax_err_mas", "mas", {"parallax_error", "parallax_err", "e_parallax", "e_plx", "e_Plx"}},
+    {"pmra_masyr", "mas/yr", {"pmra", "pmRA"}},
+    {"pmra_err_masyr", "mas/yr", {"pmra_error", "pmra_err", "e_pmra", "e_pmRA"}},
+    {"pmdec_masyr", "mas/yr", {"pmdec", "pmDE"}},
+    {"pmdec_err_masyr", "mas/yr", {"pmdec_error", "pmdec_err", "e_pmdec", "e_pmDE"}},
+    {"vlsr_kms", "km/s", {"vlsr", "v_lsr", "VLSR"}},
+    {"vlsr_err_kms", "km/s", {"vlsr_error", "vlsr_err", "e_vlsr", "e_VLSR"}},
+    {"vhelio_kms", "km/s", {"radial_velocity", "vhelio", "v_helio", "RV", "rv"}},
+    {"vhelio_err_kms", "km/s", {"radial_velocity_error", "vhelio_err", "e_vhelio", "e_RV", "e_rv"}},
+    {"corr_pmra_pmdec", "", {"pmra_pmdec_corr"}},
+    {"corr_parallax_pmra", "", {"parallax_pmra_corr"}},
+    {"corr_parallax_pmdec", "", {"parallax_pmdec_corr"}},
+    {"parallax_offset_mas", "mas", {"parallax_zero_point", "plx_offset"}},
+    {"group", "", {"arm", "segment"}},
+};
+
+constexpr std::size_t npos = std::size_t(-1);
+
+// The file's column for each of ours (npos: absent), by the map, our name or one alias.
+class Columns {
+public:
+  Columns(const io::InputTable& t, const CatalogOptions& o) : t_(t) {
+    for (const auto& [ours, theirs] : o.columns) {
+      bool known = false;
+      for (const auto& w : kWanted)
+        known = known || ours == w.ours;
+      if (!known)
+        throw InputError(SourcePlace{t.file(), 0, 0, ours},
+                         "the column map names a column undertow does not read (" + list() + ")");
+      if (!t.has_column(theirs))
+        throw InputError(SourcePlace{t.file(), t.header_line(), 0, theirs},
+                         "the column map says '" + ours + "' is in column '" + theirs +
+                             "', which the file does not have");
+    }
+    for (const auto& w : kWanted) {
+      std::size_t c = npos;
+      if (const auto it = o.columns.find(w.ours); it != o.columns.end())
+        c = t.column(it->second);
+      else if (t.has_column(w.ours))
+        c = t.column(w.ours);
+      else
+        for (const char* a : w.aliases)
+          if (t.has_column(a)) {
+            if (c != npos)
+              throw InputError(SourcePlace{t.file(), t.header_line(), 0, a},
+                               std::string("both '") + t.name(c) + "' and '" + a + "' could be " +
+                                   w.ours + "; say which with a column map (" + w.ours + "=...)");
+            c = t.column(a);
+          }
+      if (c != npos) check_unit(w, c);
+      at_.push_back(c);
+    }
+  }
+  std::size_t operator()(const std::string& ours) const {
+    for (std::size_t k = 0; k < std::size(kWanted); ++k)
+      if (ours == kWanted[k].ours) return at_[k];
+    return npos;
+  }
+  std::size_t required(const std::string& ours) const {
+    const std::size_t c = (*this)(ours);
+    if (c == npos)
+      throw InputError(SourcePlace{t_.file(), t_.header_line(), 0, ours},
+                       "missing column (nor any of its other spellings, nor a column map entry)");
+    return c;
+  }
+
+private:
+  // A file with units (ECSV, FITS) must use ours; CSV carries none.
+  void check_unit(const Wanted& w, std::size_t c) const {
+    const std::string& u = t_.unit(c);
+    if (u.empty()) return;
+    const std::string want = io::fits_unit(w.unit);
+    try {
+      if (io::same_unit(u, w.unit)) return;
+    } catch (const std::invalid_argument&) { // not a unit we know: not ours either
+    }
+    throw InputError(t_.header_place(c), "unit '" + u + "', but " + w.ours + " is read in " +
+                                             (want.empty() ? std::string("no unit (a pure number)")
+                                                           : "'" + want + "'") +
+                                             "; convert the column or give it in that unit");
+  }
+  static std::string list() {
+    std::string s;
+    for (const auto& w : kWanted)
+      s += (s.empty() ? "" : ", ") + std::string(w.ours);
+    return s;
+  }
+  const io::InputTable& t_;
+  std::vector<std::size_t> at_;
+};
+
+Catalog from_table(const io::InputTable& t, const CatalogOptions& o) {
   Catalog c;
   c.file = t.file();
-  const std::size_t name = t.column("name");
+  const Columns cols(t, o);
+  const std::size_t name = cols.required("name");
   const char* num[] = {"ra_deg",     "dec_deg",        "parallax_mas", "parallax_err_mas",
                        "pmra_masyr", "pmra_err_masyr", "pmdec_masyr",  "pmdec_err_masyr",
                        "vlsr_kms",   "vlsr_err_kms"};
   std::size_t col[10];
-  for (int k = 0; k < 10; ++k)
-    col[k] = t.column(num[k]);
-  const bool has_corr = t.has_column("corr_pmra_pmdec"), has_group = t.has_column("group");
-  const std::size_t ccorr = has_corr ? t.column("corr_pmra_pmdec") : 0;
-  const std::size_t cgroup = has_group ? t.column("group") : 0;
-  constexpr std::size_t npos = std::size_t(-1);
-  const auto optional = [&](const char* n) { return t.has_column(n) ? t.column(n) : npos; };
-  const std::size_t ccw_a = optional("corr_parallax_pmra"), ccw_d = optional("corr_parallax_pmdec"),
-                    coff = optional("parallax_offset_mas");
+  for (int k = 0; k < 8; ++k)
+    col[k] = cols.required(num[k]);
+  const std::size_t vl = cols("vlsr_kms"), vh = cols("vhelio_kms");
+  if (vl != npos && vh != npos)
+    throw InputError(t.header_place(vh), "both an LSR velocity ('" + t.name(vl) +
+                                             "') and a heliocentric one: give one (a column "
+                                             "map can pick it)");
+  const bool helio = vl == npos && vh != npos;
+  c.heliocentric_velocities = helio;
+  col[8] = cols.required(helio ? "vhelio_kms" : "vlsr_kms");
+  col[9] = cols.required(helio ? "vhelio_err_kms" : "vlsr_err_kms");
+  const std::size_t ccorr = cols("corr_pmra_pmdec"), cgroup = cols("group");
+  const bool has_corr = ccorr != npos, has_group = cgroup != npos;
+  const std::size_t ccw_a = cols("corr_parallax_pmra"), ccw_d = cols("corr_parallax_pmdec"),
+                    coff = cols("parallax_offset_mas");
   for (std::size_t r = 0; r < t.rows(); ++r) {
     Source s;
     s.line = t.line_of(r);
@@ -63,6 +178,8 @@ Catalog from_table(const io::CsvTable& t) {
                        "the correlations of parallax and proper motions are not a valid "
                        "correlation matrix (not positive definite)");
     if (has_group) s.group = t.cell(r, cgroup);
+    if (helio) // the LSR velocity the rest of undertow reads, by the LSR the caller uses
+      s.vlsr_kms = sky::helio_to_lsr(s.vlsr_kms, s.ra_deg, s.dec_deg, o.lsr);
     c.sources.push_back(std::move(s));
   }
   return c;
@@ -70,11 +187,28 @@ Catalog from_table(const io::CsvTable& t) {
 
 } // namespace
 
-Catalog read_catalog(const std::string& path) {
-  return from_table(io::CsvTable::read_file(path));
+Catalog read_catalog(const std::string& path, const CatalogOptions& o) {
+  return from_table(io::InputTable::read_file(path), o);
 }
-Catalog parse_catalog(const std::string& text, const std::string& n) {
-  return from_table(io::CsvTable::parse(text, n));
+Catalog parse_catalog(const std::string& text, const std::string& n, const CatalogOptions& o) {
+  return from_table(io::InputTable::parse(text, n), o);
+}
+
+std::map<std::string, std::string> parse_column_map(const std::string& text,
+                                                    const std::string& where) {
+  std::map<std::string, std::string> m;
+  std::size_t b = 0;
+  while (b <= text.size() && !text.empty()) {
+    const std::size_t e = std::min(text.find(',', b), text.size());
+    const std::string item = text.substr(b, e - b);
+    const auto eq = item.find('=');
+    if (eq == std::string::npos || eq == 0 || eq + 1 == item.size())
+      throw InputError(where + ": '" + item + "' is not OURS=THEIRS (e.g. parallax_mas=plx)");
+    if (!m.emplace(item.substr(0, eq), item.substr(eq + 1)).second)
+      throw InputError(where + ": '" + item.substr(0, eq) + "' mapped twice");
+    b = e + 1;
+  }
+  return m;
 }
 
 std::string catalog_header() {

@@ -86,6 +86,8 @@ std::string selection_description(const scenario::Scenario& s) {
     << " sources; errors " << int(e.kind) << " (" << e.parallax_mas << " mas, "
     << e.parallax_fraction << ", " << e.pm_masyr << " mas/yr, " << e.vlsr_kms
     << " km/s); measured: distance " << int(c.distance) << ", S/N >= " << c.min_parallax_snr;
+  for (const auto& [ours, theirs] : c.catalog_columns)
+    d << ", column " << ours << " = " << theirs;
   return d.str();
 }
 
@@ -334,7 +336,10 @@ WholeRunResult run_all(const scenario::Scenario& s, const WholeRunOptions& o) {
   if (!s.comparison)
     throw InputError(SourcePlace{s.path, 0, 0, "comparison"},
                      "a whole run needs a [comparison] table");
-  const auto measured = residuals::read_catalog(s.comparison->catalog); // check the inputs first
+  residuals::CatalogOptions read;
+  read.columns = s.comparison->catalog_columns;
+  read.lsr = s.observation->settings.lsr;
+  const auto measured = residuals::read_catalog(s.comparison->catalog, read); // inputs first
   const fs::path dir(o.folder);
   std::error_code ec;
   fs::create_directories(dir / ".keys", ec);

@@ -243,6 +243,7 @@ Scenario parse_scenario(const std::string& text, const std::string& path) {
   if (const toml::table* cm = r.table("comparison")) {
     TableReader q(*cm, path, "comparison");
     q.check_keys({"catalog",
+                  "catalog_columns",
                   "distance",
                   "edsd_length_kpc",
                   "distance_prior",
@@ -273,6 +274,7 @@ Scenario parse_scenario(const std::string& text, const std::string& path) {
                   "arm_phase_range_deg"});
     Comparison c;
     c.catalog = io::path_beside(path, q.string("catalog"));
+    c.catalog_columns = q.string_map_or_empty("catalog_columns");
     try {
       c.distance = residuals::distance_from_name(q.string_or("distance", "inverse"));
     } catch (const InputError& e) {

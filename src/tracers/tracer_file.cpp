@@ -5,8 +5,8 @@
 
 #include "undertow/detail/kernel.hpp"
 #include "undertow/error.hpp"
-#include "undertow/io/csv.hpp"
 #include "undertow/io/hdf5.hpp"
+#include "undertow/io/input_table.hpp"
 
 namespace undertow::tracers {
 namespace {
@@ -16,7 +16,7 @@ bool looks_like_hdf5(const std::string& path) {
 }
 
 orbit::PhaseSpace read_csv(const std::string& path, double rmax) {
-  const auto t = io::CsvTable::read_file(path);
+  const auto t = io::InputTable::read_file(path);
   const char* names[] = {"x_kpc", "y_kpc", "z_kpc", "vx_kms", "vy_kms", "vz_kms"};
   const std::size_t cid = t.column("id");
   std::size_t c[6];

@@ -84,6 +84,14 @@ PY
 bash "$src/tests/cli/figure_checks.sh" "$undertow" "$png_probe" "$work/demo" "$work/figures" ||
   fail "figure checks"
 
+# Every table of the demo as astropy reads it: ECSV, FITS and CSV the same doubles, the HDF5
+# groups the same bits.
+(cd "$work/demo" && /usr/bin/python3 "$src/tests/cli/table_checks.py" . \
+  --h5 spiral/comparison.h5:global=spiral/comparison-global \
+  --h5 spiral/comparison.h5:lag_by_age=spiral/lag-by-age \
+  --h5 spiral/measured-residuals.h5:sources=spiral/measured-residuals-sources \
+  --h5 kestrel-fit/fit.h5:parameters=kestrel-fit/parameters) || fail "table checks"
+
 # 3. Bad input to the whole run.
 cp "$src/demo/spiral.toml" typo.toml
 sed -i 's|^model_file = "../demo/truth/galaxy.toml"|model_file = "'"$src"'/demo/truth/galaxy.toml"|; s|"kestrel-measured.csv"|"'"$src"'/demo/kestrel-measured.csv"|; s/^neighbours = 30/neighbors = 30/' typo.toml

@@ -4,7 +4,7 @@
 #include <catch2/catch.hpp>
 #include <cmath>
 
-#include "undertow/io/csv.hpp"
+#include "undertow/io/input_table.hpp"
 #include "undertow/sky/solar_frame.hpp"
 
 using namespace undertow;
@@ -12,8 +12,8 @@ using namespace undertow;
 TEST_CASE("Observables -> Galactocentric agrees with astropy's Galactocentric frame (Hipparcos "
           "orientation) to 1e-9 kpc and 1e-6 km/s, and back",
           "[sky]") {
-  const auto t = io::CsvTable::read_file(std::string(UNDERTOW_SOURCE_DIR) +
-                                         "/tests/sky/astropy_reference.csv");
+  const auto t = io::InputTable::read_file(std::string(UNDERTOW_SOURCE_DIR) +
+                                           "/tests/sky/astropy_reference.csv");
   REQUIRE(t.rows() >= 100);
   double worst_r = 0, worst_v = 0;
   for (std::size_t i = 0; i < t.rows(); ++i) {

@@ -160,12 +160,13 @@ values = [7.0, 5.0, 0.31]
   CHECK_THAT(gr.failed[0], Catch::Matchers::Contains("point 3"));
   g.partial = true;
   gr = sweep::gather(plan, g);
-  REQUIRE(gr.files.size() == 4);
-  const std::string csv = bytes(gr.files[0]), h5 = bytes(gr.files[3]);
+  REQUIRE(gr.files.size() == 6); // csv, ecsv, md, tex, fits, h5
+  const std::string csv = bytes(gr.files[0]), fits = bytes(gr.files[4]), h5 = bytes(gr.files[5]);
   CHECK_THAT(csv, Catch::Matchers::Contains("PARTIAL"));
   gr = sweep::gather(plan, g);
   CHECK(bytes(gr.files[0]) == csv);
-  CHECK(bytes(gr.files[3]) == h5);
+  CHECK(bytes(gr.files[4]) == fits);
+  CHECK(bytes(gr.files[5]) == h5);
   // Sorted by Δ ln L against the reference (point 0), best first; the reference has 0.
   std::istringstream lines(csv);
   std::string line;

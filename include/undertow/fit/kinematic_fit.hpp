@@ -29,6 +29,7 @@ struct SamplerSettings {
 
 struct FitSpec {
   std::string file, catalog_path;
+  std::map<std::string, std::string> catalog_columns; // ours -> the catalog's (catalog.hpp)
   KinematicModel model;
   std::vector<ParamSetting> params; // every parameter the model uses, fixed or free
   SamplerSettings sampler;

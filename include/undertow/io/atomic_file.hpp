@@ -6,6 +6,28 @@
 
 namespace undertow::io {
 
+// The temporary name and the rename, for writers that open the file themselves (CFITSIO).
+class AtomicPath {
+public:
+  explicit AtomicPath(std::string path);
+  ~AtomicPath(); // removes the temporary unless committed
+  AtomicPath(const AtomicPath&) = delete;
+  AtomicPath& operator=(const AtomicPath&) = delete;
+
+  const std::string& temporary() const { return tmp_; }
+  const std::string& target() const { return path_; }
+  // Renames the temporary into place; throws InputError (and removes it) on failure, or when
+  // `written` is false (a write error the caller saw).
+  void commit(bool written = true);
+  // Whether a file name is a temporary of this class (".<name>.tmp-<pid>"): one left by a
+  // killed process is garbage, never a result.
+  static bool is_temporary(const std::string& filename);
+
+private:
+  std::string path_, tmp_;
+  bool done_ = false;
+};
+
 class AtomicFile {
 public:
   explicit AtomicFile(std::string path); // throws InputError if the folder is not writable
@@ -14,15 +36,14 @@ public:
   AtomicFile& operator=(const AtomicFile&) = delete;
 
   std::ostream& stream() { return out_; }
-  // Whether a file name is a temporary of this class (".<name>.tmp-<pid>"): one left by a
-  // killed process is garbage, never a result.
-  static bool is_temporary(const std::string& filename);
+  static bool is_temporary(const std::string& filename) {
+    return AtomicPath::is_temporary(filename);
+  }
   void commit(); // flushes, checks for write errors, renames; throws InputError on failure
 
 private:
-  std::string path_, tmp_;
+  AtomicPath path_;
   std::ofstream out_;
-  bool done_ = false;
 };
 
 } // namespace undertow::io

@@ -1,6 +1,8 @@
 #pragma once
 // One table model for every table undertow writes: columns carry a name, a symbol and a unit;
-// writers render it as CSV, Markdown or LaTeX (booktabs) without changing a number.
+// writers render it as CSV, ECSV, FITS (table_fits.hpp), Markdown or LaTeX (booktabs). CSV, ECSV
+// and FITS keep every digit (the numbers read back to the same doubles); Markdown and LaTeX,
+// which people read, round to each column's precision.
 #include <ostream>
 #include <string>
 #include <vector>
@@ -12,7 +14,7 @@ struct Column {
   std::string latex; // LaTeX symbol (math mode): e.g. "v_{c}", "\\kappa"
   std::string plain; // symbol for plain text and Markdown: e.g. "v_c", "κ"
   std::string unit;  // e.g. "km/s"; empty for dimensionless
-  int precision = 6; // significant digits
+  int precision = 6; // significant digits in Markdown and LaTeX
 };
 
 struct Table {
@@ -26,12 +28,23 @@ struct Table {
   void add_row(std::vector<double> row);
 };
 
-enum class TableFormat { csv, markdown, latex };
+enum class TableFormat { csv, ecsv, markdown, latex, fits };
 TableFormat table_format_from_name(const std::string& name); // throws InputError
+// The names table_format_from_name knows, for command-line checks and help texts.
+inline const char* const kTableFormatNames[] = {"csv", "ecsv",  "fits", "markdown",
+                                                "md",  "latex", "tex"};
 
+// Text formats; FITS, which is binary, throws InputError (write it to a file).
 void write_table(std::ostream& os, const Table& t, TableFormat f);
-// Writes <stem>.csv, <stem>.md and <stem>.tex, each atomically; returns their paths.
+// One file in format f, atomically.
+void write_table_file(const std::string& path, const Table& t, TableFormat f);
+// Writes <stem>.csv, .ecsv, .md, .tex and .fits, each atomically; returns their paths.
 std::vector<std::string> write_table_files(const std::string& stem, const Table& t);
 std::string format_number(double v, int precision);
+// The shortest text that reads back to v exactly ("nan", "inf", "-inf" for those).
+std::string exact_number(double v);
+// A CSV field (RFC 4180): quoted, with quotes doubled, when it holds a comma, quote, line break
+// or leading or trailing space.
+std::string csv_field(const std::string& s);
 
 } // namespace undertow::io

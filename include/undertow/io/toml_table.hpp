@@ -1,6 +1,7 @@
 #pragma once
 // Reading one TOML table strictly: every key must be asked for, unknown keys are errors, and
 // every error names the file, line, column and key path (after toml++'s source regions).
+#include <map>
 #include <optional>
 #include <set>
 #include <string>
@@ -28,7 +29,9 @@ public:
   std::string string_or(std::string_view key, std::string fallback) const;
   std::vector<std::string> strings(std::string_view key) const;
   std::vector<double> numbers(std::string_view key) const; // array of finite numbers
-  bool is_array(std::string_view key) const;               // present and an array
+  // An optional table of strings (a column map); empty when absent.
+  std::map<std::string, std::string> string_map_or_empty(std::string_view key) const;
+  bool is_array(std::string_view key) const; // present and an array
   bool boolean_or(std::string_view key, bool fallback) const;
   const toml::table* table(std::string_view key) const;           // optional sub-table
   const toml::array* array_of_tables(std::string_view key) const; // optional [[key]]

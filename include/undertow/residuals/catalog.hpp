@@ -1,12 +1,15 @@
 #pragma once
-// Measured catalogs (CSV, docs/catalog-format.md): one row per source with its position,
-// parallax, proper motions, LSR velocity and their 1-sigma errors, an optional proper-motion
-// correlation, optional parallax-proper-motion correlations, an optional parallax zero point and
-// an optional group label. Reading is strict: a missing column, a value that is
-// not a finite number, a non-positive error or a correlation outside [-1, 1] is an error at its
-// file, line and column.
+// Measured catalogs (CSV, ECSV or FITS, docs/catalog-format.md): one row per source with its
+// position, parallax, proper motions, LSR (or heliocentric) velocity and their 1-sigma errors, an
+// optional proper-motion correlation, optional parallax-proper-motion correlations, an optional
+// parallax zero point and an optional group label. Reading is strict: a missing column, a value
+// that is not a finite number, a non-positive error or a correlation outside [-1, 1] is an error at
+// its file, line and column.
+#include <map>
 #include <string>
 #include <vector>
+
+#include "undertow/sky/lsr.hpp"
 
 namespace undertow::residuals {
 
@@ -22,16 +25,31 @@ struct Source {
   // catalogs publish them, and a per-source parallax zero point (measured = true + offset).
   double corr_w_pa = 0, corr_w_pd = 0;
   double parallax_offset_mas = 0;
-  int line = 0;       // line in the file, for messages
+  int line = 0; // line in the file, for messages
 };
 
 struct Catalog {
   std::string file;
   std::vector<Source> sources;
+  // The file gave heliocentric (barycentric) velocities, turned into v_LSR on reading.
+  bool heliocentric_velocities = false;
 };
 
-Catalog read_catalog(const std::string& path);
-Catalog parse_catalog(const std::string& text, const std::string& source_name);
+struct CatalogOptions {
+  // Our column name -> the file's (docs/catalog-format.md lists ours and the other spellings
+  // read without a map).
+  std::map<std::string, std::string> columns;
+  // The LSR that turns a heliocentric velocity column into v_LSR.
+  sky::LsrForm lsr = sky::LsrForm::apex;
+};
+
+// CSV, ECSV or FITS (io/input_table.hpp), the same sources from each.
+Catalog read_catalog(const std::string& path, const CatalogOptions& o = {});
+Catalog parse_catalog(const std::string& text, const std::string& source_name,
+                      const CatalogOptions& o = {});
+// "ours=theirs,ours=theirs" (a command-line option); `where` names it in messages.
+std::map<std::string, std::string> parse_column_map(const std::string& text,
+                                                    const std::string& where);
 // Writes a catalog in the same format (mock catalogs use this), atomically.
 // comment: extra '# ' lines at the top (provenance), may be empty.
 void write_catalog(const std::string& path, const Catalog& c, const std::string& comment = {});

@@ -4,6 +4,7 @@
 // errors, with file, line and key path.
 #include <array>
 #include <cstdint>
+#include <map>
 #include <optional>
 #include <string>
 #include <vector>
@@ -32,7 +33,8 @@ struct Output {
 
 // [comparison]: the measured catalog and how it is compared with the simulation.
 struct Comparison {
-  std::string catalog; // resolved path
+  std::string catalog;                                // resolved path
+  std::map<std::string, std::string> catalog_columns; // ours -> the catalog's (catalog.hpp)
   residuals::ResidualSettings::Distance distance = residuals::ResidualSettings::Distance::inverse;
   double edsd_length_kpc = 1.35;
   fit::DistancePrior prior; // for distance = "posterior-median"
