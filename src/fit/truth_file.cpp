@@ -64,13 +64,14 @@ KinematicTruth parse_truth_file(const std::string& text, const std::string& name
   if (!(t.pitch_deg > 0 && t.pitch_deg < 90)) st.fail("pitch_deg", "must lie in (0, 90)");
   st.finish({"amplitude_kms", "arms", "pitch_deg"});
   io::TableReader er(err_t, name, "errors");
-  const std::vector<std::string> ekeys{"parallax_mas", "pm_masyr", "vlsr_kms", "parallax_snr_min"};
+  const std::vector<std::string> ekeys{"parallax_err_mas", "pm_err_masyr", "vlsr_err_kms",
+                                       "parallax_snr_min"};
   er.check_keys(ekeys);
   t.errors.kind = observe::ErrorModel::Kind::fixed;
-  t.errors.parallax_mas = er.number("parallax_mas");
-  t.errors.pm_masyr = er.number("pm_masyr");
-  t.errors.vlsr_kms = er.number("vlsr_kms");
-  for (const char* k : {"parallax_mas", "pm_masyr", "vlsr_kms"})
+  t.errors.parallax_mas = er.number("parallax_err_mas");
+  t.errors.pm_masyr = er.number("pm_err_masyr");
+  t.errors.vlsr_kms = er.number("vlsr_err_kms");
+  for (const char* k : {"parallax_err_mas", "pm_err_masyr", "vlsr_err_kms"})
     if (!(er.number(k) > 0)) er.fail(k, "an error must be positive");
   t.parallax_snr_min = er.number_or("parallax_snr_min", 0);
   er.finish(ekeys);

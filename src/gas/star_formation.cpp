@@ -13,7 +13,7 @@ void StarFormation::validate() const {
     throw detail::ParameterError("efficiency",
                                  "must lie in (0, 1], got " + detail::num(efficiency));
   detail::non_negative(dispersion_kms, "dispersion_kms");
-  detail::positive(max_age_myr, "max_age_myr");
+  detail::positive(max_age_myr, "age_max_myr");
   if (step_ratio < 1 || step_ratio > 64)
     throw detail::ParameterError("step_ratio", "must be an integer from 1 to 64, got " +
                                                    std::to_string(step_ratio));

@@ -36,7 +36,7 @@ void write_tracers(const h5::File& f, hid_t g, const Snapshot& s) {
   h5::write_doubles(f, g, "velocity", vel, 3, "km/s", "Galactocentric vx, vy, vz");
   h5::write_doubles(f, g, "birth_time", s.birth_time_myr, 1, "Myr", "time the tracer was made");
   h5::write_u32(f, g, "flags", s.flags,
-                "bit 0: beyond max_radius_kpc; bit 1: invariant error above 1e-6; bit 2: a star "
+                "bit 0: beyond radius_max_kpc; bit 1: invariant error above 1e-6; bit 2: a star "
                 "formed in the run");
   if (!s.birth_position.empty()) {
     h5::write_doubles(f, g, "birth_position", s.birth_position, 3, "kpc",

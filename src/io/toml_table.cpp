@@ -157,14 +157,38 @@ const toml::array* TableReader::array_of_tables(std::string_view key) const {
 }
 
 namespace {
+// Keys renamed since undertow 0.1 (CHANGELOG.md, docs/migration.md): the old spelling is refused,
+// naming the new one, wherever the new one is valid.
+struct Renamed {
+  std::string_view old_name, new_name, note;
+};
+constexpr Renamed kRenamed[] = {
+    {"max_radius_kpc", "radius_max_kpc", ""},
+    {"max_sources", "sources_max", ""},
+    {"min_parallax_snr", "parallax_snr_min", ""},
+    {"min_neighbours", "neighbours_min", ""},
+    {"max_age_myr", "age_max_myr", ""},
+    {"amplitude_kms2", "amplitude_km2_s2", ""},
+    {"parallax_fraction", "parallax_err_fraction", ""},
+    {"parallax_mas", "parallax_err_mas", ""},
+    {"pm_masyr", "pm_err_masyr", ""},
+    {"vlsr_kms", "vlsr_err_kms", ""},
+    {"radius_kpc", "neighbourhood_radius_kpc", ""},
+    {"density_msun_pc3", "density_msun_kpc3", ", in Msun/kpc^3: 10^9 times the old value"},
+};
+
 [[noreturn]] void unknown_key(const TableReader& r, const toml::key& k,
                               const std::vector<std::string>& valid) {
-  std::string list;
-  for (const auto& s : valid)
-    list += (list.empty() ? "" : ", ") + s;
   SourcePlace at = r.place(k.str());
   at.line = int(k.source().begin.line); // point at the key itself, not its value
   at.column = int(k.source().begin.column);
+  for (const auto& [old_name, new_name, note] : kRenamed)
+    if (k.str() == old_name && std::find(valid.begin(), valid.end(), new_name) != valid.end())
+      throw InputError(at, "renamed: write '" + std::string(new_name) + "'" + std::string(note) +
+                               " (see CHANGELOG.md and docs/migration.md)");
+  std::string list;
+  for (const auto& s : valid)
+    list += (list.empty() ? "" : ", ") + s;
   throw InputError(at, "unknown key; valid keys here: " + list);
 }
 } // namespace

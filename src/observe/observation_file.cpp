@@ -124,7 +124,7 @@ ObservationSpec observation_from_table(const toml::table& t, const std::string& 
     TableReader q(*sel, file, sub(ctx, "selection"));
     q.check_keys({"distance_min_kpc", "distance_max_kpc", "latitude_max_deg", "dec_min_deg",
                   "dec_max_deg", "parallax_snr_min", "parallax_min_mas", "parallax_max_mas",
-                  "max_sources"});
+                  "sources_max"});
     auto& x = s.selection;
     x.distance_min_kpc = q.number_or("distance_min_kpc", 0.0);
     x.distance_max_kpc = q.number_or("distance_max_kpc", 1e9);
@@ -139,9 +139,9 @@ ObservationSpec observation_from_table(const toml::table& t, const std::string& 
     x.parallax_max_mas = q.number_or("parallax_max_mas", 1e300);
     if (!(x.parallax_max_mas > x.parallax_min_mas))
       q.fail("parallax_max_mas", "must exceed parallax_min_mas");
-    const double n = q.number_or("max_sources", 0.0);
+    const double n = q.number_or("sources_max", 0.0);
     if (!(n >= 0 && std::floor(n) == n))
-      q.fail("max_sources", "must be a whole number (0: no limit)");
+      q.fail("sources_max", "must be a whole number (0: no limit)");
     x.max_sources = std::size_t(n);
   }
   if (const toml::table* y = r.table("young")) {
@@ -181,13 +181,13 @@ ObservationSpec observation_from_table(const toml::table& t, const std::string& 
       return v;
     };
     if (kind == "fixed") {
-      q.check_keys({"kind", "parallax_mas", "pm_masyr", "vlsr_kms"});
+      q.check_keys({"kind", "parallax_err_mas", "pm_err_masyr", "vlsr_err_kms"});
       e.kind = ErrorModel::Kind::fixed;
-      e.parallax_mas = pos("parallax_mas", 0.02);
+      e.parallax_mas = pos("parallax_err_mas", 0.02);
     } else if (kind == "fractional") {
-      q.check_keys({"kind", "parallax_fraction", "pm_masyr", "vlsr_kms"});
+      q.check_keys({"kind", "parallax_err_fraction", "pm_err_masyr", "vlsr_err_kms"});
       e.kind = ErrorModel::Kind::fractional;
-      e.parallax_fraction = pos("parallax_fraction", 0.1);
+      e.parallax_fraction = pos("parallax_err_fraction", 0.1);
     } else if (kind == "catalog") {
       q.check_keys({"kind", "catalog", "catalog_columns"});
       e.kind = ErrorModel::Kind::catalog;
@@ -198,8 +198,8 @@ ObservationSpec observation_from_table(const toml::table& t, const std::string& 
       q.fail("kind", "must be \"fixed\", \"fractional\" or \"catalog\", got \"" + kind + "\"");
     }
     if (e.kind != ErrorModel::Kind::catalog) {
-      e.pm_masyr = pos("pm_masyr", 0.1);
-      e.vlsr_kms = pos("vlsr_kms", 5.0);
+      e.pm_masyr = pos("pm_err_masyr", 0.1);
+      e.vlsr_kms = pos("vlsr_err_kms", 5.0);
     }
   }
   return spec;

@@ -135,7 +135,7 @@ void advance_batch_carried(const Model& m, PhaseSpace& p, std::size_t first, std
 void advance_batch_symplectic(const Model& m, PhaseSpace& p, std::size_t first, std::size_t n,
                               double t0, double dt, std::size_t k0, std::size_t steps,
                               Method method) {
-  const bool extended = method == Method::mclachlan4;
+  const bool extended = method == Method::symplectic4;
   thread_local Vec q, v;
   q.resize(3 * n + (extended ? 1 : 0));
   v.resize(q.size());
@@ -201,7 +201,7 @@ void advance_orbit_adaptive(const Model& m, PhaseSpace& p, std::size_t i, double
         ode::make_controlled(s.tolerance, s.tolerance, ode::runge_kutta_dopri5<State6>()), rhs, st,
         t0, t1, dt0);
     break;
-  case Method::fehlberg78:
+  case Method::rk78:
     ode::integrate_adaptive(
         ode::make_controlled(s.tolerance, s.tolerance, ode::runge_kutta_fehlberg78<State6>()), rhs,
         st, t0, t1, dt0);

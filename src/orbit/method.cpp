@@ -1,5 +1,7 @@
 #include "undertow/orbit/method.hpp"
 
+#include <utility>
+
 #include "undertow/error.hpp"
 
 namespace undertow::orbit {
@@ -10,10 +12,13 @@ struct Named {
   const char* name;
 };
 constexpr Named kMethods[] = {{Method::leapfrog, "leapfrog"},
-                              {Method::mclachlan4, "mclachlan4"},
+                              {Method::symplectic4, "symplectic4"},
                               {Method::dopri5, "dopri5"},
-                              {Method::fehlberg78, "fehlberg78"},
+                              {Method::rk78, "rk78"},
                               {Method::bulirsch_stoer, "bulirsch-stoer"}};
+// Names before undertow 0.2 (CHANGELOG.md): refused, naming the new one.
+constexpr std::pair<const char*, const char*> kRenamed[] = {{"mclachlan4", "symplectic4"},
+                                                            {"fehlberg78", "rk78"}};
 } // namespace
 
 std::string method_names() {
@@ -26,6 +31,10 @@ std::string method_names() {
 Method method_from_name(const std::string& name) {
   for (const auto& n : kMethods)
     if (name == n.name) return n.m;
+  for (const auto& [old_name, new_name] : kRenamed)
+    if (name == old_name)
+      throw InputError("integration method '" + name + "' renamed: write '" + new_name +
+                       "' (see CHANGELOG.md and docs/migration.md)");
   throw InputError("unknown integration method '" + name + "'; known: " + method_names());
 }
 
@@ -36,7 +45,7 @@ std::string method_name(Method m) {
 }
 
 bool is_symplectic(Method m) {
-  return m == Method::leapfrog || m == Method::mclachlan4;
+  return m == Method::leapfrog || m == Method::symplectic4;
 }
 
 } // namespace undertow::orbit

@@ -13,7 +13,6 @@
 #include "undertow/detail/kernel.hpp"
 #include "undertow/potential/model.hpp"
 
-
 namespace undertow::potential {
 namespace {
 

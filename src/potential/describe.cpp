@@ -32,7 +32,7 @@ Parameters of(const Logarithmic& c) {
 Parameters of(const Burkert& c) {
   return {{"density_msun_kpc3", c.gpr3 / (G * units::pi * c.r0 * c.r0 * c.r0)}, {"core_kpc", c.r0}};
 }
-Parameters of(const PowerLawCutoff& c) {
+Parameters of(const TaperedCusp& c) {
   return {{"density_msun_kpc3", c.rho1},
           {"reference_radius_kpc", c.r1},
           {"slope", c.alpha},
@@ -45,7 +45,7 @@ Parameters of(const LogSpiral& s) {
   return {{"arms", double(s.m)},
           {"pitch_deg", std::atan(1 / s.cotp) / units::deg},
           {"reference_radius_kpc", s.rref},
-          {"amplitude_kms2", s.amp},
+          {"amplitude_km2_s2", s.amp},
           {"envelope_scale_kpc", s.inv_rs > 0 ? 1 / s.inv_rs : INFINITY},
           {"inner_taper_kpc", std::sqrt(s.rin2)},
           {"scale_height_kpc", s.inv_h > 0 ? 1 / s.inv_h : INFINITY},
@@ -53,15 +53,13 @@ Parameters of(const LogSpiral& s) {
           {"vertical_decay_per_kpc", s.kz}};
 }
 Parameters of(const CoxGomezSpiral& s) {
-  return {{"arms", double(s.arms)},
-          {"pitch_deg", std::atan(s.tan_a) / units::deg},
-          {"reference_radius_kpc", s.r0},
-          {"radial_scale_kpc", 1 / s.inv_rs},
-          {"scale_height_kpc", s.H},
-          {"density_msun_pc3", s.pref / (4 * units::pi * G * s.H) / units::msun_pc3}};
+  return {
+      {"arms", double(s.arms)},       {"pitch_deg", std::atan(s.tan_a) / units::deg},
+      {"reference_radius_kpc", s.r0}, {"radial_scale_kpc", 1 / s.inv_rs},
+      {"scale_height_kpc", s.H},      {"density_msun_kpc3", s.pref / (4 * units::pi * G * s.H)}};
 }
 Parameters of(const DehnenBar& s) {
-  return {{"bar_radius_kpc", s.rb}, {"amplitude_kms2", s.amp}};
+  return {{"bar_radius_kpc", s.rb}, {"amplitude_km2_s2", s.amp}};
 }
 } // namespace
 

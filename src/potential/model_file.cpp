@@ -77,12 +77,11 @@ const std::map<std::string, KindSpec>& component_specs() {
         [](const TableReader& r) -> ComponentShape {
           return Burkert::make(r.number("density_msun_kpc3"), r.number("core_kpc"));
         }}},
-      {PowerLawCutoff::kind,
+      {TaperedCusp::kind,
        {{"density_msun_kpc3", "reference_radius_kpc", "slope", "cutoff_kpc"},
         [](const TableReader& r) -> ComponentShape {
-          return PowerLawCutoff::make(r.number("density_msun_kpc3"),
-                                      r.number_or("reference_radius_kpc", 1.0), r.number("slope"),
-                                      r.number("cutoff_kpc"));
+          return TaperedCusp::make(r.number("density_msun_kpc3"), r.number("reference_radius_kpc"),
+                                   r.number("slope"), r.number("cutoff_kpc"));
         }}},
       {AllenSantillanHalo::kind,
        {{"mass_msun", "scale_kpc", "exponent", "cutoff_kpc"},
@@ -115,6 +114,9 @@ Component read_component(const toml::table& t, const std::string& file, const st
   const std::string kind = r.string("kind");
   const auto& specs = component_specs();
   const auto it = specs.find(kind);
+  if (kind == "power-law-cutoff") // renamed (CHANGELOG.md)
+    r.fail("kind", "renamed: write \"tapered-cusp\", with reference_radius_kpc given (see "
+                   "CHANGELOG.md and docs/migration.md)");
   if (it == specs.end())
     r.fail("kind", "unknown component kind '" + kind + "'; known kinds: " + kinds_of(specs));
   std::vector<std::string> valid{"kind", "label"};
@@ -155,15 +157,15 @@ Pattern read_pattern(const toml::table& t, const std::string& file, const std::s
   const std::string kind = r.string("kind");
   std::vector<std::string> valid = pattern_common;
   if (kind == LogSpiral::kind)
-    valid.insert(valid.end(), {"arms", "pitch_deg", "reference_radius_kpc", "amplitude_kms2",
+    valid.insert(valid.end(), {"arms", "pitch_deg", "reference_radius_kpc", "amplitude_km2_s2",
                                "force_ratio", "envelope_scale_kpc", "inner_taper_kpc",
                                "scale_height_kpc", "planar", "outer_radius_kpc"});
   else if (kind == CoxGomezSpiral::kind)
     valid.insert(valid.end(), {"arms", "pitch_deg", "reference_radius_kpc", "radial_scale_kpc",
-                               "scale_height_kpc", "density_msun_pc3"});
+                               "scale_height_kpc", "density_msun_kpc3"});
   else if (kind == DehnenBar::kind)
     valid.insert(valid.end(),
-                 {"bar_radius_kpc", "amplitude_kms2", "strength", "reference_radius_kpc"});
+                 {"bar_radius_kpc", "amplitude_km2_s2", "strength", "reference_radius_kpc"});
   else
     r.fail("kind", "unknown pattern kind '" + kind + "'; known kinds: " + pattern_kinds());
   r.check_keys(valid);
@@ -196,13 +198,13 @@ Pattern read_pattern(const toml::table& t, const std::string& file, const std::s
     return v;
   };
   if (kind == LogSpiral::kind) {
-    const bool direct = r.has("amplitude_kms2"), ratio = r.has("force_ratio");
-    if (direct == ratio) r.fail("", "give exactly one of amplitude_kms2 and force_ratio");
+    const bool direct = r.has("amplitude_km2_s2"), ratio = r.has("force_ratio");
+    if (direct == ratio) r.fail("", "give exactly one of amplitude_km2_s2 and force_ratio");
     p.shape = at_keys(r, [&] {
       auto s = LogSpiral::make(
           r.integer("arms"), r.number("pitch_deg"), r.number("reference_radius_kpc"),
           r.number_or("envelope_scale_kpc", inf), r.number_or("inner_taper_kpc", 1.0),
-          planar_arms(r), direct ? r.number("amplitude_kms2") : 0.0,
+          planar_arms(r), direct ? r.number("amplitude_km2_s2") : 0.0,
           r.number_or("outer_radius_kpc", 20.0));
       if (ratio) {
         const double f = r.number("force_ratio");
@@ -217,16 +219,16 @@ Pattern read_pattern(const toml::table& t, const std::string& file, const std::s
     p.shape = at_keys(r, [&] {
       return CoxGomezSpiral::make(r.integer("arms"), r.number("pitch_deg"),
                                   r.number("reference_radius_kpc"), r.number("radial_scale_kpc"),
-                                  r.number("scale_height_kpc"), r.number("density_msun_pc3"));
+                                  r.number("scale_height_kpc"), r.number("density_msun_kpc3"));
     });
   } else if (kind == DehnenBar::kind) {
-    const bool direct = r.has("amplitude_kms2"), strength = r.has("strength");
-    if (direct == strength) r.fail("", "give exactly one of amplitude_kms2 and strength");
+    const bool direct = r.has("amplitude_km2_s2"), strength = r.has("strength");
+    if (direct == strength) r.fail("", "give exactly one of amplitude_km2_s2 and strength");
     p.shape = at_keys(r, [&] {
       const double rb = r.number("bar_radius_kpc");
       double amp = 0;
       if (direct) {
-        amp = r.number("amplitude_kms2");
+        amp = r.number("amplitude_km2_s2");
       } else {
         const double r0 =
             detail::positive(r.number("reference_radius_kpc"), "reference_radius_kpc");

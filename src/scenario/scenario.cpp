@@ -75,7 +75,7 @@ std::optional<double> read_frame(const Scenario& s, const TableReader& r) {
 
 void read_integration(Scenario& s, const TableReader& r) {
   r.check_keys({"method", "start_myr", "end_myr", "step_myr", "tolerance", "batch_size", "frame",
-                "frame_pattern", "max_radius_kpc"});
+                "frame_pattern", "radius_max_kpc"});
   try {
     s.integration.method = orbit::method_from_name(r.string("method"));
   } catch (const InputError& e) {
@@ -93,8 +93,8 @@ void read_integration(Scenario& s, const TableReader& r) {
   if (!(batch >= 1 && batch <= 1 << 24 && std::floor(batch) == batch))
     r.fail("batch_size", "must be a whole number from 1 to 16777216");
   s.integration.batch = std::size_t(batch);
-  s.max_radius_kpc = r.number_or("max_radius_kpc", 500.0);
-  if (!(s.max_radius_kpc > 0)) r.fail("max_radius_kpc", "must be positive");
+  s.max_radius_kpc = r.number_or("radius_max_kpc", 500.0);
+  if (!(s.max_radius_kpc > 0)) r.fail("radius_max_kpc", "must be positive");
   if (r.string_or("frame", "inertial") == "rotating" && orbit::is_symplectic(s.integration.method))
     r.fail("frame", "the " + orbit::method_name(s.integration.method) +
                         " stepper integrates in the inertial frame (the rotating-frame "
@@ -125,12 +125,12 @@ void read_gas(Scenario& s, const TableReader& r) {
   });
   if (const toml::table* t = r.table("stars")) {
     const TableReader q(*t, s.path, "gas.stars");
-    q.check_keys({"threshold_kms", "efficiency", "dispersion_kms", "max_age_myr", "step_ratio"});
+    q.check_keys({"threshold_kms", "efficiency", "dispersion_kms", "age_max_myr", "step_ratio"});
     gas::StarFormation f;
     f.threshold_kms = q.number_or("threshold_kms", f.threshold_kms);
     f.efficiency = q.number_or("efficiency", f.efficiency);
     f.dispersion_kms = q.number_or("dispersion_kms", f.dispersion_kms);
-    f.max_age_myr = q.number_or("max_age_myr", f.max_age_myr);
+    f.max_age_myr = q.number_or("age_max_myr", f.max_age_myr);
     if (q.has("step_ratio")) {
       f.step_ratio = q.integer("step_ratio");
       if (f.step_ratio != 1 && s.integration.method != orbit::Method::leapfrog)
@@ -147,7 +147,7 @@ void read_gas(Scenario& s, const TableReader& r) {
     g.stars = f;
   }
   if (!orbit::is_symplectic(s.integration.method))
-    r.fail("", "colliding clouds need a fixed-step method (leapfrog or mclachlan4)");
+    r.fail("", "colliding clouds need a fixed-step method (leapfrog or symplectic4)");
   s.gas = g;
 }
 
@@ -251,14 +251,14 @@ Scenario parse_scenario(const std::string& text, const std::string& path) {
                   "distance_max_kpc",
                   "disk_scale_length_kpc",
                   "disk_scale_height_kpc",
-                  "min_parallax_snr",
+                  "parallax_snr_min",
                   "draws",
                   "bootstrap",
                   "seed",
                   "neighbourhood",
                   "neighbours",
-                  "min_neighbours",
-                  "radius_kpc",
+                  "neighbours_min",
+                  "neighbourhood_radius_kpc",
                   "prediction_sources",
                   "radius_bins_kpc",
                   "azimuth_bins_deg",
@@ -299,7 +299,7 @@ Scenario parse_scenario(const std::string& text, const std::string& path) {
     } catch (const InputError& e) {
       q.fail(e.place().field, e.what());
     }
-    c.min_parallax_snr = q.number_or("min_parallax_snr", 0.0);
+    c.min_parallax_snr = q.number_or("parallax_snr_min", 0.0);
     const auto whole = [&](const char* k, double d, double lo) {
       const double v = q.number_or(k, d);
       if (!(v >= lo && std::floor(v) == v && v < 1e9))
@@ -314,10 +314,10 @@ Scenario parse_scenario(const std::string& text, const std::string& path) {
       q.fail("neighbourhood", "must be \"nearest\" or \"radius\"");
     c.nearest = nb == "nearest";
     c.neighbours = std::size_t(whole("neighbours", 30, 2));
-    c.min_neighbours = std::size_t(whole("min_neighbours", 5, 2));
+    c.min_neighbours = std::size_t(whole("neighbours_min", 5, 2));
     c.prediction_sources = std::size_t(whole("prediction_sources", 5000, 10));
-    c.radius_kpc = q.number_or("radius_kpc", 1.0);
-    if (!(c.radius_kpc > 0)) q.fail("radius_kpc", "must be positive");
+    c.radius_kpc = q.number_or("neighbourhood_radius_kpc", 1.0);
+    if (!(c.radius_kpc > 0)) q.fail("neighbourhood_radius_kpc", "must be positive");
     if (q.has("radius_bins_kpc")) c.radius_bins_kpc = q.numbers("radius_bins_kpc");
     if (q.has("azimuth_bins_deg")) c.azimuth_bins_deg = q.numbers("azimuth_bins_deg");
     for (const auto* e : {&c.radius_bins_kpc, &c.azimuth_bins_deg})

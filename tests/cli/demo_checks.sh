@@ -105,13 +105,13 @@ sed 's/^neighbors = 30/neighbours = 30/' typo.toml > none.toml
 { echo "name,ra_deg,dec_deg,parallax_mas,parallax_err_mas,pmra_masyr,pmra_err_masyr,pmdec_masyr,pmdec_err_masyr,vlsr_kms,vlsr_err_kms"
   for k in 1 2 3 4; do echo "F$k,$((80 + k)),20,0.01,0.001,-1,0.05,-1,0.05,10,5"; done; } > far.csv
 sed -i "s|^catalog = \".*kestrel-measured.csv\"|catalog = \"$work/far.csv\"|" none.toml
-sed -i 's|^draws = 200|draws = 200\nmin_parallax_snr = 50|' none.toml
+sed -i 's|^draws = 200|draws = 200\nparallax_snr_min = 50|' none.toml
 if "$undertow" run none.toml -o none-out > none.log 2> none.err; then fail "a catalog with no usable source was compared"; fi
 grep -q "sources are left after the selection" none.err || { cat none.err; fail "no clear message for an empty selection"; }
 ! ls none-out/comparison-* > /dev/null 2>&1 || fail "comparison tables were written for an empty selection"
 
 # Zero simulated young sources near a measured one: a neighbourhood radius of 1 pc.
-sed 's/^neighbourhood = "nearest"/neighbourhood = "radius"\nradius_kpc = 0.001/' typo.toml | sed 's/^neighbors = 30/neighbours = 30/' > lonely.toml
+sed 's/^neighbourhood = "nearest"/neighbourhood = "radius"\nneighbourhood_radius_kpc = 0.001/' typo.toml | sed 's/^neighbors = 30/neighbours = 30/' > lonely.toml
 if "$undertow" run lonely.toml -o lonely-out > lonely.log 2> lonely.err; then fail "a source without simulated neighbours was compared"; fi
 grep -q "neighbour" lonely.err || { cat lonely.err; fail "no clear message for a source without neighbours"; }
 ! ls lonely-out/comparison-* > /dev/null 2>&1 || fail "comparison tables were written without neighbours"

@@ -24,9 +24,9 @@ form = "flat"
 distance_min_kpc = 1.0
 distance_max_kpc = 10.0
 [errors]
-parallax_mas = 0.02
-pm_masyr = 0.05
-vlsr_kms = 5.0
+parallax_err_mas = 0.02
+pm_err_masyr = 0.05
+vlsr_err_kms = 5.0
 [parameters]
 r0_kpc = 8.2
 theta0_kms = 235
@@ -164,10 +164,10 @@ set -e
 [ "$code" -eq 2 ] && [ "$(wc -l < single.err)" -eq 1 ] && grep -q "at least two sources" single.err ||
   { cat single.err; fail "a one-source catalog: exit $code"; }
 [ ! -e out-single ] || fail "one-source catalog: output written"
-sed 's/pm_masyr = 0.05/pm_masyr = -0.05/' truth.toml > bad-truth.toml
+sed 's/pm_err_masyr = 0.05/pm_err_masyr = -0.05/' truth.toml > bad-truth.toml
 set +e
 "$undertow" mock-kinematics bad-truth.toml -o bad.csv 2> bad.err; code=$?
 set -e
-[ "$code" -eq 2 ] && grep -q "bad-truth.toml:.*pm_masyr" bad.err && [ ! -e bad.csv ] ||
+[ "$code" -eq 2 ] && grep -q "bad-truth.toml:.*pm_err_masyr" bad.err && [ ! -e bad.csv ] ||
   { cat bad.err; fail "a negative error in a truth file: exit $code"; }
 echo "fit checks passed"

@@ -40,14 +40,14 @@ r0_kpc = 8.1
 distance_max_kpc = 8
 latitude_max_deg = 5
 parallax_snr_min = 3
-max_sources = 150
+sources_max = 150
 [young]
 age_window_myr = 40
 [errors]
 kind = "fractional"
-parallax_fraction = 0.08
-pm_masyr = 0.05
-vlsr_kms = 5
+parallax_err_fraction = 0.08
+pm_err_masyr = 0.05
+vlsr_err_kms = 5
 TOML
 "$undertow" observe run.h5 obs.toml -o mock.csv | tee observe.log
 grep -q "150 sources observed at t = 200 Myr" observe.log || fail "unexpected: $(cat observe.log)"
@@ -73,9 +73,9 @@ grep -q "no tracer passes the selection" e.log || fail "unclear: $(cat e.log)"
 echo "   $(cat e.log)"
 
 echo "-- a misspelled observation key"
-sed 's/^max_sources/max_source/' obs.toml > typo.toml
+sed 's/^sources_max/source_max/' obs.toml > typo.toml
 if "$undertow" observe run.h5 typo.toml > t.log 2>&1; then fail "no error for a misspelled key"; fi
-grep -q "typo.toml:8:1: selection.max_source: unknown key" t.log || fail "unclear: $(cat t.log)"
+grep -q "typo.toml:8:1: selection.source_max: unknown key" t.log || fail "unclear: $(cat t.log)"
 echo "   $(cat t.log)"
 
 echo "-- a catalog whose sources all fail the parallax cut"

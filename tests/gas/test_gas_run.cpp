@@ -208,7 +208,7 @@ TEST_CASE("Gas runs: a negative cloud radius, a restitution outside 0-1, a negat
       {"[gas]\ntangential_restitution = -0.1\n", "tangential_restitution"},
       {"[gas]\nstirring_kms = -1\n", "stirring_kms"},
       {"[gas]\n[gas.stars]\nefficiency = 0\n", "efficiency"},
-      {"[gas]\n[gas.stars]\nmax_age_myr = 0\n", "max_age_myr"},
+      {"[gas]\n[gas.stars]\nage_max_myr = 0\n", "age_max_myr"},
       {"[gas]\ncell_kpc = 0.2\n", "cell_kpc"},
       {"[gas]\n[gas.stars]\nstep_ratio = 0\n", "step_ratio"},
       {"[gas]\n[gas.stars]\nstep_ratio = 1.5\n", "step_ratio"},
@@ -220,7 +220,7 @@ TEST_CASE("Gas runs: a negative cloud radius, a restitution outside 0-1, a negat
   }
   // longer star steps are the leapfrog's; another fixed-step method says so
   auto other = smooth_disk(100, 5, 3, 10, "[gas]\n[gas.stars]\nstep_ratio = 2\n");
-  other.replace(other.find("\"leapfrog\""), 10, "\"mclachlan4\"");
+  other.replace(other.find("\"leapfrog\""), 10, "\"symplectic4\"");
   CHECK_THROWS_WITH(scenario::parse_scenario(other, "bad.toml"),
                     Catch::Contains("step_ratio") && Catch::Contains("leapfrog"));
   other.replace(other.find("step_ratio = 2"), 14, "step_ratio = 1");

@@ -38,7 +38,7 @@ TEST_CASE("Epicycles: a nearly circular orbit oscillates radially at kappa and v
   p.resize(1);
   p.x[0] = -R0, p.y[0] = 0, p.z[0] = 0, p.vx[0] = 0.5, p.vy[0] = vc, p.vz[0] = 0.3;
   IntegrationSettings s;
-  s.method = Method::mclachlan4;
+  s.method = Method::symplectic4;
   s.step_myr = 0.25;
   std::vector<double> t, vR, z;
   for (int k = 0; k < 8000; ++k) { // 2 Gyr in steps of 0.25 Myr
@@ -97,7 +97,7 @@ TEST_CASE("Linear response: a cold ring in a weak rotating m = 2 potential devel
     p.vx[i] = vc * std::sin(psi), p.vy[i] = vc * std::cos(psi), p.vz[i] = 0;
   }
   IntegrationSettings s;
-  s.method = Method::mclachlan4;
+  s.method = Method::symplectic4;
   s.step_myr = 0.5;
   REQUIRE(advance(m, p, 0, t_end, s));
   // least-squares fit of v_R = a sin(theta) + b cos(theta) over the ring

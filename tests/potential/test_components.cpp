@@ -207,11 +207,11 @@ std::vector<Case> all_cases() {
   const auto plc_length = [](double alpha, double rc) {
     return [alpha, rc](const V3& p) { return alpha > 0 ? norm(p) : std::hypot(norm(p), 0.2 * rc); };
   };
-  v.push_back(make_case("power-law-cutoff 1e9 1 1.8 1.9", PowerLawCutoff::make(1e9, 1, 1.8, 1.9),
+  v.push_back(make_case("tapered-cusp 1e9 1 1.8 1.9", TaperedCusp::make(1e9, 1, 1.8, 1.9),
                         plc_length(1.8, 1.9)));
-  v.push_back(make_case("power-law-cutoff 2e8 1 0 5", PowerLawCutoff::make(2e8, 1, 0.0, 5.0),
+  v.push_back(make_case("tapered-cusp 2e8 1 0 5", TaperedCusp::make(2e8, 1, 0.0, 5.0),
                         plc_length(0.0, 5.0)));
-  v.push_back(make_case("power-law-cutoff 5e8 2 1 3", PowerLawCutoff::make(5e8, 2, 1.0, 3.0),
+  v.push_back(make_case("tapered-cusp 5e8 2 1 3", TaperedCusp::make(5e8, 2, 1.0, 3.0),
                         plc_length(1.0, 3.0)));
   // Allen & Santillan halo; one with the cut inside the sampled radii (points near it skipped).
   v.push_back(make_case("allen-santillan 1e11 12 2.02 100",
@@ -473,7 +473,7 @@ TEST_CASE("Component::kind() names the shape and every kind is distinct (interfa
       {Nfw::make(1e7, 16), "nfw"},
       {Logarithmic::make(220, 0, 1), "logarithmic"},
       {Burkert::make(1e7, 10), "burkert"},
-      {PowerLawCutoff::make(1e9, 1, 1.8, 1.9), "power-law-cutoff"},
+      {TaperedCusp::make(1e9, 1, 1.8, 1.9), "tapered-cusp"},
       {AllenSantillanHalo::make(1e11, 12, 2.02, 100), "allen-santillan-halo"}};
   for (const auto& [shape, kind] : shapes) {
     const Component comp{"label", shape};
@@ -695,13 +695,13 @@ TEST_CASE(
 }
 
 TEST_CASE("Power law with cut-off: total_mass() = enclosed_mass(r -> inf) = integral of rho, and "
-          "rho(r1) = rho1 exp(-(r1/rc)^2) (definition in power_law_cutoff.hpp, Gauss-Kronrod "
+          "rho(r1) = rho1 exp(-(r1/rc)^2) (definition in tapered_cusp.hpp, Gauss-Kronrod "
           "quadrature)",
           "[components]") {
   const auto [rho1, r1, alpha, rc] =
       GENERATE(std::tuple{1e9, 1.0, 1.8, 1.9}, std::tuple{2e8, 1.0, 0.0, 5.0},
                std::tuple{5e8, 2.0, 1.0, 3.0}, std::tuple{1e10, 0.5, 1.99, 0.8});
-  const auto k = PowerLawCutoff::make(rho1, r1, alpha, rc);
+  const auto k = TaperedCusp::make(rho1, r1, alpha, rc);
   const ComponentShape s = k;
   CHECK(k.density(r1, 0, 0) == Approx(rho1 * std::exp(-(r1 / rc) * (r1 / rc))).epsilon(1e-14));
   CHECK(k.enclosed_mass(20 * rc) == Approx(k.total_mass()).epsilon(1e-14));
@@ -783,10 +783,10 @@ TEST_CASE("Validation: zero, negative, NaN and infinite masses and scales throw 
     CHECK(thrown_key([&] { (void)Logarithmic::make(220, 1.0, bad); }) == "flattening");
     CHECK(thrown_key([&] { (void)Burkert::make(bad, 3.0); }) == "density_msun_kpc3");
     CHECK(thrown_key([&] { (void)Burkert::make(5e7, bad); }) == "core_kpc");
-    CHECK(thrown_key([&] { (void)PowerLawCutoff::make(bad, 1, 1.8, 1.9); }) == "density_msun_kpc3");
-    CHECK(thrown_key([&] { (void)PowerLawCutoff::make(1e9, bad, 1.8, 1.9); }) ==
+    CHECK(thrown_key([&] { (void)TaperedCusp::make(bad, 1, 1.8, 1.9); }) == "density_msun_kpc3");
+    CHECK(thrown_key([&] { (void)TaperedCusp::make(1e9, bad, 1.8, 1.9); }) ==
           "reference_radius_kpc");
-    CHECK(thrown_key([&] { (void)PowerLawCutoff::make(1e9, 1, 1.8, bad); }) == "cutoff_kpc");
+    CHECK(thrown_key([&] { (void)TaperedCusp::make(1e9, 1, 1.8, bad); }) == "cutoff_kpc");
     CHECK(thrown_key([&] { (void)AllenSantillanHalo::make(bad, 12, 2.02, 100); }) == "mass_msun");
     CHECK(thrown_key([&] { (void)AllenSantillanHalo::make(1e11, bad, 2.02, 100); }) == "scale_kpc");
     CHECK(thrown_key([&] { (void)AllenSantillanHalo::make(1e11, 12, bad, 100); }) == "exponent");
@@ -801,12 +801,12 @@ TEST_CASE("Validation: Miyamoto-Nagai a, logarithmic core and power-law slope ac
           "[components]") {
   CHECK_NOTHROW((void)MiyamotoNagai::make(1e10, 0.0, 0.3));
   CHECK_NOTHROW((void)Logarithmic::make(220, 0.0, 1.0));
-  CHECK_NOTHROW((void)PowerLawCutoff::make(1e9, 1, 0.0, 1.9));
+  CHECK_NOTHROW((void)TaperedCusp::make(1e9, 1, 0.0, 1.9));
   for (double bad : bad_non_negative) {
     INFO("bad value " << bad);
     CHECK(thrown_key([&] { (void)MiyamotoNagai::make(1e10, bad, 0.3); }) == "radial_scale_kpc");
     CHECK(thrown_key([&] { (void)Logarithmic::make(220, bad, 1.0); }) == "core_kpc");
-    CHECK(thrown_key([&] { (void)PowerLawCutoff::make(1e9, 1, bad, 1.9); }) == "slope");
+    CHECK(thrown_key([&] { (void)TaperedCusp::make(1e9, 1, bad, 1.9); }) == "slope");
   }
 }
 
@@ -831,9 +831,9 @@ TEST_CASE("Validation: power-law slope alpha >= 2 throws (the mass inside any r 
           "definition of M(r))",
           "[components]") {
   for (double alpha : {2.0, 2.5, 3.0, 10.0})
-    CHECK(thrown_key([&] { (void)PowerLawCutoff::make(1e9, 1, alpha, 1.9); }) == "slope");
+    CHECK(thrown_key([&] { (void)TaperedCusp::make(1e9, 1, alpha, 1.9); }) == "slope");
   for (double alpha : {0.0, 1.0, 1.8, 1.999})
-    CHECK_NOTHROW((void)PowerLawCutoff::make(1e9, 1, alpha, 1.9));
+    CHECK_NOTHROW((void)TaperedCusp::make(1e9, 1, alpha, 1.9));
 }
 
 TEST_CASE("Validation: Allen-Santillan exponent outside (1, 3) throws (M(r) ~ r^gamma at small r "

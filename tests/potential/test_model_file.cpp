@@ -60,8 +60,9 @@ kind = "burkert"
 density_msun_kpc3 = 1e7
 core_kpc = 5
 [[component]]
-kind = "power-law-cutoff"
+kind = "tapered-cusp"
 density_msun_kpc3 = 1e9
+reference_radius_kpc = 1
 slope = 1.8
 cutoff_kpc = 1.9
 [[component]]
@@ -74,7 +75,7 @@ arms = 2
 pitch_deg = 12
 pattern_speed_kms_kpc = 25
 reference_radius_kpc = 8
-amplitude_kms2 = 600
+amplitude_km2_s2 = 600
 [[pattern]]
 kind = "cox-gomez-spiral"
 arms = 2
@@ -83,7 +84,7 @@ pattern_speed_kms_kpc = 20
 reference_radius_kpc = 8
 radial_scale_kpc = 7
 scale_height_kpc = 0.18
-density_msun_pc3 = 0.35
+density_msun_kpc3 = 0.35e9
 [[pattern]]
 kind = "dehnen-bar"
 pattern_speed_kms_kpc = 50
@@ -151,10 +152,10 @@ arms = 2
 pitch_deg = 12
 pattern_speed_kms_kpc = 25
 reference_radius_kpc = 8
-amplitude_kms2 = 600
+amplitude_km2_s2 = 600
 force_ratio = 0.02
 )"),
-               Catch::Contains("exactly one of amplitude_kms2 and force_ratio"));
+               Catch::Contains("exactly one of amplitude_km2_s2 and force_ratio"));
   }
   SECTION("pitch angle out of range") {
     CHECK_THAT(error_of(std::string(hernquist) + R"([[pattern]]
@@ -163,7 +164,7 @@ arms = 2
 pitch_deg = 95
 pattern_speed_kms_kpc = 25
 reference_radius_kpc = 8
-amplitude_kms2 = 600
+amplitude_km2_s2 = 600
 )"),
                Catch::Contains("pattern[1].pitch_deg: must lie in (0, 90)"));
   }
@@ -184,7 +185,7 @@ arms = 2
 pitch_deg = 12
 pattern_speed_kms_kpc = 25
 reference_radius_kpc = 8
-amplitude_kms2 = 600
+amplitude_km2_s2 = 600
 )";
   const auto spiral = [](const potential::Model& m) {
     return std::get<potential::LogSpiral>(m.patterns.at(0).shape);
@@ -229,7 +230,7 @@ kind = "log-spiral"
 arms = 4
 pitch_deg = 20
 reference_radius_kpc = 8.1
-amplitude_kms2 = 300
+amplitude_km2_s2 = 300
 pattern_speed_kms_kpc = )" + std::to_string(speed) +
                                 "\n" + phase_keys,
                             "m.toml");

@@ -52,8 +52,8 @@ std::vector<Pattern> all_patterns() {
   return {
       make_pattern(LogSpiral::make(2, 12, 8, 7, 1.5, 0.4, 900), 25, 20),
       make_pattern(LogSpiral::make(4, 25, 8, INFINITY, 2.0, INFINITY, 500), 20, -40),
-      make_pattern(CoxGomezSpiral::make(2, 15, 8, 7, 0.18, 0.35), 20, 10),
-      make_pattern(CoxGomezSpiral::make(4, 12, 8.3, 7, 0.18, 0.35), 22, 60),
+      make_pattern(CoxGomezSpiral::make(2, 15, 8, 7, 0.18, 0.35e9), 20, 10),
+      make_pattern(CoxGomezSpiral::make(4, 12, 8.3, 7, 0.18, 0.35e9), 22, 60),
       make_pattern(DehnenBar::make(3.5, 3000), 52, 25),
   };
 }

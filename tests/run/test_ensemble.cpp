@@ -94,7 +94,7 @@ TEST_CASE("A run writes one self-describing snapshot file: provenance, model, sn
 TEST_CASE("An interrupted run resumes from its last snapshot and ends with the same bits as an "
           "uninterrupted run, a damaged part is redone",
           "[run]") {
-  for (const std::string method : {"leapfrog", "mclachlan4", "dopri5"}) {
+  for (const std::string method : {"leapfrog", "symplectic4", "dopri5"}) {
     INFO(method);
     const auto d = work("resume-" + method);
     const auto sc = scenario::parse_scenario(scenario_text(method), (d / "small.toml").string());
@@ -132,7 +132,7 @@ TEST_CASE("The kept parts of another scenario's run are never mixed in", "[run]"
   o.on_snapshot = [&](double) { stop = true; };
   REQUIRE_FALSE(run::run_ensemble(sc, o).complete);
   const auto other =
-      scenario::parse_scenario(scenario_text("mclachlan4"), (d / "small.toml").string());
+      scenario::parse_scenario(scenario_text("symplectic4"), (d / "small.toml").string());
   stop = false;
   o.on_snapshot = {};
   CHECK_THROWS_WITH(run::run_ensemble(other, o),

@@ -18,7 +18,8 @@ std::string scenario_text(const std::string& model, const std::string& catalog, 
   return std::string(R"(
 [run]
 name = "injection"
-seed = )") + std::to_string(seed) +
+seed = )") +
+         std::to_string(seed) +
          R"(
 [galaxy]
 model_file = ")" +
@@ -52,7 +53,7 @@ r0_kpc = 8.1
 distance_min_kpc = 0.3
 distance_max_kpc = 6
 parallax_snr_min = 3
-max_sources = )" +
+sources_max = )" +
          std::to_string(sources) + R"(
 [observation.young]
 star_age_myr = [0, 10]
@@ -77,8 +78,9 @@ TEST_CASE("Injection and recovery: other realisations of the spiral truth explai
   const fs::path d = fs::temp_directory_path() / "undertow-injection";
   fs::remove_all(d);
   fs::create_directories(d);
-  const std::string maser_errors = "kind = \"fixed\"\nparallax_mas = 0.02\npm_masyr = 0.08\n"
-                                   "vlsr_kms = 5\n";
+  const std::string maser_errors =
+      "kind = \"fixed\"\nparallax_err_mas = 0.02\npm_err_masyr = 0.08\n"
+      "vlsr_err_kms = 5\n";
   const std::string truth_model = "/demo/truth/galaxy.toml";
   // The "measured" survey: 200 young stars of the truth (seed 31) with maser-like errors.
   const auto truth = scenario::parse_scenario(

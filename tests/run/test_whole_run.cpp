@@ -40,14 +40,14 @@ seed = )" +
 r0_kpc = 8.1
 [observation.selection]
 distance_max_kpc = 6
-max_sources = 120
+sources_max = 120
 [observation.young]
 age_window_myr = 20
 [observation.errors]
 kind = "fixed"
-parallax_mas = 0.01
-pm_masyr = 0.02
-vlsr_kms = 2
+parallax_err_mas = 0.01
+pm_err_masyr = 0.02
+vlsr_err_kms = 2
 [comparison]
 catalog = ")" +
          catalog + R"("
@@ -181,8 +181,9 @@ TEST_CASE("[comparison] verdict keys: realisations, tails, floor and the Sun's a
   CHECK(d.comparison->floor_max_kms == 15);
   CHECK_FALSE(d.comparison->marginalise_sun); // no fit, no widths: fixed, and outputs say so
   CHECK_FALSE(d.comparison->marginalise_r0);
-  const auto m = with("floor_kms = 4\nsun_velocity_err_kms = [1, 3, 0.5]\n"
-                      "r0_nuisance = \"marginalise\"\nr0_err_kpc = 0.2\nverdict_tails = \"robust\"\n");
+  const auto m =
+      with("floor_kms = 4\nsun_velocity_err_kms = [1, 3, 0.5]\n"
+           "r0_nuisance = \"marginalise\"\nr0_err_kpc = 0.2\nverdict_tails = \"robust\"\n");
   CHECK(m.comparison->floor_min_kms == 4);
   CHECK(m.comparison->floor_max_kms == 4);
   CHECK(m.comparison->marginalise_sun);

@@ -36,7 +36,7 @@ struct Snapshot {
 };
 
 // Flag bits per tracer.
-inline constexpr std::uint32_t kFlagOutsideRange = 1u << 0; // beyond max_radius_kpc
+inline constexpr std::uint32_t kFlagOutsideRange = 1u << 0; // beyond radius_max_kpc
 inline constexpr std::uint32_t kFlagLargeError = 1u << 1;   // invariant error above 1e-6
 inline constexpr std::uint32_t kFlagStar = 1u << 2;         // a star formed in the run's gas
 

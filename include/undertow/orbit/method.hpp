@@ -6,9 +6,9 @@ namespace undertow::orbit {
 
 enum class Method {
   leapfrog,      // velocity Verlet (kick-drift-kick), 2nd order, symplectic, fixed step
-  mclachlan4,    // McLachlan's (1995) 4th-order symplectic RKN, six stages, fixed step
+  symplectic4,   // McLachlan's (1995) 4th-order symplectic RKN, six stages, fixed step
   dopri5,        // Dormand-Prince 5(4), adaptive
-  fehlberg78,    // Runge-Kutta-Fehlberg 7(8), adaptive
+  rk78,          // Runge-Kutta-Fehlberg 7(8), adaptive
   bulirsch_stoer // Bulirsch-Stoer extrapolation, adaptive
 };
 

@@ -12,12 +12,12 @@
 #include "undertow/potential/nfw.hpp"
 #include "undertow/potential/plummer.hpp"
 #include "undertow/potential/point_mass.hpp"
-#include "undertow/potential/power_law_cutoff.hpp"
+#include "undertow/potential/tapered_cusp.hpp"
 
 namespace undertow::potential {
 
 using ComponentShape = std::variant<PointMass, Plummer, Hernquist, Isochrone, MiyamotoNagai, Nfw,
-                                    Logarithmic, Burkert, PowerLawCutoff, AllenSantillanHalo>;
+                                    Logarithmic, Burkert, TaperedCusp, AllenSantillanHalo>;
 
 struct Component {
   std::string label; // the user's name for it ("bulge", "disk", ...), unique in a model

@@ -28,7 +28,7 @@ struct CoxGomezSpiral {
   double pref = 0;                   // 4 pi G H rho0, (km/s)^2
 
   static CoxGomezSpiral make(int arms, double pitch_deg, double r0_kpc, double rs_kpc, double h_kpc,
-                             double rho0_msun_pc3) {
+                             double rho0_msun_kpc3) {
     if (arms < 1 || arms > 16)
       throw detail::ParameterError("arms", "must be a whole number from 1 to 16, got " +
                                                std::to_string(arms));
@@ -44,7 +44,7 @@ struct CoxGomezSpiral {
     s.r0 = detail::positive(r0_kpc, "reference_radius_kpc");
     s.inv_rs = 1 / detail::positive(rs_kpc, "radial_scale_kpc");
     s.H = detail::positive(h_kpc, "scale_height_kpc");
-    const double rho0 = detail::positive(rho0_msun_pc3, "density_msun_pc3") * units::msun_pc3;
+    const double rho0 = detail::positive(rho0_msun_kpc3, "density_msun_kpc3");
     s.pref = 4 * units::pi * units::G * s.H * rho0;
     return s;
   }

@@ -17,7 +17,7 @@ struct DehnenBar {
   double rb = 3;  // bar radius, kpc
 
   static DehnenBar make(double rb_kpc, double amplitude_kms2) {
-    return {detail::finite(amplitude_kms2, "amplitude_kms2"),
+    return {detail::finite(amplitude_kms2, "amplitude_km2_s2"),
             detail::positive(rb_kpc, "bar_radius_kpc")};
   }
   // Dehnen's strength alpha = 3 (A_f / v0^2) (r_b / R0)^3 with v0 the circular speed at R0.

@@ -70,7 +70,7 @@ struct LogSpiral {
       throw detail::ParameterError("scale_height_kpc",
                                    "must be positive, got " + detail::num(height_kpc));
     s.inv_h = 1 / height_kpc;
-    s.amp = detail::finite(amplitude_kms2, "amplitude_kms2");
+    s.amp = detail::finite(amplitude_kms2, "amplitude_km2_s2");
     s.norm = (s.rref * s.rref + s.rin2) / (s.rref * s.rref);
     s.log_rref = std::log(s.rref);
     s.rout = detail::positive(outer_kpc, "outer_radius_kpc");

@@ -1,12 +1,11 @@
-#include "undertow/potential/power_law_cutoff.hpp"
+#include "undertow/potential/tapered_cusp.hpp"
 
 #include <boost/math/special_functions/gamma.hpp>
 
 namespace undertow::potential {
 
-PowerLawCutoff PowerLawCutoff::make(double rho1_msun_kpc3, double r1_kpc, double alpha,
-                                    double rc_kpc) {
-  PowerLawCutoff b;
+TaperedCusp TaperedCusp::make(double rho1_msun_kpc3, double r1_kpc, double alpha, double rc_kpc) {
+  TaperedCusp b;
   b.rho1 = detail::positive(rho1_msun_kpc3, "density_msun_kpc3");
   b.r1 = detail::positive(r1_kpc, "reference_radius_kpc");
   b.alpha = detail::non_negative(alpha, "slope");
@@ -17,18 +16,18 @@ PowerLawCutoff PowerLawCutoff::make(double rho1_msun_kpc3, double r1_kpc, double
   return b;
 }
 
-double PowerLawCutoff::mass_at(double r) const {
+double TaperedCusp::mass_at(double r) const {
   const double x = (r / rc) * (r / rc);
   return 2 * units::pi * rho1 * std::pow(r1, alpha) * std::pow(rc, 3 - alpha) *
          boost::math::tgamma_lower(1.5 - 0.5 * alpha, x);
 }
 
-double PowerLawCutoff::total_mass() const {
+double TaperedCusp::total_mass() const {
   return 2 * units::pi * rho1 * std::pow(r1, alpha) * std::pow(rc, 3 - alpha) *
          boost::math::tgamma(1.5 - 0.5 * alpha);
 }
 
-double PowerLawCutoff::potential_at_radius(double r) const {
+double TaperedCusp::potential_at_radius(double r) const {
   const double x = (r / rc) * (r / rc);
   const double outer = 2 * units::pi * units::G * rho1 * std::pow(r1, alpha) *
                        std::pow(rc, 2 - alpha) * boost::math::tgamma(1 - 0.5 * alpha, x);

@@ -9,15 +9,15 @@
 
 namespace undertow::potential {
 
-struct PowerLawCutoff {
-  static constexpr const char* kind = "power-law-cutoff";
+struct TaperedCusp {
+  static constexpr const char* kind = "tapered-cusp";
   static constexpr bool vanishes_at_infinity = true;
   double rho1 = 0;  // Msun/kpc^3 at r1
   double r1 = 1;    // kpc
   double alpha = 1; // inner slope, 0 <= alpha < 2
   double rc = 1;    // kpc
 
-  static PowerLawCutoff make(double rho1_msun_kpc3, double r1_kpc, double alpha, double rc_kpc);
+  static TaperedCusp make(double rho1_msun_kpc3, double r1_kpc, double alpha, double rc_kpc);
 
   double mass_at(double r) const; // Msun
   double potential_at_radius(double r) const;
