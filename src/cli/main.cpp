@@ -127,8 +127,10 @@ int run_integrate(const IntegrateArgs& a) {
 struct ResidualArgs {
   std::string catalog, model, prefix, columns;
   std::optional<double> flat_theta0;
-  double slope = 0;
-  double r0 = 8.1, z_sun = 0.0;
+  std::vector<double> linear;  // THETA0, SLOPE
+  std::optional<double> slope; // gone: refused, naming --linear
+  std::optional<double> r0;
+  double z_sun = 0.0;
   std::optional<double> theta0;
   std::vector<double> solar{11.1, 12.24, 7.25};
   std::string distance = "inverse", lsr = "apex";
@@ -158,7 +160,6 @@ galactic_of(const std::shared_ptr<const undertow::fit::KinematicModel>& mp,
 int run_residuals(const ResidualArgs& a) {
   using namespace undertow;
   residuals::ResidualSettings s;
-  s.sun.r0_kpc = a.r0;
   s.sun.z_sun_kpc = a.z_sun;
   s.sun.u_sun_kms = a.solar[0], s.sun.v_sun_kms = a.solar[1], s.sun.w_sun_kms = a.solar[2];
   std::string rot;
@@ -167,7 +168,7 @@ int run_residuals(const ResidualArgs& a) {
   std::optional<potential::Model> model;
   if (!a.galactic_from.empty()) {
     for (const char* o :
-         {"--model", "--flat", "--slope", "--r0", "--z-sun", "--theta0", "--solar-motion"})
+         {"--model", "--flat", "--linear", "--r0", "--z-sun", "--theta0", "--solar-motion"})
       if (a.cmd->count(o))
         throw InputError(std::string(o) + " cannot be combined with --galactic-from (the fit "
                                           "gives the Galactic parameters)");
@@ -199,23 +200,41 @@ int run_residuals(const ResidualArgs& a) {
           "; rotation curve " + fit::rotation_form_name(g.model.rotation) + ")";
   } else if (a.marginalise) {
     throw InputError("--marginalise needs --galactic-from FIT.h5");
-  } else if (!a.model.empty()) {
-    model = potential::load_model_file(a.model);
-    s.rotation.kind = residuals::RotationCurve::Kind::model;
-    s.rotation.model = [&](double R) { return dynamics::circular_speed(*model, R); };
-    s.sun.theta0_kms = a.theta0 ? *a.theta0 : dynamics::circular_speed(*model, a.r0);
-    rot = "model " + a.model + ", fixed Galactic parameters";
-  } else if (a.flat_theta0) {
-    s.rotation.kind = a.slope != 0 ? residuals::RotationCurve::Kind::linear
-                                   : residuals::RotationCurve::Kind::flat;
-    s.rotation.theta0_kms = *a.flat_theta0;
-    s.rotation.r0_kpc = a.r0;
-    s.rotation.slope_kms_kpc = a.slope;
-    s.sun.theta0_kms = a.theta0 ? *a.theta0 : *a.flat_theta0;
-    rot = "Theta(R) = " + std::to_string(*a.flat_theta0) + " + " + std::to_string(a.slope) +
-          " (R - R0) km/s, fixed Galactic parameters";
   } else {
-    throw InputError("give a rotation curve: --model FILE or --flat THETA0_KMS");
+    if (a.slope)
+      throw InputError("--slope is gone: give a linear curve as --linear THETA0,SLOPE (km/s, "
+                       "km/s/kpc); --flat THETA0 is flat");
+    if (!a.r0)
+      throw InputError("give --r0 KPC, the Sun's distance from the centre (no default: a galaxy "
+                       "model is built for its own R0, and the peculiar motions depend on it)");
+    s.sun.r0_kpc = *a.r0;
+    const int curves = int(!a.model.empty()) + int(bool(a.flat_theta0)) + int(!a.linear.empty());
+    if (curves != 1)
+      throw InputError("give one rotation curve: --model FILE, --flat THETA0 or --linear "
+                       "THETA0,SLOPE");
+    if (!a.model.empty()) {
+      model = potential::load_model_file(a.model);
+      s.rotation.kind = residuals::RotationCurve::Kind::model;
+      s.rotation.model = [&](double R) { return dynamics::circular_speed(*model, R); };
+      s.sun.theta0_kms = a.theta0 ? *a.theta0 : dynamics::circular_speed(*model, *a.r0);
+      rot = "model " + a.model + (a.theta0 ? ", Theta0 given" : ", Theta0 = v_c(R0)") +
+            ", fixed Galactic parameters";
+    } else {
+      if (a.theta0)
+        throw InputError("--theta0 goes with --model; with --flat or --linear the curve's value "
+                         "at R0 is Theta0");
+      const bool lin = !a.linear.empty();
+      const double theta0 = lin ? a.linear[0] : *a.flat_theta0, slope = lin ? a.linear[1] : 0.0;
+      s.rotation.kind =
+          lin ? residuals::RotationCurve::Kind::linear : residuals::RotationCurve::Kind::flat;
+      s.rotation.theta0_kms = theta0;
+      s.rotation.r0_kpc = *a.r0;
+      s.rotation.slope_kms_kpc = slope;
+      s.sun.theta0_kms = theta0;
+      rot = lin ? "Theta(R) = " + detail::num(theta0) + " + " + detail::num(slope) +
+                      " (R - R0) km/s, fixed Galactic parameters"
+                : "Theta(R) = " + detail::num(theta0) + " km/s (flat), fixed Galactic parameters";
+    }
   }
   s.distance = residuals::distance_from_name(a.distance);
   s.edsd_length_kpc = a.edsd_length;
@@ -256,6 +275,7 @@ int run_residuals(const ResidualArgs& a) {
   const std::string prefix =
       a.prefix.empty() ? std::filesystem::path(a.catalog).stem().string() + "-residuals" : a.prefix;
   const auto files = residuals::write_report(prefix, res, sum, settings);
+  std::cout << "with " << settings << "\n\n";
   io::write_table(std::cout, residuals::summary_table(sum), io::TableFormat::markdown);
   for (const auto& e : res.excluded)
     std::cout << "left out: " << e << "\n";
@@ -447,11 +467,18 @@ int main(int argc, char** argv) {
       app.add_subcommand("residuals", "Peculiar motions (U_s, V_s, W_s) of a measured catalog's "
                                       "sources, with Monte Carlo and first-order errors, and "
                                       "their mean and dispersion with bootstrap errors");
-  rs->add_option("catalog", ra.catalog, "Catalog (CSV, docs/catalog-format.md)")->required();
+  rs->add_option("catalog", ra.catalog, "Catalog: CSV, ECSV or FITS (docs/catalog-format.md)")
+      ->required();
   rs->add_option("--model", ra.model, "Galaxy model file: Theta(R) is its circular speed");
   rs->add_option("--flat", ra.flat_theta0, "Flat rotation curve Theta(R) = THETA0, km/s");
-  rs->add_option("--slope", ra.slope, "With --flat: dTheta/dR, km/s/kpc")->capture_default_str();
-  rs->add_option("--r0", ra.r0, "Sun's distance from the centre R0, kpc")->capture_default_str();
+  rs->add_option("--linear", ra.linear,
+                 "Linear rotation curve Theta(R) = THETA0 + SLOPE (R - R0): THETA0,SLOPE in "
+                 "km/s and km/s/kpc")
+      ->delimiter(',')
+      ->expected(2);
+  rs->add_option("--slope", ra.slope)->group(""); // gone; refused naming --linear
+  rs->add_option("--r0", ra.r0,
+                 "Sun's distance from the centre R0, kpc (required unless --galactic-from)");
   rs->add_option("--z-sun", ra.z_sun, "Sun's height above the plane, kpc")->capture_default_str();
   rs->add_option("--theta0", ra.theta0,
                  "Circular speed at the Sun, km/s (default: from the rotation curve)");

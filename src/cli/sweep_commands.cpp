@@ -330,8 +330,10 @@ void add_sweep_commands(CLI::App& app, SweepArgs& a) {
   a.gather->add_option("plan", a.folder, "Plan folder")->required();
   add_figure_options(*a.gather, a.figures);
   a.gather->add_option("--sort", a.sort,
-                       "Statistic to sort by (default: delta_log_likelihood "
-                       "with a reference model, else log_likelihood)");
+                       "Statistic to sort by: a numeric swept parameter's key path, or one of " +
+                           sweep::sortable_statistics() +
+                           " (default: delta_log_likelihood with a reference model, else "
+                           "log_likelihood)");
   a.gather->add_option("--order", a.order, "ascending or descending (default: best first)")
       ->check(CLI::IsMember({"ascending", "descending"}));
   a.gather->add_flag("--partial", a.partial, "Gather even when points are missing or failed");

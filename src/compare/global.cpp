@@ -114,19 +114,19 @@ io::Table global_table(const GlobalComparison& g) {
   io::Table t;
   t.title = "Measured vs simulated peculiar motions";
   t.label_header = "subset";
-  t.columns = {{"n_meas", "N_{\\rm obs}", "N_obs", "", 6},
+  t.columns = {{"n_meas", "N_{\\rm meas}", "N_meas", "", 6},
                {"n_sim", "N_{\\rm sim}", "N_sim", "", 6},
-               {"mean_meas_kms", "\\langle v\\rangle_{\\rm obs}", "mean_obs", "km/s", 4},
+               {"mean_meas_kms", "\\langle v\\rangle_{\\rm meas}", "mean_meas", "km/s", 4},
                {"mean_meas_err_kms", "\\pm", "±", "km/s", 3},
                {"mean_sim_kms", "\\langle v\\rangle_{\\rm sim}", "mean_sim", "km/s", 4},
                {"mean_sim_err_kms", "\\pm", "±", "km/s", 3},
                {"difference_kms", "\\Delta", "Δ", "km/s", 4},
                {"significance", "\\Delta/\\sigma_\\Delta", "Δ/σ", "", 3},
-               {"median_meas_kms", "{\\rm med}_{\\rm obs}", "med_obs", "km/s", 4},
+               {"median_meas_kms", "{\\rm med}_{\\rm meas}", "med_meas", "km/s", 4},
                {"median_sim_kms", "{\\rm med}_{\\rm sim}", "med_sim", "km/s", 4},
-               {"sigma_meas_kms", "\\sigma_{\\rm obs}", "σ_obs", "km/s", 4},
+               {"sigma_meas_kms", "\\sigma_{\\rm meas}", "σ_meas", "km/s", 4},
                {"sigma_sim_kms", "\\sigma_{\\rm sim}", "σ_sim", "km/s", 4},
-               {"robust_sigma_meas_kms", "\\sigma^{\\rm MAD}_{\\rm obs}", "σMAD_obs", "km/s", 4},
+               {"robust_sigma_meas_kms", "\\sigma^{\\rm MAD}_{\\rm meas}", "σMAD_meas", "km/s", 4},
                {"robust_sigma_sim_kms", "\\sigma^{\\rm MAD}_{\\rm sim}", "σMAD_sim", "km/s", 4},
                {"ks_p", "p_{\\rm KS}", "p_KS", "", 3},
                {"ad_p", "p_{\\rm AD}", "p_AD", "", 3}};

@@ -622,7 +622,7 @@ io::Table compare_runs(const std::vector<std::string>& folders) {
                {"delta_sources_err", "\\sigma_{\\rm src}", "σ_src", "", 3},
                {"delta_realisations_err", "\\sigma_{\\rm real}", "σ_real", "", 3},
                {"delta_significance", "\\Delta/\\sigma_\\Delta", "Δ/σ_Δ", "", 3},
-               {"mean_V_measured_kms", "\\langle V_s\\rangle_{\\rm obs}", "⟨V_s⟩_obs", "km/s", 4},
+               {"mean_V_measured_kms", "\\langle V_s\\rangle_{\\rm meas}", "⟨V_s⟩_meas", "km/s", 4},
                {"mean_V_simulated_kms", "\\langle V_s\\rangle_{\\rm sim}", "⟨V_s⟩_sim", "km/s", 4},
                {"mean_V_significance", "\\Delta V/\\sigma", "ΔV/σ", "", 3}};
   std::string first_catalog, first_sun, first_selection, first_verdict, first_judged;

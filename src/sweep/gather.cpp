@@ -48,22 +48,44 @@ const Stat stats[] = {
      [](R r, double) { return r.mean_simulated[0]; }},
     {"mean_V_simulated_kms", "\\langle V_s\\rangle_{\\rm sim}", "⟨V_s⟩_sim", "km/s", 4, false,
      [](R r, double) { return r.mean_simulated[1]; }},
-    {"mean_V_measured_kms", "\\langle V_s\\rangle_{\\rm obs}", "⟨V_s⟩_obs", "km/s", 4, false,
+    {"mean_V_measured_kms", "\\langle V_s\\rangle_{\\rm meas}", "⟨V_s⟩_meas", "km/s", 4, false,
      [](R r, double) { return r.mean_measured[1]; }},
-    {"V_significance", "\\Delta V/\\sigma", "ΔV/σ", "", 3, false,
+    {"mean_V_significance", "\\Delta V/\\sigma", "ΔV/σ", "", 3, false,
      [](R r, double) { return r.significance[1]; }},
 };
+
+} // namespace
+
+std::string sortable_statistics() {
+  std::string list = "number";
+  for (const auto& s : stats)
+    list += std::string(", ") + s.name;
+  return list;
+}
+
+namespace {
 
 // A swept value as a number (NaN for the reference, which has none).
 double parameter_value(const Point& q, std::size_t j) {
   return q.reference ? NAN : q.values.get(j)->value<double>().value_or(NAN);
 }
 
-// Units from the key's suffix, the naming rule of every undertow file (docs/conventions.md).
+// Units from the key's suffix, the naming rule of every undertow file (docs/conventions.md):
+// every suffix a key or column of ours ends in, longest first where one ends another.
 std::string unit_of(const std::string& key) {
-  static const std::pair<const char*, const char*> suffixes[] = {
-      {"_kms_kpc", "km/s/kpc"}, {"_kms", "km/s"},  {"_kpc", "kpc"},       {"_deg", "deg"},
-      {"_myr", "Myr"},          {"_msun", "Msun"}, {"_mas_yr", "mas/yr"}, {"_mas", "mas"}};
+  static const std::pair<const char*, const char*> suffixes[] = {{"_kms_kpc", "km/s/kpc"},
+                                                                 {"_km2_s2", "(km/s)^2"},
+                                                                 {"_msun_kpc3", "Msun/kpc^3"},
+                                                                 {"_msun_pc3", "Msun/pc^3"},
+                                                                 {"_kms", "km/s"},
+                                                                 {"_kpc", "kpc"},
+                                                                 {"_deg", "deg"},
+                                                                 {"_gyr", "Gyr"},
+                                                                 {"_myr", "Myr"},
+                                                                 {"_msun", "Msun"},
+                                                                 {"_masyr", "mas/yr"},
+                                                                 {"_mas_yr", "mas/yr"},
+                                                                 {"_mas", "mas"}};
   for (const auto& [s, u] : suffixes) {
     const std::string sf(s);
     if (key.size() > sf.size() && key.compare(key.size() - sf.size(), sf.size(), sf) == 0) return u;

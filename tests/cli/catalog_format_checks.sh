@@ -34,11 +34,11 @@ r.rename_columns(["name", "ra_deg", "parallax_mas", "parallax_err_mas", "pmra_ma
 r.write("renamed/kestrel", format="fits")
 PY
 
-common=(--model "$src/potentials/kestrel.toml" --r0 8.1 --draws 200 --bootstrap 200 -o res)
+common=(--model "$src/potentials/kestrel.toml" --r0 8.1 --draws 200 --bootstrap 200)
 for d in csv ecsv fits; do
-  (cd $d && "$undertow" residuals kestrel "${common[@]}" > log 2>&1) || { cat $d/log; fail "residuals on the $d catalog"; }
+  (cd $d && "$undertow" residuals kestrel "${common[@]}" -o res > log 2>&1) || { cat $d/log; fail "residuals on the $d catalog"; }
 done
-(cd renamed && "$undertow" residuals kestrel "${common[@]}" --columns name=maser > log 2>&1) ||
+(cd renamed && "$undertow" residuals kestrel "${common[@]}" -o res --columns name=maser > log 2>&1) ||
   { cat renamed/log; fail "residuals on the renamed catalog"; }
 for d in ecsv fits renamed; do
   for f in res-sources.csv res-sources.ecsv res-sources.md res-sources.tex res-sources.fits \
@@ -70,9 +70,9 @@ expect_error() { # name, pattern, command...
   ! ls bad-* > /dev/null 2>&1 || fail "$name: output written"
 }
 expect_error "FITS without a table" "image.fits.*without a binary table" \
-  "$undertow" residuals image.fits "${common[@]/res/bad}"
+  "$undertow" residuals image.fits "${common[@]}" -o bad
 expect_error "column map naming a missing column" "kestrel:[0-9]*: PLX: the column map" \
-  "$undertow" residuals ../csv/kestrel "${common[@]/res/bad}" --columns parallax_mas=PLX
+  "$undertow" residuals ../csv/kestrel "${common[@]}" -o bad --columns parallax_mas=PLX
 expect_error "ECSV column in arcsec" "arcsec.ecsv:[0-9]*: parallax_mas: unit 'arcsec'" \
-  "$undertow" residuals arcsec.ecsv "${common[@]/res/bad}"
+  "$undertow" residuals arcsec.ecsv "${common[@]}" -o bad
 echo "bad catalogs: one line each naming the file and column, exit 2, nothing written"

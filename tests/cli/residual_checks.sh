@@ -56,6 +56,8 @@ for f in mock-res-sources.csv mock-res-summary.md mock-res-summary.tex mock-res.
   [ -s "$f" ] || fail "missing $f"
 done
 grep -q "| all | 150 |" res.log || fail "summary lacks 150 sources: $(head -5 res.log)"
+grep -q "^with R0 = 8.1 kpc, z_sun = 0 kpc, Theta0 = .* km/s, solar motion (11.1, 12.24, 7.25) km/s" res.log ||
+  fail "the solar parameters used are not printed: $(head -3 res.log)"
 /usr/bin/python3 - <<'PY' || fail "the residual HDF5 file is not as documented"
 import h5py
 with h5py.File("mock-res.h5") as f:
@@ -79,15 +81,31 @@ grep -q "typo.toml:8:1: selection.source_max: unknown key" t.log || fail "unclea
 echo "   $(cat t.log)"
 
 echo "-- a catalog whose sources all fail the parallax cut"
-if "$undertow" residuals mock.csv --flat 230 --min-parallax-snr 1e6 -o none > n.log 2>&1; then fail "no error"; fi
+if "$undertow" residuals mock.csv --flat 230 --r0 8.1 --min-parallax-snr 1e6 -o none > n.log 2>&1; then fail "no error"; fi
 grep -q "no source is left after the selection; nothing written" n.log || fail "unclear: $(cat n.log)"
 [ -e none-summary.csv ] && fail "tables written for an empty selection"
 echo "   $(tail -1 n.log)"
 
 echo "-- a bad catalog row"
 { head -3 mock.csv; echo "X1,10,20,0.5,-0.05,-1,0.1,-2,0.1,30,5,0,"; } > bad.csv
-if "$undertow" residuals bad.csv --flat 230 -o bad > b.log 2>&1; then fail "no error"; fi
+if "$undertow" residuals bad.csv --flat 230 --r0 8.1 -o bad > b.log 2>&1; then fail "no error"; fi
 grep -q "bad.csv:4: parallax_err_mas: errors must be positive" b.log || fail "unclear: $(cat b.log)"
 [ "$(wc -l < b.log)" -eq 1 ] || fail "error is not one line"
 echo "   $(cat b.log)"
+echo "-- the Galactic parameters said, never guessed"
+one_line_error() { # pattern, command...
+  local pattern=$1; shift
+  if "$@" > o.log 2> o.err; then fail "no error: $*"; fi
+  [ "$(wc -l < o.err)" -eq 1 ] && grep -q -- "$pattern" o.err || fail "unclear: $(cat o.err)"
+  echo "   $(cat o.err)"
+}
+one_line_error "give --r0 KPC" "$undertow" residuals mock.csv --model "$src/potentials/kestrel.toml" -o x
+one_line_error "give a linear curve as --linear THETA0,SLOPE" \
+  "$undertow" residuals mock.csv --flat 230 --slope -2 --r0 8.1 -o x
+one_line_error "give one rotation curve" "$undertow" residuals mock.csv --flat 230 --linear 230,-2 --r0 8.1 -o x
+one_line_error "the curve's value at R0 is Theta0" \
+  "$undertow" residuals mock.csv --flat 230 --theta0 240 --r0 8.1 -o x
+[ -e x-summary.csv ] && fail "tables written for refused options"
+"$undertow" residuals mock.csv --linear 230,-2 --r0 8.1 -o lin > lin.log 2>&1 || fail "a linear curve: $(cat lin.log)"
+grep -q "Theta(R) = 230 + -2 (R - R0) km/s" lin.log || fail "the linear curve is not said: $(head -2 lin.log)"
 echo "residual checks: all passed"

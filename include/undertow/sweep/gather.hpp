@@ -31,5 +31,7 @@ struct GatherReport {
 };
 
 GatherReport gather(const Plan& p, const GatherOptions& o);
+// The statistics gather sorts by (besides any numeric swept parameter), for help texts.
+std::string sortable_statistics();
 
 } // namespace undertow::sweep
