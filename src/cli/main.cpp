@@ -50,7 +50,7 @@ struct TabulateArgs {
 int run_tabulate(const TabulateArgs& a) {
   using namespace undertow;
   const potential::Model model = potential::load_model_file(a.model_path);
-  const auto table =
+  auto table =
       dynamics::model_profile(model, dynamics::radius_grid(a.from, a.to, a.step), a.escape_to);
   const auto fmt = io::table_format_from_name(a.format);
   std::string summary;
@@ -74,7 +74,10 @@ int run_tabulate(const TabulateArgs& a) {
         std::cout << (fmt == io::TableFormat::csv || fmt == io::TableFormat::ecsv ? "# " : "") << l
                   << "\n";
     }
-  } else {
+  } else { // the resonances go into the file too, as its notes
+    std::istringstream lines(summary);
+    for (std::string l; std::getline(lines, l);)
+      if (!l.empty()) table.notes.push_back(l);
     io::write_table_file(a.output, table, fmt);
     std::cout << "wrote " << a.output << " (" << table.rows.size() << " radii)\n" << summary;
   }

@@ -31,6 +31,8 @@ for f in galaxy-profile.md versus.md spiral/summary.txt spiral/comparison-global
          axisymmetric/summary.txt axisymmetric/measured-residuals-summary.md; do
   [ -s "$work/demo/$f" ] || fail "demo output $f missing"
 done
+grep -q "corotation .* 10.669 kpc" "$work/demo/galaxy-profile.md" ||
+  fail "galaxy-profile.md does not list the resonances"
 # The spiral row of the model-vs-model table: Delta ln L (column 7) beyond twice its uncertainty
 # (column 8), and the verdict says so.
 dll=$(awk -F'|' '$2 ~ /^ *spiral *$/ {gsub(/ /, "", $7); print $7}' "$work/demo/versus.md")
