@@ -437,8 +437,7 @@ int main(int argc, char** argv) {
   t->add_option("--step", tab.step, "Radius step, kpc")->capture_default_str();
   t->add_option("--format", tab.format,
                 "Table format: csv, ecsv, fits (needs -o), markdown or latex")
-      ->check(CLI::IsMember(std::vector<std::string>(std::begin(undertow::io::kTableFormatNames),
-                                                     std::end(undertow::io::kTableFormatNames))))
+      ->check(CLI::IsMember(undertow::io::table_format_names()))
       ->capture_default_str();
   t->add_option("-o,--output", tab.output, "Write the table to this file (default: stdout)");
   t->add_option("--pattern-speed", tab.pattern_speed,
@@ -594,8 +593,7 @@ int main(int argc, char** argv) {
       ->capture_default_str();
   afc->add_option("--format", af.format,
                   "Table format: csv, ecsv, fits (needs -o), markdown or latex")
-      ->check(CLI::IsMember(std::vector<std::string>(std::begin(undertow::io::kTableFormatNames),
-                                                     std::end(undertow::io::kTableFormatNames))))
+      ->check(CLI::IsMember(undertow::io::table_format_names()))
       ->capture_default_str();
   afc->add_option("-o,--output", af.output, "Write the table to this file (default: stdout)");
   afc->add_option("--clouds", af.clouds,

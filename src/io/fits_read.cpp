@@ -1,5 +1,4 @@
-#include <fitsio.h>
-
+#include "undertow/io/fits_status.hpp"
 #include "undertow/io/input_table.hpp"
 #include "undertow/io/table.hpp"
 
@@ -13,13 +12,6 @@ struct Closer {
     if (f) fits_close_file(f, &s);
   }
 };
-
-std::string status_text(int status) {
-  char text[FLEN_STATUS];
-  fits_get_errstatus(status, text);
-  fits_clear_errmsg();
-  return text;
-}
 } // namespace
 
 InputTable read_fits_table(const std::string& path) {
@@ -29,14 +21,14 @@ InputTable read_fits_table(const std::string& path) {
   Closer c;
   int st = 0;
   if (fits_open_file(&c.f, path.c_str(), READONLY, &st))
-    throw fail("", "cannot read it as FITS: " + status_text(st));
+    throw fail("", "cannot read it as FITS: " + fits_status_text(st));
   // The first binary table (a catalog is one table; an ASCII table is not read).
   int hdus = 0, type = 0;
   fits_get_num_hdus(c.f, &hdus, &st);
   int table = 0;
   for (int h = 1; h <= hdus && table == 0 && st == 0; ++h)
     if (fits_movabs_hdu(c.f, h, &type, &st) == 0 && type == BINARY_TBL) table = h;
-  if (st) throw fail("", "cannot read it as FITS: " + status_text(st));
+  if (st) throw fail("", "cannot read it as FITS: " + fits_status_text(st));
   if (table == 0)
     throw fail("", "a FITS file without a binary table (" + std::to_string(hdus) +
                        " HDU(s), none a BINTABLE): a catalog is a binary-table extension");
@@ -95,7 +87,7 @@ InputTable read_fits_table(const std::string& path) {
         data[std::size_t(r)][std::size_t(k - 1)] =
             null[std::size_t(r)] ? "" : exact_number(v[std::size_t(r)]);
     }
-    if (st) throw fail(names.back(), "cannot read the column: " + status_text(st));
+    if (st) throw fail(names.back(), "cannot read the column: " + fits_status_text(st));
   }
   t.set_header(names, units, 0);
   for (long r = 0; r < rows; ++r)

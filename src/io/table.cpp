@@ -58,13 +58,19 @@ std::string exact_number(double v) {
   return std::string(b, r.ptr);
 }
 
-std::string csv_field(const std::string& s) {
-  if (s.find_first_of(",\"\n\r") == std::string::npos &&
-      (s.empty() || (s.front() != ' ' && s.back() != ' ')))
+std::string delimited_field(const std::string& s, char delimiter) {
+  const bool spaced = delimiter == ' ';
+  const std::string special = std::string(1, delimiter) + (spaced ? "\"\n\r\t" : "\"\n\r");
+  if (s.find_first_of(special) == std::string::npos &&
+      (spaced ? !s.empty() : s.empty() || (s.front() != ' ' && s.back() != ' ')))
     return s;
   std::string q = "\"";
-  for (char c : s)
-    q += c == '"' ? std::string("\"\"") : std::string(1, c);
+  for (char c : s) {
+    if (c == '"')
+      q += "\"\"";
+    else
+      q += spaced && (c == '\n' || c == '\r') ? ' ' : c;
+  }
   return q + "\"";
 }
 
@@ -124,7 +130,7 @@ std::string header(const Column& c, bool latex) {
 } // namespace
 
 void write_table(std::ostream& os, const Table& t, TableFormat f) {
-  const bool labels = !t.label_header.empty() && t.row_labels.size() == t.rows.size();
+  const bool labels = t.has_row_labels();
   const auto cell = [&](std::size_t r, std::size_t c) {
     return format_number(t.rows[r][c], t.columns[c].precision);
   };
@@ -133,12 +139,12 @@ void write_table(std::ostream& os, const Table& t, TableFormat f) {
     if (!t.title.empty()) os << "# " << t.title << "\n";
     for (const auto& n : t.notes)
       os << "# " << n << "\n";
-    if (labels) os << csv_field(t.label_header) << ",";
+    if (labels) os << delimited_field(t.label_header, ',') << ",";
     for (std::size_t c = 0; c < t.columns.size(); ++c)
-      os << (c ? "," : "") << csv_field(t.columns[c].name);
+      os << (c ? "," : "") << delimited_field(t.columns[c].name, ',');
     os << "\n";
     for (std::size_t r = 0; r < t.rows.size(); ++r) {
-      if (labels) os << csv_field(t.row_labels[r]) << ",";
+      if (labels) os << delimited_field(t.row_labels[r], ',') << ",";
       for (std::size_t c = 0; c < t.columns.size(); ++c)
         os << (c ? "," : "") << exact_number(t.rows[r][c]);
       os << "\n";

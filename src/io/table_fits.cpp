@@ -3,11 +3,10 @@
 #include <algorithm>
 #include <cstring>
 #include <filesystem>
-#include <fitsio.h>
-#include <memory>
 
 #include "undertow/error.hpp"
 #include "undertow/io/atomic_file.hpp"
+#include "undertow/io/fits_status.hpp"
 #include "undertow/io/unit_notation.hpp"
 
 namespace undertow::io {
@@ -59,11 +58,8 @@ public:
   fitsfile* file() { return f_; }
   void check(int) {
     if (status_ == 0) return;
-    char text[FLEN_STATUS];
-    fits_get_errstatus(status_, text);
-    fits_clear_errmsg();
     throw InputError(SourcePlace{target_, 0, 0, {}},
-                     std::string("cannot write the FITS table: ") + text);
+                     "cannot write the FITS table: " + fits_status_text(status_));
   }
   int* status() { return &status_; }
   void close() {
@@ -82,12 +78,13 @@ private:
 
 void write_table_fits(const std::string& path, const Table& t, std::string extname) {
   if (extname.empty()) extname = std::filesystem::path(path).stem().string();
-  const bool labels = !t.label_header.empty() && t.row_labels.size() == t.rows.size();
+  const bool labels = t.has_row_labels();
   std::vector<std::string> names, forms, units;
-  std::size_t width = 1;
+  std::vector<std::string> label_text; // the row labels as a FITS character column holds them
   if (labels) {
+    std::size_t width = 1;
     for (const auto& l : t.row_labels)
-      width = std::max(width, ascii_text(l).size());
+      width = std::max(width, label_text.emplace_back(ascii_text(l)).size());
     names.push_back(t.label_header), forms.push_back(std::to_string(width) + "A");
     units.emplace_back();
   }
@@ -115,11 +112,8 @@ void write_table_fits(const std::string& path, const Table& t, std::string extna
       w.check(fits_write_comment(w.file(), ascii_text(note).c_str(), st));
     int col = 1;
     if (labels) {
-      std::vector<std::string> text;
-      for (const auto& l : t.row_labels)
-        text.push_back(ascii_text(l));
       std::vector<char*> p;
-      for (auto& s : text)
+      for (auto& s : label_text)
         p.push_back(s.data());
       w.check(fits_write_col(w.file(), TSTRING, col++, 1, 1, LONGLONG(p.size()), p.data(), st));
     }

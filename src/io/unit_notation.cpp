@@ -109,9 +109,6 @@ private:
   std::size_t i_ = 0;
 };
 
-} // namespace
-
-namespace {
 Powers parse(const std::string& unit) {
   if (unit.empty()) return {};
   Parser parser(unit);

@@ -124,12 +124,11 @@ Catalog from_table(const io::InputTable& t, const CatalogOptions& o) {
   c.file = t.file();
   const Columns cols(t, o);
   const std::size_t name = cols.required("name");
-  const char* num[] = {"ra_deg",     "dec_deg",        "parallax_mas", "parallax_err_mas",
-                       "pmra_masyr", "pmra_err_masyr", "pmdec_masyr",  "pmdec_err_masyr",
-                       "vlsr_kms",   "vlsr_err_kms"};
-  std::size_t col[10];
+  const char* astrometry[] = {"ra_deg",     "dec_deg",        "parallax_mas", "parallax_err_mas",
+                              "pmra_masyr", "pmra_err_masyr", "pmdec_masyr",  "pmdec_err_masyr"};
+  std::size_t col[10]; // those, then the velocity and its error
   for (int k = 0; k < 8; ++k)
-    col[k] = cols.required(num[k]);
+    col[k] = cols.required(astrometry[k]);
   const std::size_t vl = cols("vlsr_kms"), vh = cols("vhelio_kms");
   if (vl != npos && vh != npos)
     throw InputError(t.header_place(vh), "both an LSR velocity ('" + t.name(vl) +

@@ -26,13 +26,16 @@ struct Table {
   std::vector<std::string> notes; // printed under the table (Markdown, LaTeX) or as # lines (CSV)
 
   void add_row(std::vector<double> row);
+  // A first text column: a header and one label per row.
+  bool has_row_labels() const { return !label_header.empty() && row_labels.size() == rows.size(); }
 };
 
 enum class TableFormat { csv, ecsv, markdown, latex, fits };
 TableFormat table_format_from_name(const std::string& name); // throws InputError
-// The names table_format_from_name knows, for command-line checks and help texts.
-inline const char* const kTableFormatNames[] = {"csv", "ecsv",  "fits", "markdown",
-                                                "md",  "latex", "tex"};
+// The names table_format_from_name knows, for command-line checks.
+inline std::vector<std::string> table_format_names() {
+  return {"csv", "ecsv", "fits", "markdown", "md", "latex", "tex"};
+}
 
 // Text formats; FITS, which is binary, throws InputError (write it to a file).
 void write_table(std::ostream& os, const Table& t, TableFormat f);
@@ -43,8 +46,10 @@ std::vector<std::string> write_table_files(const std::string& stem, const Table&
 std::string format_number(double v, int precision);
 // The shortest text that reads back to v exactly ("nan", "inf", "-inf" for those).
 std::string exact_number(double v);
-// A CSV field (RFC 4180): quoted, with quotes doubled, when it holds a comma, quote, line break
-// or leading or trailing space.
-std::string csv_field(const std::string& s);
+// A field of delimited text (RFC 4180, with ',' or, as in ECSV's body, ' ' between fields):
+// quoted, with quotes doubled, when it holds the delimiter, a quote, a line break or a leading or
+// trailing space, or, space-delimited, a tab or nothing. Space-delimited rows are one line each,
+// so a line break there becomes a space.
+std::string delimited_field(const std::string& s, char delimiter);
 
 } // namespace undertow::io
