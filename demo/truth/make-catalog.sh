@@ -8,7 +8,7 @@ here=$(cd "$(dirname "$0")" && pwd)
 out=$(realpath -m "${2:-$here/../kestrel-measured.csv}")
 work=$(mktemp -d)
 trap 'rm -rf "$work"' EXIT
-"$undertow" integrate "$here/orbits.toml" -o "$work/truth.h5" --restart
+"$undertow" integrate "$here/orbits.toml" -o "$work/truth.h5" --from-scratch
 "$undertow" observe "$work/truth.h5" "$here/survey.toml" -o "$work/measured.csv" | sed "s|$work/||"
 {
   echo "# Invented catalog of the undertow demo: young sources of the truth scenario demo/truth/"

@@ -34,7 +34,10 @@ void add_mock_command(CLI::App& app, MockArgs& a) {
                          "(Galactic parameters, rotation curve, mean motion, dispersion, "
                          "streaming) through the mock observation, to test a fit set-up");
   a.command->add_option("truth", a.truth_file, "Truth file (TOML, docs/fit.md)")->required();
-  a.command->add_option("-o,--output", a.output, "Catalog to write (default: <truth>-catalog.csv)");
+  a.command->add_option(
+      "-o,--output", a.output,
+      "Catalog to write: CSV, or ECSV or FITS by the extension .ecsv or .fits (default: "
+      "<truth>-catalog.csv)");
 }
 
 std::optional<int> run_mock_command(const MockArgs& a) {
@@ -72,6 +75,7 @@ std::optional<int> run_fit_command(const FitArgs& a) {
   read.columns = f.spec.catalog_columns;
   read.lsr = f.spec.model.lsr;
   const auto cat = residuals::read_catalog(f.spec.catalog_path, read);
+  residuals::require_parallaxes(cat, "the kinematic fit");
   const auto sel = select_sources(f, cat);
   for (const auto& e : sel.excluded)
     std::cout << "left out: " << e << "\n";

@@ -28,6 +28,7 @@
 #include "draw_command.hpp"
 #include "fit_command.hpp"
 #include "long_run.hpp"
+#include "renamed_options.hpp"
 #include "sweep_commands.hpp"
 
 #include <cstdlib>
@@ -87,7 +88,7 @@ int run_tabulate(const TabulateArgs& a) {
 struct IntegrateArgs {
   std::string scenario;
   std::string output;
-  bool restart = false;
+  bool from_scratch = false;
   int threads = 0;
 };
 
@@ -97,7 +98,7 @@ int run_integrate(const IntegrateArgs& a) {
   run::EnsembleOptions o;
   o.output =
       a.output.empty() ? std::filesystem::path(a.scenario).stem().string() + ".h5" : a.output;
-  o.restart = a.restart;
+  o.restart = a.from_scratch;
   undertow::cli::prepare_long_run(o, a.threads);
   const auto r = run::run_ensemble(sc, o);
   if (!r.complete) {
@@ -128,10 +129,9 @@ int run_integrate(const IntegrateArgs& a) {
 }
 
 struct ResidualArgs {
-  std::string catalog, model, prefix, columns;
+  std::string catalog, model, folder, columns;
   std::optional<double> flat_theta0;
-  std::vector<double> linear;  // THETA0, SLOPE
-  std::optional<double> slope; // gone: refused, naming --linear
+  std::vector<double> linear; // THETA0, SLOPE
   std::optional<double> r0;
   double z_sun = 0.0;
   std::optional<double> theta0;
@@ -143,7 +143,8 @@ struct ResidualArgs {
   double parallax_offset = 0;
   std::string galactic_from;
   bool marginalise = false;
-  int draws = 1000, resamples = 1000;
+  int draws = undertow::residuals::kDefaultDraws,
+      resamples = undertow::residuals::kDefaultBootstrap;
   std::uint64_t seed = 1;
   CLI::App* cmd = nullptr;
 };
@@ -162,6 +163,11 @@ galactic_of(const std::shared_ptr<const undertow::fit::KinematicModel>& mp,
 
 int run_residuals(const ResidualArgs& a) {
   using namespace undertow;
+  // -o names a folder, as for every command that writes several files; checked before any work
+  const std::string folder =
+      a.folder.empty() ? std::filesystem::path(a.catalog).stem().string() + "-residuals" : a.folder;
+  if (std::filesystem::exists(folder) && !std::filesystem::is_directory(folder))
+    throw InputError(folder + ": not a folder (residuals -o names the folder to write into)");
   residuals::ResidualSettings s;
   s.sun.z_sun_kpc = a.z_sun;
   s.sun.u_sun_kms = a.solar[0], s.sun.v_sun_kms = a.solar[1], s.sun.w_sun_kms = a.solar[2];
@@ -204,9 +210,6 @@ int run_residuals(const ResidualArgs& a) {
   } else if (a.marginalise) {
     throw InputError("--marginalise needs --galactic-from FIT.h5");
   } else {
-    if (a.slope)
-      throw InputError("--slope is gone: give a linear curve as --linear THETA0,SLOPE (km/s, "
-                       "km/s/kpc); --flat THETA0 is flat");
     if (!a.r0)
       throw InputError("give --r0 KPC, the Sun's distance from the centre (no default: a galaxy "
                        "model is built for its own R0, and the peculiar motions depend on it)");
@@ -249,7 +252,7 @@ int run_residuals(const ResidualArgs& a) {
   if (s.prior.kind == fit::DistancePrior::Kind::table)
     throw InputError("--distance-prior table is for fit files (docs/fit.md)");
   s.parallax_offset_mas = parallax_offset;
-  s.min_parallax_snr = a.min_snr;
+  s.parallax_snr_min = a.min_snr;
   s.lsr = sky::lsr_form_from_name(lsr_name);
   s.draws = a.draws;
   s.seed = a.seed;
@@ -275,8 +278,8 @@ int run_residuals(const ResidualArgs& a) {
                 .c_str()
           : "",
       parallax_offset, lsr_name.c_str(), s.draws, static_cast<unsigned long long>(s.seed));
-  const std::string prefix =
-      a.prefix.empty() ? std::filesystem::path(a.catalog).stem().string() + "-residuals" : a.prefix;
+  const std::string prefix = (std::filesystem::path(folder) / "residuals").string();
+  std::filesystem::create_directories(folder);
   const auto files = residuals::write_report(prefix, res, sum, settings);
   std::cout << "with " << settings << "\n\n";
   io::write_table(std::cout, residuals::summary_table(sum), io::TableFormat::markdown);
@@ -331,7 +334,7 @@ int run_observe(const ObserveArgs& a) {
 
 struct RunArgs {
   std::string scenario, folder;
-  bool force = false;
+  bool from_scratch = false;
   int threads = 0;
   undertow::cli::FigureArgs figures;
 };
@@ -341,7 +344,7 @@ int run_whole(const RunArgs& a) {
   const auto sc = scenario::load_scenario(a.scenario);
   run::WholeRunOptions o;
   o.folder = a.folder.empty() ? std::filesystem::path(a.scenario).stem().string() : a.folder;
-  o.force = a.force;
+  o.force = a.from_scratch;
   undertow::cli::prepare_long_run(o, a.threads);
   const auto r = run::run_all(sc, o);
   if (!r.complete) {
@@ -423,6 +426,7 @@ int run_arm_flow(const ArmFlowArgs& a) {
 
 int main(int argc, char** argv) {
   CLI::App app{"undertow: galaxy models, tracer orbits and the peculiar motions of young sources"};
+  undertow::cli::RenamedOptions renamed;
   app.set_version_flag("--version", std::string("undertow ") + UNDERTOW_VERSION + " (" +
                                         UNDERTOW_GIT_REVISION + ")");
   app.require_subcommand(1);
@@ -459,7 +463,9 @@ int main(int argc, char** argv) {
                                              "HDF5 snapshot file (resumes an interrupted run)");
   ig->add_option("scenario", integ.scenario, "Scenario file (TOML)")->required();
   ig->add_option("-o,--output", integ.output, "Snapshot file to write (default: <scenario>.h5)");
-  ig->add_flag("--restart", integ.restart, "Discard the kept snapshots of an unfinished run");
+  ig->add_flag("--from-scratch", integ.from_scratch,
+               "Discard the snapshots kept by an unfinished run and integrate from the start");
+  renamed.flag(*ig, "--restart", "use --from-scratch");
   ig->add_option("--threads", integ.threads,
                  "OpenMP threads (default: OMP_NUM_THREADS or all cores)")
       ->check(CLI::Range(1, 4096));
@@ -478,7 +484,9 @@ int main(int argc, char** argv) {
                  "km/s and km/s/kpc")
       ->delimiter(',')
       ->expected(2);
-  rs->add_option("--slope", ra.slope)->group(""); // gone; refused naming --linear
+  renamed.option(*rs, "--slope",
+                 "give a linear curve as --linear THETA0,SLOPE (km/s, km/s/kpc); --flat THETA0 "
+                 "is flat");
   rs->add_option("--r0", ra.r0,
                  "Sun's distance from the centre R0, kpc (required unless --galactic-from)");
   rs->add_option("--z-sun", ra.z_sun, "Sun's height above the plane, kpc")->capture_default_str();
@@ -524,7 +532,9 @@ int main(int argc, char** argv) {
                "errors include the Galactic parameters' uncertainty");
   rs->add_option("--edsd-length", ra.edsd_length, "Length scale of the edsd prior, kpc")
       ->capture_default_str();
-  rs->add_option("--min-parallax-snr", ra.min_snr,
+  renamed.option(*rs, "--min-parallax-snr",
+                 "use --parallax-snr-min (bounds are spelled *_min, *_max)");
+  rs->add_option("--parallax-snr-min", ra.min_snr,
                  "Leave out sources with parallax/error below this")
       ->capture_default_str();
   rs->add_option("--columns", ra.columns,
@@ -539,7 +549,9 @@ int main(int argc, char** argv) {
       ->check(CLI::Range(2, 10000000))
       ->capture_default_str();
   rs->add_option("--seed", ra.seed, "Random seed")->capture_default_str();
-  rs->add_option("-o,--output", ra.prefix, "Output prefix (default: <catalog>-residuals)");
+  rs->add_option("-o,--output", ra.folder,
+                 "Output folder for residuals-sources.*, residuals-summary.* and residuals.h5 "
+                 "(default: <catalog>-residuals)");
 
   ObserveArgs ob;
   auto* os = app.add_subcommand("observe", "Observe a snapshot from the Sun as a survey would: "
@@ -549,7 +561,9 @@ int main(int argc, char** argv) {
       ->required();
   os->add_option("observation", ob.observation, "Observation file (TOML, docs/observation.md)")
       ->required();
-  os->add_option("-o,--output", ob.output, "Mock catalog to write (default: <snapshot>-mock.csv)");
+  os->add_option("-o,--output", ob.output,
+                 "Mock catalog to write: CSV, or ECSV or FITS by the extension .ecsv or .fits "
+                 "(default: <snapshot>-mock.csv)");
 
   RunArgs wr;
   auto* rn = app.add_subcommand("run", "The whole job from one scenario: orbits, mock observation, "
@@ -559,7 +573,9 @@ int main(int argc, char** argv) {
                  "Scenario file (TOML) with [observation] and [comparison]")
       ->required();
   rn->add_option("-o,--output", wr.folder, "Output folder (default: the scenario's name)");
-  rn->add_flag("--force", wr.force, "Redo every stage");
+  rn->add_flag("--from-scratch", wr.from_scratch,
+               "Discard the finished stages and do every stage again");
+  renamed.flag(*rn, "--force", "use --from-scratch");
   rn->add_option("--threads", wr.threads, "OpenMP threads")->check(CLI::Range(1, 4096));
   undertow::cli::add_figure_options(*rn, wr.figures);
 
@@ -572,9 +588,9 @@ int main(int argc, char** argv) {
       ->required()
       ->expected(2, 1000);
   std::string versus_out;
-  vs->add_option(
-      "-o,--output", versus_out,
-      "Also write the table as STEM.csv, .md, .tex and .h5 (always to stdout as Markdown)");
+  vs->add_option("-o,--output", versus_out,
+                 "Also write the table into this folder as versus.csv, .ecsv, .fits, .md, .tex "
+                 "and .h5 (always to stdout as Markdown)");
 
   ArmFlowArgs af;
   auto* afc = app.add_subcommand(
@@ -620,6 +636,10 @@ int main(int argc, char** argv) {
   undertow::cli::add_draw_command(app, draw);
 
   CLI11_PARSE(app, argc, argv);
+  if (const auto refused = renamed.refusal(); !refused.empty()) {
+    std::cerr << "undertow: error: " << refused << "\n";
+    return 2;
+  }
   try {
     if (const auto code = undertow::cli::run_sweep_command(sweep)) return *code;
     if (const auto code = undertow::cli::run_draw_command(draw)) return *code;
@@ -638,12 +658,14 @@ int main(int argc, char** argv) {
       const auto table = undertow::run::compare_runs(versus);
       undertow::io::write_table(std::cout, table, undertow::io::TableFormat::markdown);
       if (!versus_out.empty()) {
-        auto files = undertow::io::write_table_files(versus_out, table);
+        std::filesystem::create_directories(versus_out);
+        const std::string stem = (std::filesystem::path(versus_out) / "versus").string();
+        auto files = undertow::io::write_table_files(stem, table);
         undertow::io::h5::File::write_atomically(
-            versus_out + ".h5", [&](const undertow::io::h5::File& f) {
+            stem + ".h5", [&](const undertow::io::h5::File& f) {
               undertow::io::write_table_group(f, "versus", table);
             });
-        files.push_back(versus_out + ".h5");
+        files.push_back(stem + ".h5");
         std::cout << "wrote";
         for (const auto& f : files)
           std::cout << " " << f;

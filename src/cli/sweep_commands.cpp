@@ -228,7 +228,7 @@ int do_gather(const SweepArgs& a) {
   o.sort = a.sort;
   o.order = a.order;
   o.partial = a.partial;
-  o.prefix = a.output;
+  o.folder = a.output;
   o.posterior_required = a.posterior;
   o.edge_mass = a.edge_mass;
   const auto r = gather(plan, o);
@@ -346,8 +346,7 @@ void add_sweep_commands(CLI::App& app, SweepArgs& a) {
                    "of its mass (default 0.05)")
       ->check(CLI::Range(0.0, 1.0));
   a.gather->add_option("-o,--output", a.output,
-                       "Output prefix (default: "
-                       "<plan>/<name>-results)");
+                       "Folder for <name>-results.* (default: the plan folder)");
 
   a.show = sw->add_subcommand("show", "Print one point's complete scenario");
   a.show->add_option("plan", a.folder, "Plan folder")->required();

@@ -23,9 +23,10 @@ SampleStats stats(const std::vector<double>& v, int resamples, std::uint64_t see
   return s;
 }
 
+// A bin's label that reads as a range, also for negative edges: "psi -40 to -20 deg".
 std::string range(const char* what, double lo, double hi, const char* unit) {
-  char b[96];
-  std::snprintf(b, sizeof b, "%s %g-%g %s", what, lo, hi, unit);
+  char b[128];
+  std::snprintf(b, sizeof b, "%s %.10g to %.10g %s", what, lo, hi, unit);
   return b;
 }
 
@@ -38,7 +39,7 @@ ComponentComparison compare_samples(const std::vector<double>& a, const std::vec
   c.simulated = stats(b, resamples, seed, 2 * stream + 1);
   c.difference = c.measured.mean - c.simulated.mean;
   c.difference_err = std::hypot(c.measured.mean_err, c.simulated.mean_err);
-  c.significance = c.difference_err > 0 ? c.difference / c.difference_err : 0;
+  c.pull = c.difference_err > 0 ? c.difference / c.difference_err : 0;
   c.ks_p = ks_two_sample(a, b).p_value;
   c.ad_p = anderson_darling({a, b}).p_value;
   return c;
@@ -113,7 +114,7 @@ GlobalComparison compare_globally(const residuals::ResidualResult& m,
 io::Table global_table(const GlobalComparison& g) {
   io::Table t;
   t.title = "Measured vs simulated peculiar motions";
-  t.label_header = "subset";
+  t.text_headers = {"subset", "component"};
   t.columns = {{"n_meas", "N_{\\rm meas}", "N_meas", "", 6},
                {"n_sim", "N_{\\rm sim}", "N_sim", "", 6},
                {"mean_meas_kms", "\\langle v\\rangle_{\\rm meas}", "mean_meas", "km/s", 4},
@@ -121,7 +122,7 @@ io::Table global_table(const GlobalComparison& g) {
                {"mean_sim_kms", "\\langle v\\rangle_{\\rm sim}", "mean_sim", "km/s", 4},
                {"mean_sim_err_kms", "\\pm", "±", "km/s", 3},
                {"difference_kms", "\\Delta", "Δ", "km/s", 4},
-               {"significance", "\\Delta/\\sigma_\\Delta", "Δ/σ", "", 3},
+               {"pull", "\\Delta/\\sigma_\\Delta", "Δ/σ_Δ", "", 3},
                {"median_meas_kms", "{\\rm med}_{\\rm meas}", "med_meas", "km/s", 4},
                {"median_sim_kms", "{\\rm med}_{\\rm sim}", "med_sim", "km/s", 4},
                {"sigma_meas_kms", "\\sigma_{\\rm meas}", "σ_meas", "km/s", 4},
@@ -134,12 +135,11 @@ io::Table global_table(const GlobalComparison& g) {
   for (const auto& sub : g.subsets)
     for (int c = 0; c < 3; ++c) {
       const auto& r = sub.uvw[std::size_t(c)];
-      t.row_labels.push_back(sub.label + " " + comp[c]);
-      t.add_row({double(r.measured.n), double(r.simulated.n), r.measured.mean, r.measured.mean_err,
-                 r.simulated.mean, r.simulated.mean_err, r.difference, r.significance,
-                 r.measured.median, r.simulated.median, r.measured.dispersion,
-                 r.simulated.dispersion, r.measured.robust_dispersion,
-                 r.simulated.robust_dispersion, r.ks_p, r.ad_p});
+      t.add_row({sub.label, comp[c]},
+                {double(r.measured.n), double(r.simulated.n), r.measured.mean, r.measured.mean_err,
+                 r.simulated.mean, r.simulated.mean_err, r.difference, r.pull, r.measured.median,
+                 r.simulated.median, r.measured.dispersion, r.simulated.dispersion,
+                 r.measured.robust_dispersion, r.simulated.robust_dispersion, r.ks_p, r.ad_p});
     }
   t.notes = g.notes;
   return t;

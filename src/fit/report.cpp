@@ -190,7 +190,7 @@ std::string prior_text(const ParamSetting& q) {
 io::Table parameter_table(const FitFile& f, const FitResult& r, const std::string& status) {
   io::Table t;
   t.title = "Kinematic fit: posterior median, 16 and 84 % quantiles, maximum a posteriori";
-  t.label_header = "parameter";
+  t.text_headers = {"parameter"};
   t.columns = {{"median", "\\mathrm{median}", "median", "", 10},
                {"minus", "-\\sigma", "−", "", 6},
                {"plus", "+\\sigma", "+", "", 6},
@@ -200,7 +200,7 @@ io::Table parameter_table(const FitFile& f, const FitResult& r, const std::strin
                {"r_hat", "\\hat R", "R̂", "", 5}};
   for (const auto& q : f.spec.params) {
     const auto it = std::find(r.free.begin(), r.free.end(), q.param);
-    t.row_labels.push_back(param_info(q.param).key);
+    t.text_rows.push_back({param_info(q.param).key});
     if (it == r.free.end()) {
       t.add_row({q.value, NAN, NAN, NAN, 0, NAN, NAN});
     } else {
@@ -213,7 +213,7 @@ io::Table parameter_table(const FitFile& f, const FitResult& r, const std::strin
   }
   for (std::size_t k = 0; k < r.derived.size(); ++k) {
     const auto& m = r.derived[k];
-    t.row_labels.push_back(r.derived_names[k] + " (derived)");
+    t.text_rows.push_back({r.derived_names[k] + " (derived)"});
     t.add_row({m.median, m.median - m.lo, m.hi - m.median, m.map, NAN, NAN, NAN});
   }
   t.notes.push_back(
@@ -227,12 +227,12 @@ io::Table parameter_table(const FitFile& f, const FitResult& r, const std::strin
 io::Table correlation_table(const FitResult& r) {
   io::Table t;
   t.title = "Posterior correlation coefficients of the free parameters";
-  t.label_header = "parameter";
+  t.text_headers = {"parameter"};
   const std::size_t n = r.free.size();
   for (Param p : r.free)
     t.columns.push_back({param_info(p).key, param_info(p).latex, param_info(p).plain, "", 4});
   for (std::size_t a = 0; a < n; ++a) {
-    t.row_labels.push_back(param_info(r.free[a]).key);
+    t.text_rows.push_back({param_info(r.free[a]).key});
     std::vector<double> row(r.correlation.begin() + long(a * n),
                             r.correlation.begin() + long((a + 1) * n));
     t.add_row(row);
@@ -244,7 +244,7 @@ io::Table source_table(const std::vector<SourceResult>& src) {
   io::Table t;
   t.title = "Sources at the posterior: parallax distance, peculiar motion (median and 16/84 %, "
             "over the measurement errors and the parameters' posterior), outlier probability";
-  t.label_header = "name";
+  t.text_headers = {"name"};
   t.columns = {{"distance_kpc", "d", "d", "kpc", 8},
                {"distance_lo_kpc", "d_{16}", "d16", "kpc", 8},
                {"distance_hi_kpc", "d_{84}", "d84", "kpc", 8},
@@ -261,7 +261,7 @@ io::Table source_table(const std::vector<SourceResult>& src) {
                {"W_s_hi_kms", "W_{s,84}", "W_s84", "km/s", 7},
                {"p_outlier", "p_\\mathrm{out}", "p_out", "", 4}};
   for (const auto& s : src) {
-    t.row_labels.push_back(s.name);
+    t.text_rows.push_back({s.name});
     t.add_row({s.distance_kpc, s.distance_lo_kpc, s.distance_hi_kpc, s.R_kpc, s.psi_deg, s.uvw[0],
                s.uvw_lo[0], s.uvw_hi[0], s.uvw[1], s.uvw_lo[1], s.uvw_hi[1], s.uvw[2], s.uvw_lo[2],
                s.uvw_hi[2], s.outlier_probability});
@@ -272,7 +272,7 @@ io::Table source_table(const std::vector<SourceResult>& src) {
 io::Table kinematic_table(const std::vector<SourceResult>& src) {
   io::Table t;
   t.title = "Kinematic distances under the fitted rotation curve against parallax distances";
-  t.label_header = "name";
+  t.text_headers = {"name"};
   t.columns = {{"parallax_distance_kpc", "d_\\varpi", "d_ϖ", "kpc", 6},
                {"near_kpc", "d_\\mathrm{near}", "d_near", "kpc", 6},
                {"far_kpc", "d_\\mathrm{far}", "d_far", "kpc", 6},
@@ -282,7 +282,7 @@ io::Table kinematic_table(const std::vector<SourceResult>& src) {
                {"factor_two", "\\times 2", "off by ≥ 2×", "", 1}};
   int flagged = 0, beyond = 0;
   for (const auto& s : src) {
-    t.row_labels.push_back(s.name);
+    t.text_rows.push_back({s.name});
     t.add_row({s.distance_kpc, s.kinematic.near_kpc, s.kinematic.far_kpc, s.kinematic_kpc,
                s.kinematic_ratio, s.kinematic.beyond_terminal ? 1.0 : 0.0,
                s.factor_two ? 1.0 : 0.0});

@@ -3,6 +3,7 @@
 #include <cctype>
 #include <charconv>
 #include <cmath>
+#include <filesystem>
 #include <cstdio>
 #include <stdexcept>
 
@@ -20,6 +21,23 @@ void Table::add_row(std::vector<double> row) {
   rows.push_back(std::move(row));
 }
 
+void Table::add_row(std::vector<std::string> texts, std::vector<double> row) {
+  if (texts.size() != text_headers.size())
+    throw std::logic_error("table '" + title + "': row has " + std::to_string(texts.size()) +
+                           " texts for " + std::to_string(text_headers.size()) + " text columns");
+  if (text_rows.size() != rows.size())
+    throw std::logic_error("table '" + title + "': rows without texts before a row with them");
+  add_row(std::move(row));
+  text_rows.push_back(std::move(texts));
+}
+
+std::vector<std::string> Table::text_column(std::size_t k) const {
+  std::vector<std::string> out;
+  for (const auto& r : text_rows)
+    out.push_back(r.at(k));
+  return out;
+}
+
 TableFormat table_format_from_name(const std::string& name) {
   if (name == "csv") return TableFormat::csv;
   if (name == "markdown" || name == "md") return TableFormat::markdown;
@@ -27,6 +45,13 @@ TableFormat table_format_from_name(const std::string& name) {
   if (name == "ecsv") return TableFormat::ecsv;
   if (name == "fits") return TableFormat::fits;
   throw InputError("unknown table format '" + name + "' (csv, ecsv, fits, markdown, latex)");
+}
+
+TableFormat machine_format_of_path(const std::string& path) {
+  const auto ext = std::filesystem::path(path).extension().string();
+  if (ext == ".ecsv") return TableFormat::ecsv;
+  if (ext == ".fits" || ext == ".fit" || ext == ".fts") return TableFormat::fits;
+  return TableFormat::csv;
 }
 
 void write_table_file(const std::string& path, const Table& t, TableFormat f) {
@@ -130,7 +155,7 @@ std::string header(const Column& c, bool latex) {
 } // namespace
 
 void write_table(std::ostream& os, const Table& t, TableFormat f) {
-  const bool labels = t.has_row_labels();
+  const bool labels = t.has_text_columns();
   const auto cell = [&](std::size_t r, std::size_t c) {
     return format_number(t.rows[r][c], t.columns[c].precision);
   };
@@ -139,12 +164,16 @@ void write_table(std::ostream& os, const Table& t, TableFormat f) {
     if (!t.title.empty()) os << "# " << t.title << "\n";
     for (const auto& n : t.notes)
       os << "# " << n << "\n";
-    if (labels) os << delimited_field(t.label_header, ',') << ",";
+    if (labels)
+      for (const auto& h : t.text_headers)
+        os << delimited_field(h, ',') << ",";
     for (std::size_t c = 0; c < t.columns.size(); ++c)
       os << (c ? "," : "") << delimited_field(t.columns[c].name, ',');
     os << "\n";
     for (std::size_t r = 0; r < t.rows.size(); ++r) {
-      if (labels) os << delimited_field(t.row_labels[r], ',') << ",";
+      if (labels)
+        for (const auto& x : t.text_rows[r])
+          os << delimited_field(x, ',') << ",";
       for (std::size_t c = 0; c < t.columns.size(); ++c)
         os << (c ? "," : "") << exact_number(t.rows[r][c]);
       os << "\n";
@@ -158,17 +187,23 @@ void write_table(std::ostream& os, const Table& t, TableFormat f) {
   case TableFormat::markdown:
     if (!t.title.empty()) os << "**" << t.title << "**\n\n";
     os << "|";
-    if (labels) os << " " << t.label_header << " |";
+    if (labels)
+      for (const auto& h : t.text_headers)
+        os << " " << h << " |";
     for (const auto& c : t.columns)
       os << " " << header(c, false) << " |";
     os << "\n|";
-    if (labels) os << ":---|";
+    if (labels)
+      for (std::size_t k = 0; k < t.text_headers.size(); ++k)
+        os << ":---|";
     for (std::size_t c = 0; c < t.columns.size(); ++c)
       os << "---:|";
     os << "\n";
     for (std::size_t r = 0; r < t.rows.size(); ++r) {
       os << "|";
-      if (labels) os << " " << t.row_labels[r] << " |";
+      if (labels)
+        for (const auto& x : t.text_rows[r])
+          os << " " << x << " |";
       for (std::size_t c = 0; c < t.columns.size(); ++c) // no value: a dash, for people
         os << " " << (std::isnan(t.rows[r][c]) ? "—" : cell(r, c)) << " |";
       os << "\n";
@@ -178,14 +213,18 @@ void write_table(std::ostream& os, const Table& t, TableFormat f) {
       os << n << "\n";
     break;
   case TableFormat::latex:
-    os << "% " << t.title << "\n\\begin{tabular}{" << (labels ? "l" : "")
+    os << "% " << t.title << "\n\\begin{tabular}{" << (labels ? std::string(t.text_headers.size(), 'l') : "")
        << std::string(t.columns.size(), 'r') << "}\n\\toprule\n";
-    if (labels) os << t.label_header << " & ";
+    if (labels)
+      for (const auto& h : t.text_headers)
+        os << latex_text(h) << " & ";
     for (std::size_t c = 0; c < t.columns.size(); ++c)
       os << (c ? " & " : "") << header(t.columns[c], true);
     os << " \\\\\n\\midrule\n";
     for (std::size_t r = 0; r < t.rows.size(); ++r) {
-      if (labels) os << latex_text(t.row_labels[r]) << " & ";
+      if (labels)
+        for (const auto& x : t.text_rows[r])
+          os << latex_text(x) << " & ";
       for (std::size_t c = 0; c < t.columns.size(); ++c)
         os << (c ? " & " : "")
            << (std::isnan(t.rows[r][c]) ? "---" : "$" + latex_number(cell(r, c)) + "$");

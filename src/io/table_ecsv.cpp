@@ -21,9 +21,11 @@ std::string yaml_text(const std::string& s) {
 } // namespace
 
 void write_table_ecsv(std::ostream& os, const Table& t) {
-  const bool labels = t.has_row_labels();
+  const bool labels = t.has_text_columns();
   os << "# %ECSV 1.0\n# ---\n# datatype:\n";
-  if (labels) os << "# - {name: " << yaml_text(t.label_header) << ", datatype: string}\n";
+  if (labels)
+    for (const auto& h : t.text_headers)
+      os << "# - {name: " << yaml_text(h) << ", datatype: string}\n";
   for (const auto& c : t.columns) {
     os << "# - {name: " << yaml_text(c.name);
     if (!c.unit.empty()) os << ", unit: " << yaml_text(fits_unit(c.unit));
@@ -41,12 +43,16 @@ void write_table_ecsv(std::ostream& os, const Table& t) {
     }
   }
   os << "# schema: astropy-2.0\n";
-  if (labels) os << delimited_field(t.label_header, ' ') << " ";
+  if (labels)
+    for (const auto& h : t.text_headers)
+      os << delimited_field(h, ' ') << " ";
   for (std::size_t c = 0; c < t.columns.size(); ++c)
     os << (c ? " " : "") << delimited_field(t.columns[c].name, ' ');
   os << "\n";
   for (std::size_t r = 0; r < t.rows.size(); ++r) {
-    if (labels) os << delimited_field(t.row_labels[r], ' ') << " ";
+    if (labels)
+      for (const auto& x : t.text_rows[r])
+        os << delimited_field(x, ' ') << " ";
     for (std::size_t c = 0; c < t.columns.size(); ++c)
       os << (c ? " " : "") << exact_number(t.rows[r][c]);
     os << "\n";

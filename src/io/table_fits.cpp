@@ -78,14 +78,16 @@ private:
 
 void write_table_fits(const std::string& path, const Table& t, std::string extname) {
   if (extname.empty()) extname = std::filesystem::path(path).stem().string();
-  const bool labels = t.has_row_labels();
+  const bool labels = t.has_text_columns();
+  const std::size_t n_text = labels ? t.text_headers.size() : 0;
   std::vector<std::string> names, forms, units;
-  std::vector<std::string> label_text; // the row labels as a FITS character column holds them
-  if (labels) {
+  // the text columns as FITS character columns hold them: ASCII, padded to the longest
+  std::vector<std::vector<std::string>> text(n_text);
+  for (std::size_t k = 0; k < n_text; ++k) {
     std::size_t width = 1;
-    for (const auto& l : t.row_labels)
-      width = std::max(width, label_text.emplace_back(ascii_text(l)).size());
-    names.push_back(t.label_header), forms.push_back(std::to_string(width) + "A");
+    for (const auto& r : t.text_rows)
+      width = std::max(width, text[k].emplace_back(ascii_text(r[k])).size());
+    names.push_back(t.text_headers[k]), forms.push_back(std::to_string(width) + "A");
     units.emplace_back();
   }
   for (const auto& c : t.columns)
@@ -103,7 +105,7 @@ void write_table_fits(const std::string& path, const Table& t, std::string extna
     // the symbols, where plain ASCII, as the comments of the TTYPEn cards
     for (std::size_t c = 0; c < t.columns.size(); ++c)
       if (!t.columns[c].plain.empty()) {
-        const std::string key = "TTYPE" + std::to_string(c + 1 + (labels ? 1 : 0));
+        const std::string key = "TTYPE" + std::to_string(c + 1 + n_text);
         w.check(
             fits_modify_comment(w.file(), key.c_str(), ascii_text(t.columns[c].plain).c_str(), st));
       }
@@ -111,11 +113,13 @@ void write_table_fits(const std::string& path, const Table& t, std::string extna
     for (const auto& note : t.notes)
       w.check(fits_write_comment(w.file(), ascii_text(note).c_str(), st));
     int col = 1;
-    if (labels) {
+    for (auto& column : text) {
       std::vector<char*> p;
-      for (auto& s : label_text)
+      for (auto& s : column)
         p.push_back(s.data());
-      w.check(fits_write_col(w.file(), TSTRING, col++, 1, 1, LONGLONG(p.size()), p.data(), st));
+      if (!p.empty())
+        w.check(fits_write_col(w.file(), TSTRING, col, 1, 1, LONGLONG(p.size()), p.data(), st));
+      ++col;
     }
     std::vector<double> v(t.rows.size());
     for (std::size_t c = 0; c < t.columns.size(); ++c, ++col) {

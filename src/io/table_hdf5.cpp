@@ -9,8 +9,9 @@ void write_table_group(const h5::File& f, const std::string& group, const Table&
   for (const auto& n : t.notes)
     notes += n + "\n";
   h5::set_attr(f, g.id(), "notes", notes);
-  if (!t.label_header.empty())
-    h5::write_strings(f, g.id(), t.label_header, t.row_labels, "row labels");
+  if (t.has_text_columns())
+    for (std::size_t k = 0; k < t.text_headers.size(); ++k)
+      h5::write_strings(f, g.id(), t.text_headers[k], t.text_column(k), "row labels");
   for (std::size_t c = 0; c < t.columns.size(); ++c) {
     std::vector<double> col;
     for (const auto& r : t.rows)

@@ -194,6 +194,7 @@ ObservationSpec observation_from_table(const toml::table& t, const std::string& 
       residuals::CatalogOptions co;
       co.columns = q.string_map_or_empty("catalog_columns");
       e.reference = residuals::read_catalog(io::path_beside(file, q.string("catalog")), co);
+      residuals::require_parallaxes(e.reference, "copying errors into a mock catalog");
     } else {
       q.fail("kind", "must be \"fixed\", \"fractional\" or \"catalog\", got \"" + kind + "\"");
     }

@@ -4,9 +4,7 @@
 #include <cmath>
 #include <cstdio>
 #include <filesystem>
-#include <map>
 
-#include "undertow/error.hpp"
 #include "undertow/plot/catalogue.hpp"
 #include "undertow/plot/inputs.hpp"
 #include "undertow/plot/scales.hpp"
@@ -94,32 +92,16 @@ FigureKind pulls_figure() {
               "prediction, against azimuth and radius, with 1 and 3 sigma marked";
   k.page = {180, 130, 300};
   k.available = [](const std::string& dir) {
-    return std::filesystem::exists(dir + "/comparison.h5") &&
-           std::filesystem::exists(dir + "/measured-residuals.h5");
+    return std::filesystem::exists(dir + "/comparison.h5");
   };
   k.load = [](const std::string& dir, const DrawOptions&) {
-    const H5Input meas(dir + "/measured-residuals.h5", "pulls");
+    // the local table carries each source's R and psi beside its pulls
     const H5Input cmp(dir + "/comparison.h5", "pulls");
-    const auto names = meas.strings("sources/name");
-    const auto R = meas.doubles_n("sources/R_kpc", names.size()),
-               psi = meas.doubles_n("sources/psi_deg", names.size());
-    std::map<std::string, std::size_t> at;
-    for (std::size_t i = 0; i < names.size(); ++i)
-      at[names[i]] = i;
-    const auto local = cmp.strings("local/name");
+    const auto n = cmp.strings("local/name").size();
     Pulls d;
-    std::array<std::vector<double>, 3> p{cmp.doubles_n("local/pull_U", local.size()),
-                                         cmp.doubles_n("local/pull_V", local.size()),
-                                         cmp.doubles_n("local/pull_W", local.size())};
-    for (std::size_t i = 0; i < local.size(); ++i) {
-      const auto it = at.find(local[i]);
-      if (it == at.end())
-        throw InputError(cmp.path() + ": source '" + local[i] + "' of /local/name is not in " +
-                         meas.path());
-      d.psi.push_back(psi[it->second]), d.R.push_back(R[it->second]);
-      for (int c = 0; c < 3; ++c)
-        d.pull[c].push_back(p[c][i]);
-    }
+    d.R = cmp.doubles_n("local/R_kpc", n), d.psi = cmp.doubles_n("local/psi_deg", n);
+    d.pull = {cmp.doubles_n("local/pull_U", n), cmp.doubles_n("local/pull_V", n),
+              cmp.doubles_n("local/pull_W", n)};
     return std::function<void(Figure&)>([d](Figure& f) { draw(d, f); });
   };
   return k;

@@ -24,7 +24,7 @@ std::string format_stats(const H5Input& cmp, std::size_t row) {
   const auto get = [&](const std::string& d) { return cmp.doubles("global/" + d).at(row); };
   char buf[160];
   std::snprintf(buf, sizeof buf, "#gD = %+.1f km/s (%.1f#gs), p#dKS#u %.2g, p#dAD#u %.2g",
-                get("difference_kms"), std::fabs(get("significance")), get("ks_p"), get("ad_p"));
+                get("difference_kms"), std::fabs(get("pull")), get("ks_p"), get("ad_p"));
   return buf;
 }
 
@@ -141,12 +141,13 @@ FigureKind residual_distributions_figure() {
     // The comparison's statistics for the whole sample ("all U_s", ...), when it was made.
     if (std::filesystem::exists(dir + "/comparison.h5")) {
       const H5Input cmp(dir + "/comparison.h5", "residuals");
-      if (!cmp.has("global/subset"))
+      if (!cmp.has("global/subset") || !cmp.has("global/component"))
         return std::function<void(Figure&)>([comps](Figure& f) { draw(comps, f); });
-      const auto subsets = cmp.strings("global/subset");
-      for (std::size_t i = 0; i < subsets.size(); ++i)
+      const auto subsets = cmp.strings("global/subset"),
+                 components = cmp.strings("global/component");
+      for (std::size_t i = 0; i < std::min(subsets.size(), components.size()); ++i)
         for (std::size_t k = 0; k < 3; ++k)
-          if (subsets[i] == std::string("all ") + "UVW"[k] + "_s")
+          if (subsets[i] == "all" && components[i] == std::string(1, "UVW"[k]) + "_s")
             comps[k].stats = format_stats(cmp, i);
     }
     return std::function<void(Figure&)>([comps](Figure& f) { draw(comps, f); });

@@ -41,6 +41,10 @@ const Wanted kWanted[] = {
     {"corr_parallax_pmra", "", {"parallax_pmra_corr"}},
     {"corr_parallax_pmdec", "", {"parallax_pmdec_corr"}},
     {"parallax_offset_mas", "mas", {"parallax_zero_point", "plx_offset"}},
+    {"distance_kpc", "kpc", {"distance", "dist", "Dist"}},
+    {"distance_err_kpc",
+     "kpc",
+     {"distance_error", "distance_err", "e_distance", "e_dist", "e_Dist"}},
     {"group", "", {"arm", "segment"}},
 };
 
@@ -127,6 +131,16 @@ Catalog from_table(const io::InputTable& t, const CatalogOptions& o) {
   const char* astrometry[] = {"ra_deg",     "dec_deg",        "parallax_mas", "parallax_err_mas",
                               "pmra_masyr", "pmra_err_masyr", "pmdec_masyr",  "pmdec_err_masyr"};
   std::size_t col[10]; // those, then the velocity and its error
+  // no parallax column but a distance: distances given directly (parallax fields stay zero)
+  const bool distances = cols("parallax_mas") == npos && cols("distance_kpc") != npos;
+  c.distances = distances;
+  if (distances) {
+    astrometry[2] = "distance_kpc", astrometry[3] = "distance_err_kpc";
+    for (const char* p : {"corr_parallax_pmra", "corr_parallax_pmdec", "parallax_offset_mas"})
+      if (cols(p) != npos)
+        throw InputError(t.header_place(cols(p)),
+                         "a catalog of distances has no parallax: this column does not apply");
+  }
   for (int k = 0; k < 8; ++k)
     col[k] = cols.required(astrometry[k]);
   const std::size_t vl = cols("vlsr_kms"), vh = cols("vhelio_kms");
@@ -150,10 +164,13 @@ Catalog from_table(const io::InputTable& t, const CatalogOptions& o) {
     double* dst[] = {&s.ra_deg,     &s.dec_deg,        &s.parallax_mas, &s.parallax_err_mas,
                      &s.pmra_masyr, &s.pmra_err_masyr, &s.pmdec_masyr,  &s.pmdec_err_masyr,
                      &s.vlsr_kms,   &s.vlsr_err_kms};
+    if (distances) dst[2] = &s.distance_kpc, dst[3] = &s.distance_err_kpc;
     for (int k = 0; k < 10; ++k)
       *dst[k] = t.number(r, col[k]);
     for (int k : {3, 5, 7, 9})
       if (!(*dst[k] > 0)) throw InputError(t.place(r, col[k]), "errors must be positive");
+    if (distances && !(s.distance_kpc > 0))
+      throw InputError(t.place(r, col[2]), "a distance must be positive");
     if (s.ra_deg < 0 || s.ra_deg >= 360)
       throw InputError(t.place(r, col[0]), "must lie in [0, 360)");
     if (std::fabs(s.dec_deg) > 90) throw InputError(t.place(r, col[1]), "must lie in [-90, 90]");
@@ -210,26 +227,57 @@ std::map<std::string, std::string> parse_column_map(const std::string& text,
   return m;
 }
 
-std::string catalog_header() {
-  return "name,ra_deg,dec_deg,parallax_mas,parallax_err_mas,pmra_masyr,pmra_err_masyr,"
-         "pmdec_masyr,pmdec_err_masyr,vlsr_kms,vlsr_err_kms,corr_pmra_pmdec,group";
+void require_parallaxes(const Catalog& c, const std::string& stage) {
+  if (c.distances)
+    throw InputError(SourcePlace{c.file, 0, 0, "distance_kpc"},
+                     "this catalog gives distances, not parallaxes: " + stage +
+                         " is written for measured parallaxes (undertow residuals reads "
+                         "distances)");
+}
+
+io::Table catalog_table(const Catalog& c, const std::string& comment) {
+  io::Table t;
+  t.title = "undertow catalog: columns and units in docs/catalog-format.md";
+  if (!comment.empty()) t.notes.push_back(comment);
+  t.text_headers = {"name", "group"};
+  t.columns = {{"ra_deg", "", "", "deg"},         {"dec_deg", "", "", "deg"},
+               {"parallax_mas", "", "", "mas"},   {"parallax_err_mas", "", "", "mas"},
+               {"pmra_masyr", "", "", "mas/yr"},  {"pmra_err_masyr", "", "", "mas/yr"},
+               {"pmdec_masyr", "", "", "mas/yr"}, {"pmdec_err_masyr", "", "", "mas/yr"},
+               {"vlsr_kms", "", "", "km/s"},      {"vlsr_err_kms", "", "", "km/s"},
+               {"corr_pmra_pmdec", "", "", ""}};
+  const auto any = [&](double Source::*m) {
+    return std::any_of(c.sources.begin(), c.sources.end(),
+                       [&](const Source& s) { return s.*m != 0; });
+  };
+  const bool w_pm = any(&Source::corr_w_pa) || any(&Source::corr_w_pd),
+             offset = any(&Source::parallax_offset_mas);
+  if (w_pm) t.columns.push_back({"corr_parallax_pmra", "", "", ""});
+  if (w_pm) t.columns.push_back({"corr_parallax_pmdec", "", "", ""});
+  if (offset) t.columns.push_back({"parallax_offset_mas", "", "", "mas"});
+  if (c.distances) t.columns[2] = {"distance_kpc", "", "", "kpc"};
+  if (c.distances) t.columns[3] = {"distance_err_kpc", "", "", "kpc"};
+  for (const auto& s : c.sources) {
+    std::vector<double> row{s.ra_deg,
+                            s.dec_deg,
+                            c.distances ? s.distance_kpc : s.parallax_mas,
+                            c.distances ? s.distance_err_kpc : s.parallax_err_mas,
+                            s.pmra_masyr,
+                            s.pmra_err_masyr,
+                            s.pmdec_masyr,
+                            s.pmdec_err_masyr,
+                            s.vlsr_kms,
+                            s.vlsr_err_kms,
+                            s.corr_pm};
+    if (w_pm) row.push_back(s.corr_w_pa), row.push_back(s.corr_w_pd);
+    if (offset) row.push_back(s.parallax_offset_mas);
+    t.add_row({s.name, s.group}, std::move(row));
+  }
+  return t;
 }
 
 void write_catalog(const std::string& path, const Catalog& c, const std::string& comment) {
-  io::AtomicFile f(path);
-  auto& o = f.stream();
-  if (!comment.empty()) o << "# " << comment << "\n";
-  o << "# undertow catalog: columns and units in docs/catalog-format.md\n"
-    << catalog_header() << "\n";
-  char b[512];
-  for (const auto& s : c.sources) {
-    std::snprintf(b, sizeof b, "%s,%.10f,%.10f,%.6f,%.6f,%.6f,%.6f,%.6f,%.6f,%.4f,%.4f,%.4f,%s\n",
-                  s.name.c_str(), s.ra_deg, s.dec_deg, s.parallax_mas, s.parallax_err_mas,
-                  s.pmra_masyr, s.pmra_err_masyr, s.pmdec_masyr, s.pmdec_err_masyr, s.vlsr_kms,
-                  s.vlsr_err_kms, s.corr_pm, s.group.c_str());
-    o << b;
-  }
-  f.commit();
+  io::write_table_file(path, catalog_table(c, comment), io::machine_format_of_path(path));
 }
 
 } // namespace undertow::residuals

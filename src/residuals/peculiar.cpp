@@ -28,8 +28,10 @@ fit::DistancePrior prior_of(const ResidualSettings& s) {
   return p;
 }
 
-// The distance estimate for a parallax w (already corrected for the zero point).
+// The distance estimate for a parallax w (already corrected for the zero point); for a source
+// whose catalog gives its distance, w is that distance, used as given.
 double distance_of(const Source& src, double w, double sw, const ResidualSettings& s) {
+  if (src.has_distance()) return w;
   switch (s.distance) {
   case ResidualSettings::Distance::edsd:
     return sky::edsd_mode_kpc(w, sw, s.edsd_length_kpc);
@@ -47,7 +49,9 @@ double distance_of(const Source& src, double w, double sw, const ResidualSetting
 }
 
 struct Inputs {
-  double w, pa, pd, v; // parallax mas (zero point removed), mu_alpha*, mu_delta mas/yr, v_LSR km/s
+  // parallax mas (zero point removed), or the distance kpc where the catalog gives distances;
+  // mu_alpha*, mu_delta mas/yr; v_LSR km/s
+  double w, pa, pd, v;
 };
 
 std::array<double, 3> uvw_at(const Source& src, double d, double pa, double pd, double v,
@@ -113,15 +117,21 @@ ResidualResult compute_residuals(const Catalog& c, const ResidualSettings& s) {
   bool warned_inverse = false;
   for (const Source& src : c.sources) {
     ++index;
-    const double w = src.parallax_mas - src.parallax_offset_mas - s.parallax_offset_mas;
-    const double sw = src.parallax_err_mas;
-    const double snr = src.parallax_mas / sw;
-    if (s.min_parallax_snr > 0 && snr < s.min_parallax_snr) {
-      out.excluded.push_back(src.name + ": parallax/error = " + detail::num(snr) + " below " +
-                             detail::num(s.min_parallax_snr));
+    // A distance given directly is used as given (it is an estimate already; no prior applies
+    // twice), its draws normal and cut at zero; the parallax settings do not apply to it.
+    const bool given = src.has_distance();
+    const bool posterior = from_posterior(s) && !given;
+    const double w = given ? src.distance_kpc
+                           : src.parallax_mas - src.parallax_offset_mas - s.parallax_offset_mas;
+    const double sw = given ? src.distance_err_kpc : src.parallax_err_mas;
+    // to first order, parallax/error = distance/error
+    const double snr = (given ? src.distance_kpc : src.parallax_mas) / sw;
+    if (s.parallax_snr_min > 0 && snr < s.parallax_snr_min) {
+      out.excluded.push_back(src.name + (given ? ": distance/error = " : ": parallax/error = ") +
+                             detail::num(snr) + " below " + detail::num(s.parallax_snr_min));
       continue;
     }
-    if (!from_posterior(s) && !(w > 0)) {
+    if (!posterior && !given && !(w > 0)) {
       out.excluded.push_back(src.name + ": non-positive parallax has no 1/parallax distance");
       continue;
     }
@@ -129,7 +139,7 @@ ResidualResult compute_residuals(const Catalog& c, const ResidualSettings& s) {
     r.name = src.name;
     r.group = src.group;
     r.frac_parallax_err = sw / std::fabs(w);
-    if (!from_posterior(s) && r.frac_parallax_err > 0.1) {
+    if (!posterior && !given && r.frac_parallax_err > 0.1) {
       out.warnings.push_back(src.name + ": fractional parallax error " +
                              detail::num(r.frac_parallax_err) +
                              ": 1/parallax is biased (too far on average) at this level");
@@ -146,7 +156,7 @@ ResidualResult compute_residuals(const Catalog& c, const ResidualSettings& s) {
     std::optional<fit::DistancePosterior> post;
     const sky::Vec3 dir = sky::galactic_direction(src.ra_deg, src.dec_deg);
     try {
-      if (from_posterior(s))
+      if (posterior)
         post.emplace(w, sw, 0, dir.data(), prior, fit::Geometry{s.sun.r0_kpc, s.sun.z_sun_kpc});
     } catch (const InputError& e) {
       out.excluded.push_back(src.name + ": " + e.what());
@@ -186,7 +196,7 @@ ResidualResult compute_residuals(const Catalog& c, const ResidualSettings& s) {
         const Inputs in{w + sw * n1, src.pmra_masyr + src.pmra_err_masyr * (r01 * n1 + c11 * n2),
                         src.pmdec_masyr + src.pmdec_err_masyr * (r02 * n1 + c21 * n2 + c22 * n3),
                         src.vlsr_kms + src.vlsr_err_kms * n4};
-        if (!(in.w > 0)) continue; // no distance
+        if (!(in.w > 0)) continue; // no distance: a normal distance draw is cut at zero
         u = uvw_of(src, in, sw, s, *sun, *rot);
       }
       for (int a = 0; a < 3; ++a) {

@@ -75,7 +75,7 @@ std::vector<Summary> summarise(const ResidualResult& r, int resamples, std::uint
 io::Table source_table(const ResidualResult& r) {
   io::Table t;
   t.title = "Peculiar motions of the catalog's sources";
-  t.label_header = "name";
+  t.text_headers = {"name"};
   t.columns = {{"distance_kpc", "d", "d", "kpc", 5},
                {"R_kpc", "R", "R", "kpc", 5},
                {"psi_deg", "\\psi", "ψ", "deg", 5},
@@ -91,7 +91,7 @@ io::Table source_table(const ResidualResult& r) {
                {"W_err_linear_kms", "\\sigma_W^{\\rm lin}", "σ_W(lin)", "km/s", 3},
                {"frac_parallax_err", "\\sigma_\\varpi/\\varpi", "σ_ϖ/ϖ", "", 3}};
   for (const auto& s : r.sources) {
-    t.row_labels.push_back(s.name);
+    t.text_rows.push_back({s.name});
     t.add_row({s.distance_kpc, s.R_kpc, s.psi_deg, s.z_kpc, s.uvw[0], std::sqrt(s.mc_cov[0]),
                s.uvw[1], std::sqrt(s.mc_cov[4]), s.uvw[2], std::sqrt(s.mc_cov[8]),
                std::sqrt(s.lin_cov[0]), std::sqrt(s.lin_cov[4]), std::sqrt(s.lin_cov[8]),
@@ -103,7 +103,7 @@ io::Table source_table(const ResidualResult& r) {
 io::Table summary_table(const std::vector<Summary>& s) {
   io::Table t;
   t.title = "Mean peculiar motions and dispersions (bootstrap errors)";
-  t.label_header = "group";
+  t.text_headers = {"group"};
   t.columns = {{"n", "N", "N", "", 6}};
   const char* names[] = {"U", "V", "W"};
   for (int a = 0; a < 3; ++a) {
@@ -119,7 +119,7 @@ io::Table summary_table(const std::vector<Summary>& s) {
     for (int a = 0; a < 3; ++a)
       row.insert(row.end(),
                  {s[i].mean[a], s[i].mean_err[a], s[i].dispersion[a], s[i].dispersion_err[a]});
-    t.row_labels.push_back(s[i].group);
+    t.text_rows.push_back({s[i].group});
     t.add_row(row);
   }
   return t;

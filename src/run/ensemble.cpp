@@ -167,7 +167,7 @@ EnsembleResult run_ensemble(const scenario::Scenario& s, const EnsembleOptions& 
     if (!fs::exists(id_file) || io::read_text_file(id_file) != identity(s))
       throw InputError(SourcePlace{dir, 0, 0, {}},
                        "holds an unfinished run of a different scenario (or model file); remove it "
-                       "or run again with --restart");
+                       "or run again with --from-scratch");
     for (const auto& e : fs::directory_iterator(dir)) // temporaries of a run that was killed
       if (e.path().filename().string().rfind(".part_", 0) == 0) fs::remove(e.path());
     while (have < times.size() && fs::exists(part_name(dir, have))) {

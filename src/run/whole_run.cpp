@@ -54,7 +54,7 @@ residuals::ResidualSettings residual_settings(const scenario::Scenario& s) {
   r.distance = c.distance;
   r.edsd_length_kpc = c.edsd_length_kpc;
   r.prior = c.prior;
-  r.min_parallax_snr = c.min_parallax_snr;
+  r.parallax_snr_min = c.parallax_snr_min;
   r.draws = c.draws;
   r.seed = c.seed;
   return r;
@@ -65,9 +65,9 @@ std::string sun_description(const scenario::Scenario& s) {
   const auto& o = s.observation->settings;
   std::ostringstream d;
   d.precision(15);
-  d << "R0 " << o.sun.r0_kpc << " kpc, z_sun " << o.sun.z_sun_kpc << " kpc, Theta0 "
-    << o.sun.theta0_kms << " km/s, solar motion (" << o.sun.u_sun_kms << ", " << o.sun.v_sun_kms
-    << ", " << o.sun.w_sun_kms << ") km/s, LSR "
+  d << "R0 = " << o.sun.r0_kpc << " kpc, z☉ = " << o.sun.z_sun_kpc
+    << " kpc, Θ0 = " << o.sun.theta0_kms << " km/s, (U☉, V☉, W☉) = (" << o.sun.u_sun_kms << ", "
+    << o.sun.v_sun_kms << ", " << o.sun.w_sun_kms << ") km/s, LSR "
     << (o.lsr == sky::LsrForm::apex ? "apex" : "components") << ", from " << o.sun_source;
   return d.str();
 }
@@ -85,7 +85,7 @@ std::string selection_description(const scenario::Scenario& s) {
     << x.parallax_min_mas << " to " << x.parallax_max_mas << " mas, at most " << x.max_sources
     << " sources; errors " << int(e.kind) << " (" << e.parallax_mas << " mas, "
     << e.parallax_fraction << ", " << e.pm_masyr << " mas/yr, " << e.vlsr_kms
-    << " km/s); measured: distance " << int(c.distance) << ", S/N >= " << c.min_parallax_snr;
+    << " km/s); measured: distance " << int(c.distance) << ", S/N >= " << c.parallax_snr_min;
   for (const auto& [ours, theirs] : c.catalog_columns)
     d << ", column " << ours << " = " << theirs;
   return d.str();
@@ -214,8 +214,8 @@ residuals::Catalog verdict_catalog(const scenario::Scenario& s, const residuals:
   out.file = c.file;
   const auto& cm = *s.comparison;
   for (const auto& src : c.sources) {
-    if (cm.min_parallax_snr > 0 &&
-        !(src.parallax_mas >= cm.min_parallax_snr * src.parallax_err_mas))
+    if (cm.parallax_snr_min > 0 &&
+        !(src.parallax_mas >= cm.parallax_snr_min * src.parallax_err_mas))
       continue; // the residuals' own cut, listed there
     if (!fit::parallax_within_prior(src, cm.prior, 0, 0)) {
       excluded.push_back(src.name + ": parallax more than 7 sigma outside the distance prior's "
@@ -241,31 +241,55 @@ std::vector<compare::PlanePoint> plane_points(const residuals::ResidualResult& r
   return out;
 }
 
-io::Table local_table(const compare::LocalResult& l) {
+// One row per measured source: where it is, its measured U_s, V_s, W_s with errors, and the
+// prediction of the simulated sources near it, so that a residual map needs no join.
+io::Table local_table(const compare::LocalResult& l, const residuals::ResidualResult& measured) {
+  // the measured columns as the residual table defines them
+  const io::Table src = residuals::source_table(measured);
   io::Table t;
   t.title = "Measured sources against the simulated young sources near them (descriptive)";
-  t.label_header = "name";
-  t.columns = {{"neighbours", "N", "N", "", 5},
-               {"U_pred_kms", "U_{\\rm pred}", "U_pred", "km/s", 4},
-               {"V_pred_kms", "V_{\\rm pred}", "V_pred", "km/s", 4},
-               {"W_pred_kms", "W_{\\rm pred}", "W_pred", "km/s", 4},
-               {"pull_U", "p_U", "pull_U", "", 3},
-               {"pull_V", "p_V", "pull_V", "", 3},
-               {"pull_W", "p_W", "pull_W", "", 3},
-               {"dof", "\\nu", "ν", "", 4},
-               {"q", "Q", "Q", "", 4},
-               {"p_value", "p", "p", "", 3},
-               {"log_likelihood", "\\ln p", "ln p", "", 5}};
+  t.text_headers = {"name"};
+  std::vector<std::size_t> carried;
+  for (const char* name :
+       {"R_kpc", "psi_deg", "U_kms", "U_err_kms", "V_kms", "V_err_kms", "W_kms", "W_err_kms"})
+    for (std::size_t k = 0; k < src.columns.size(); ++k)
+      if (src.columns[k].name == name) carried.push_back(k), t.columns.push_back(src.columns[k]);
+  for (const io::Column& c :
+       std::vector<io::Column>{{"neighbours", "N", "N", "", 5},
+                               {"U_pred_kms", "U_{\\rm pred}", "U_pred", "km/s", 4},
+                               {"V_pred_kms", "V_{\\rm pred}", "V_pred", "km/s", 4},
+                               {"W_pred_kms", "W_{\\rm pred}", "W_pred", "km/s", 4},
+                               {"pull_U", "{\\rm pull}_U", "pull_U", "", 3},
+                               {"pull_V", "{\\rm pull}_V", "pull_V", "", 3},
+                               {"pull_W", "{\\rm pull}_W", "pull_W", "", 3},
+                               {"dof", "\\nu", "ν", "", 4},
+                               {"q", "Q", "Q", "", 4},
+                               {"p_value", "p", "p", "", 3},
+                               {"log_likelihood", "\\ln p", "ln p", "", 5}})
+    t.columns.push_back(c);
+  std::map<std::string, std::size_t> row_of;
+  for (std::size_t r = 0; r < src.text_rows.size(); ++r)
+    row_of.emplace(src.text_rows[r][0], r);
   for (const auto& s : l.sources) {
-    t.row_labels.push_back(s.name);
-    t.add_row({double(s.neighbours), s.predicted[0], s.predicted[1], s.predicted[2], s.pull[0],
-               s.pull[1], s.pull[2], s.dof, s.chi2, s.p_value, s.log_likelihood});
+    const auto it = row_of.find(s.name);
+    if (it == row_of.end())
+      throw std::logic_error("local table: source '" + s.name + "' is not a measured source");
+    std::vector<double> row;
+    for (const std::size_t k : carried)
+      row.push_back(src.rows[it->second][k]);
+    for (const double v :
+         {double(s.neighbours), s.predicted[0], s.predicted[1], s.predicted[2], s.pull[0],
+          s.pull[1], s.pull[2], s.dof, s.chi2, s.p_value, s.log_likelihood})
+      row.push_back(v);
+    t.add_row({s.name}, std::move(row));
   }
   t.notes.push_back(
       "predictions: the Student-t predictive of the k simulated neighbours (their "
       "sampling noise; Gelman et al. 2013, sec. 3.6), widened by the measurement "
       "errors (Satterthwaite dof); pulls are standard normal deviates of the same "
-      "probability; Q/3 ~ F(3, dof). A descriptive table: the verdict is verdict.csv");
+      "probability; Q/3 ~ F(3, dof); U_s, V_s, W_s and their errors are the measured "
+      "ones (Monte Carlo); pull = (measured - predicted) / its error, as a normal deviate. A "
+      "descriptive table: the verdict is verdict.csv");
   for (const auto& o : l.outliers)
     t.notes.push_back("beyond 3 sigma: " + o);
   return t;
@@ -285,7 +309,7 @@ io::Table verdict_table(const scenario::Scenario& s, const std::vector<compare::
   io::Table t;
   t.title = "Verdict: ln p(proper motions, v_LSR | parallax) of the measured sources, per "
             "realisation";
-  t.label_header = "realisation";
+  t.text_headers = {"realisation"};
   t.columns = {{"tracer_seed", "{\\rm seed}", "seed", "", 10},
                {"log_likelihood", "\\ln L", "ln L", "", 8},
                {"log_likelihood_max", "\\ln L_{\\rm max}", "ln L_max", "", 8},
@@ -298,7 +322,7 @@ io::Table verdict_table(const scenario::Scenario& s, const std::vector<compare::
                {"arm_shift_deg", "\\Delta\\phi_{\\rm arm}", "Δφ_arm", "deg", 4},
                {"far_share", "f_{\\rm far}", "f_far", "", 3}};
   for (std::size_t r = 0; r < v.size(); ++r) {
-    t.row_labels.push_back(std::to_string(r));
+    t.text_rows.push_back({std::to_string(r)});
     t.add_row({double(s.seed + r), v[r].log_likelihood, v[r].log_likelihood_at_best, v[r].floor_kms,
                v[r].floor_mean_kms, v[r].sun_velocity_kms[0], v[r].sun_velocity_kms[1],
                v[r].sun_velocity_kms[2], v[r].r0_kpc, arm_shift_deg(s, r), v[r].far_share});
@@ -340,6 +364,7 @@ WholeRunResult run_all(const scenario::Scenario& s, const WholeRunOptions& o) {
   read.columns = s.comparison->catalog_columns;
   read.lsr = s.observation->settings.lsr;
   const auto measured = residuals::read_catalog(s.comparison->catalog, read); // inputs first
+  residuals::require_parallaxes(measured, "the whole run's verdict");
   const fs::path dir(o.folder);
   std::error_code ec;
   fs::create_directories(dir / ".keys", ec);
@@ -420,7 +445,9 @@ WholeRunResult run_all(const scenario::Scenario& s, const WholeRunOptions& o) {
     if (mock.catalog.sources.empty())
       throw InputError(SourcePlace{s.path, 0, 0, "observation.selection"},
                        "no simulated tracer passes the selection; nothing compared");
-    residuals::write_catalog(mock_path.string(), mock.catalog);
+    // as ECSV and FITS too, for astropy; the CSV last, as it marks the stage finished
+    for (const char* ext : {".ecsv", ".fits", ".csv"})
+      residuals::write_catalog(fs::path(mock_path).replace_extension(ext).string(), mock.catalog);
     write_text(dir / ".keys/mock", mock_key);
     note("mock catalog: " + std::to_string(mock.catalog.sources.size()) + " sources");
   }
@@ -460,7 +487,7 @@ WholeRunResult run_all(const scenario::Scenario& s, const WholeRunOptions& o) {
   nb.min_count = s.comparison->min_neighbours;
   const auto local =
       compare::compare_locally(plane_points(meas_res), predictions(s, weights, window), nb);
-  const auto ltab = local_table(local);
+  const auto ltab = local_table(local, meas_res);
 
   // 5. the verdict, for each realisation
   for (std::size_t r = 1; r < K; ++r)
@@ -535,7 +562,7 @@ WholeRunResult run_all(const scenario::Scenario& s, const WholeRunOptions& o) {
     io::h5::set_attr(f, f.id(), "judged_sources_digest", io::hex64(io::fnv1a64(names)));
     io::h5::set_attr(f, f.id(), "mean_V_measured_kms", all_v.measured.mean);
     io::h5::set_attr(f, f.id(), "mean_V_simulated_kms", all_v.simulated.mean);
-    io::h5::set_attr(f, f.id(), "mean_V_significance", all_v.significance);
+    io::h5::set_attr(f, f.id(), "mean_V_pull", all_v.pull);
     io::write_table_group(f, "global", global);
     io::write_table_group(f, "local", ltab);
     io::write_table_group(f, "verdict_table", vtab);
@@ -554,26 +581,29 @@ WholeRunResult run_all(const scenario::Scenario& s, const WholeRunOptions& o) {
                           "ln p(pm, v_LSR | parallax) per realisation (rows) and source "
                           "(columns), at the maximum over the nuisances");
   });
-  const auto& sun = s.observation->settings.sun;
-  char b[3072];
+  // summary.txt speaks the tables' notation (their Markdown symbols) and names each table
+  char b[4096];
   std::snprintf(
       b, sizeof b,
       "scenario %s (%s)\n"
-      "the Sun: R0 = %g kpc, z_sun = %g kpc, Theta0 = %g km/s, solar motion (%g, %g, %g) km/s, "
-      "from %s\n"
-      "measured catalog: %s, %zu sources used\n"
-      "mock catalog: %zu sources observed at t = %g Myr\n"
-      "mean V_s: measured %.2f +- %.2f km/s, simulated %.2f +- %.2f km/s, difference %.1f sigma\n"
-      "mean U_s: measured %.2f +- %.2f km/s, simulated %.2f +- %.2f km/s\n"
-      "verdict: ln L = %.1f, scatter %.1f over %zu realisation%s (tracer seeds %llu-%llu), %zu "
-      "sources; sigma_int %.1f km/s; the Sun's velocity %s; R0 %s\n"
-      "local table: %zu of %zu sources beyond 3 sigma of their Student-t prediction\n",
-      s.name.c_str(), s.path.c_str(), sun.r0_kpc, sun.z_sun_kpc, sun.theta0_kms, sun.u_sun_kms,
-      sun.v_sun_kms, sun.w_sun_kms, s.observation->settings.sun_source.c_str(),
-      s.comparison->catalog.c_str(), meas_res.sources.size(), mock_res.sources.size(),
-      prep.time_myr, all_v.measured.mean, all_v.measured.mean_err, all_v.simulated.mean,
-      all_v.simulated.mean_err, all_v.significance, all_u.measured.mean, all_u.measured.mean_err,
-      all_u.simulated.mean, all_u.simulated.mean_err, summary.mean, summary.scatter, K,
+      "the Sun: %s\n"
+      "measured catalog: %s, N_meas = %zu sources used\n"
+      "mock catalog: N_sim = %zu sources observed at t = %g Myr\n"
+      "signs: Δ = measured − simulated; Δ/σ_Δ = Δ over its error (a pull, not a p-value); "
+      "pull = (measured − predicted) / its error\n"
+      "all V_s (comparison-global): mean_meas = %.2f ± %.2f km/s, mean_sim = %.2f ± %.2f km/s, "
+      "Δ = %.2f km/s, Δ/σ_Δ = %.2f\n"
+      "all U_s (comparison-global): mean_meas = %.2f ± %.2f km/s, mean_sim = %.2f ± %.2f km/s, "
+      "Δ = %.2f km/s, Δ/σ_Δ = %.2f\n"
+      "verdict: ln L = %.1f, scatter %.1f over %zu realisation%s (seeds %llu-%llu), %zu "
+      "sources; ⟨σ_int⟩ = %.1f km/s; the Sun's velocity %s; R0 %s\n"
+      "comparison-local: %zu of %zu sources with p < 0.0027 (beyond 3 σ) of their Student-t "
+      "prediction\n",
+      s.name.c_str(), s.path.c_str(), sun_description(s).c_str(), s.comparison->catalog.c_str(),
+      meas_res.sources.size(), mock_res.sources.size(), prep.time_myr, all_v.measured.mean,
+      all_v.measured.mean_err, all_v.simulated.mean, all_v.simulated.mean_err, all_v.difference,
+      all_v.pull, all_u.measured.mean, all_u.measured.mean_err, all_u.simulated.mean,
+      all_u.simulated.mean_err, all_u.difference, all_u.pull, summary.mean, summary.scatter, K,
       K == 1 ? "" : "s", (unsigned long long)s.seed, (unsigned long long)(s.seed + K - 1),
       judged.sources.size(), verdicts[0].floor_mean_kms,
       vs.marginalise_sun ? "marginalised" : "held fixed",
@@ -582,12 +612,12 @@ WholeRunResult run_all(const scenario::Scenario& s, const WholeRunOptions& o) {
   res.summary = b;
   if (lag) {
     // the youngest bin with stars through the mock survey, and the oldest
-    std::string line = "lag by age (mean V_s through the mock survey):";
+    std::string line = "lag-by-age: mean V_s mock ± err by age:";
     for (const auto& row : lag->by_age.rows)
       if (row[9] >= 3)
         line += " " + io::format_number(row[0], 3) + "-" + io::format_number(row[1], 3) + " Myr " +
-                io::format_number(row[12], 3) + " +- " + io::format_number(row[13], 2) + ";";
-    res.summary += line + " km/s (lag-by-age.md)\n";
+                io::format_number(row[12], 3) + " ± " + io::format_number(row[13], 2) + ";";
+    res.summary += line + " km/s\n";
   }
   if (K == 1)
     res.summary += "note: one realisation: the verdict's realisation noise is not known; set "
@@ -612,7 +642,7 @@ io::Table compare_runs(const std::vector<std::string>& folders) {
   if (folders.size() < 2) throw InputError("give two or more run folders to compare");
   io::Table t;
   t.title = "Models against one catalog: the verdict, differences against the first";
-  t.label_header = "run";
+  t.text_headers = {"run"};
   t.columns = {{"n", "N", "N", "", 5},
                {"realisations", "K", "K", "", 3},
                {"log_likelihood", "\\ln L", "ln L", "", 8},
@@ -621,14 +651,14 @@ io::Table compare_runs(const std::vector<std::string>& folders) {
                {"delta_err", "\\sigma_\\Delta", "σ_Δ", "", 3},
                {"delta_sources_err", "\\sigma_{\\rm src}", "σ_src", "", 3},
                {"delta_realisations_err", "\\sigma_{\\rm real}", "σ_real", "", 3},
-               {"delta_significance", "\\Delta/\\sigma_\\Delta", "Δ/σ_Δ", "", 3},
+               {"delta_pull", "\\Delta/\\sigma_\\Delta", "Δ/σ_Δ", "", 3},
                {"mean_V_measured_kms", "\\langle V_s\\rangle_{\\rm meas}", "⟨V_s⟩_meas", "km/s", 4},
                {"mean_V_simulated_kms", "\\langle V_s\\rangle_{\\rm sim}", "⟨V_s⟩_sim", "km/s", 4},
-               {"mean_V_significance", "\\Delta V/\\sigma", "ΔV/σ", "", 3}};
+               {"mean_V_pull", "\\Delta V/\\sigma", "ΔV/σ", "", 3}};
   std::string first_catalog, first_sun, first_selection, first_verdict, first_judged;
   std::vector<std::string> names;
   std::vector<compare::RealisationSummary> sums;
-  std::vector<std::array<double, 4>> extra; // n, mean V measured, simulated, significance
+  std::vector<std::array<double, 4>> extra; // n, mean V measured, simulated, pull
   for (std::size_t i = 0; i < folders.size(); ++i) {
     const fs::path p = fs::path(folders[i]) / "comparison.h5";
     const auto f = io::h5::File::open_read(p.string());
@@ -676,13 +706,13 @@ io::Table compare_runs(const std::vector<std::string>& folders) {
     names.push_back(io::h5::get_attr_string(f, f.id(), "run_name"));
     extra.push_back({double(n), io::h5::get_attr_double(f, f.id(), "mean_V_measured_kms"),
                      io::h5::get_attr_double(f, f.id(), "mean_V_simulated_kms"),
-                     io::h5::get_attr_double(f, f.id(), "mean_V_significance")});
+                     io::h5::get_attr_double(f, f.id(), "mean_V_pull")});
   }
   // rows by run name; runs that share a name also get their folder
   for (std::size_t i = 0; i < names.size(); ++i)
-    t.row_labels.push_back(std::count(names.begin(), names.end(), names[i]) > 1
+    t.text_rows.push_back({std::count(names.begin(), names.end(), names[i]) > 1
                                ? names[i] + " (" + folders[i] + ")"
-                               : names[i]);
+                               : names[i]});
   bool unknown_noise = false;
   for (std::size_t i = 0; i < sums.size(); ++i) {
     compare::ModelDifference d;
@@ -695,24 +725,25 @@ io::Table compare_runs(const std::vector<std::string>& folders) {
     char b[512];
     if (d.distinguished)
       std::snprintf(b, sizeof b,
-                    "%s against %s: Delta ln L = %+.1f +- %.1f: the catalog prefers %s "
-                    "(|Delta| > 2 sigma)",
-                    t.row_labels[i].c_str(), t.row_labels[0].c_str(), d.delta, d.sigma,
-                    d.delta > 0 ? t.row_labels[i].c_str() : t.row_labels[0].c_str());
+                    "%s against %s: Δ ln L = %+.1f ± %.1f: the catalog prefers %s "
+                    "(|Δ ln L| > 2 σ_Δ)",
+                    t.text_rows[i][0].c_str(), t.text_rows[0][0].c_str(), d.delta, d.sigma,
+                    d.delta > 0 ? t.text_rows[i][0].c_str() : t.text_rows[0][0].c_str());
     else
       std::snprintf(b, sizeof b,
-                    "%s against %s: Delta ln L = %+.1f +- %.1f: NOT distinguished by this "
-                    "catalog (|Delta| within 2 sigma)",
-                    t.row_labels[i].c_str(), t.row_labels[0].c_str(), d.delta, d.sigma);
+                    "%s against %s: Δ ln L = %+.1f ± %.1f: NOT distinguished by this "
+                    "catalog (|Δ ln L| within 2 σ_Δ)",
+                    t.text_rows[i][0].c_str(), t.text_rows[0][0].c_str(), d.delta, d.sigma);
     t.notes.push_back(b);
   }
-  t.notes.push_back("sigma_Delta adds the catalog's sampling (bootstrap over sources, closed "
+  t.notes.push_back("Δ ln L = ln L of the run − ln L of the first; σ_Δ adds the catalog's sampling "
+                    "(bootstrap over sources, closed "
                     "form, from the per-source ln L at each realisation's maximum) and the "
                     "realisations' scatter (s^2/K of each run) in quadrature; as the per-source "
                     "values also carry realisation noise, it errs on the large side");
   if (unknown_noise)
     t.notes.push_back("WARNING: runs with one realisation each: the realisation noise is not "
-                      "known and sigma_Delta holds the catalog's sampling only; set [comparison] "
+                      "known and σ_Δ holds the catalog's sampling only; set [comparison] "
                       "realisations = 4 or more");
   t.notes.push_back("the runs share the measured catalog (by content), the Sun and the "
                     "selection, checked; the Sun: " +

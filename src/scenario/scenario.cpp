@@ -299,15 +299,15 @@ Scenario parse_scenario(const std::string& text, const std::string& path) {
     } catch (const InputError& e) {
       q.fail(e.place().field, e.what());
     }
-    c.min_parallax_snr = q.number_or("parallax_snr_min", 0.0);
+    c.parallax_snr_min = q.number_or("parallax_snr_min", 0.0);
     const auto whole = [&](const char* k, double d, double lo) {
       const double v = q.number_or(k, d);
       if (!(v >= lo && std::floor(v) == v && v < 1e9))
         q.fail(k, "must be a whole number of at least " + detail::num(lo));
       return v;
     };
-    c.draws = int(whole("draws", 200, 2));
-    c.bootstrap = int(whole("bootstrap", 500, 2));
+    c.draws = int(whole("draws", residuals::kDefaultDraws, 2));
+    c.bootstrap = int(whole("bootstrap", residuals::kDefaultBootstrap, 2));
     c.seed = std::uint64_t(whole("seed", 1, 0));
     const std::string nb = q.string_or("neighbourhood", "nearest");
     if (nb != "nearest" && nb != "radius")

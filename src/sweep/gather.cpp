@@ -50,8 +50,8 @@ const Stat stats[] = {
      [](R r, double) { return r.mean_simulated[1]; }},
     {"mean_V_measured_kms", "\\langle V_s\\rangle_{\\rm meas}", "⟨V_s⟩_meas", "km/s", 4, false,
      [](R r, double) { return r.mean_measured[1]; }},
-    {"mean_V_significance", "\\Delta V/\\sigma", "ΔV/σ", "", 3, false,
-     [](R r, double) { return r.significance[1]; }},
+    {"mean_V_pull", "\\Delta V/\\sigma", "ΔV/σ", "", 3, false,
+     [](R r, double) { return r.pull[1]; }},
 };
 
 } // namespace
@@ -133,6 +133,10 @@ GatherReport gather(const Plan& p, const GatherOptions& o) {
     throw InputError(SourcePlace{"", 0, 0, "--sort"},
                      "delta_log_likelihood needs a reference model in the sweep ([sweep] "
                      "reference = ...)");
+  if (!known && (sort == "mean_V_significance" || sort == "V_significance"))
+    throw InputError(SourcePlace{"", 0, 0, "--sort"},
+                     "'" + sort + "' is renamed mean_V_pull (a difference over its error is a "
+                     "pull; docs/migration.md)");
   if (!known) {
     std::string list = "number";
     for (const auto* c : columns)
@@ -243,7 +247,7 @@ GatherReport gather(const Plan& p, const GatherOptions& o) {
   io::Table t;
   t.title = "Sweep " + p.name + ": " + std::to_string(rep.complete) + " of " +
             std::to_string(p.points.size()) + " points";
-  t.label_header = "id";
+  t.text_headers = {"id"};
   t.columns.push_back({"number", "\\#", "#", "", 6});
   std::vector<std::size_t> numeric;
   for (std::size_t j = 0; j < p.parameters.size(); ++j) {
@@ -287,7 +291,7 @@ GatherReport gather(const Plan& p, const GatherOptions& o) {
     if (p.replicates > 1) row.push_back(double(q.replicate));
     for (const auto* s : columns)
       row.push_back(s->value(status[i].result, ref_log_l));
-    t.row_labels.push_back(label);
+    t.text_rows.push_back({label});
     t.add_row(row);
   }
   t.notes.push_back("sorted by " + sort_by +
@@ -309,12 +313,12 @@ GatherReport gather(const Plan& p, const GatherOptions& o) {
     for (const auto& f : rep.failed)
       t.notes.push_back("failed: " + f);
   }
-  const std::string prefix =
-      o.prefix.empty() ? (fs::path(p.folder) / (p.name + "-results")).string() : o.prefix;
+  const std::string folder = o.folder.empty() ? p.folder : o.folder;
+  const std::string prefix = (fs::path(folder) / (p.name + "-results")).string();
   io::Table post_table, marg_table;
   if (post) {
     post_table.title = "Posterior over the swept parameters (uniform prior over the swept box)";
-    post_table.label_header = "parameter";
+    post_table.text_headers = {"parameter", "unit"}; // values in each parameter's own unit
     post_table.columns = {{"best", "\\hat\\theta", "best", "", 6},
                           {"median", "{\\rm median}", "median", "", 6},
                           {"lo68", "68\\%_{\\rm lo}", "68%lo", "", 6},
@@ -324,19 +328,17 @@ GatherReport gather(const Plan& p, const GatherOptions& o) {
                           {"mass_low_edge", "m_{\\rm low}", "m_low", "", 3},
                           {"mass_high_edge", "m_{\\rm high}", "m_high", "", 3}};
     marg_table.title = "Marginal posterior and profile ln L per swept value";
-    marg_table.label_header = "parameter";
+    marg_table.text_headers = {"parameter", "unit"};
     marg_table.columns = {
         {"value", "\\theta", "value", "", 6},
         {"marginal", "p", "p", "", 4},
         {"profile_delta_log_likelihood", "\\Delta\\ln L_{\\rm prof}", "Δ ln L_prof", "", 5}};
     for (const auto& pp : post->parameters) {
-      post_table.row_labels.push_back(pp.key + (pp.unit.empty() ? "" : " [" + pp.unit + "]"));
-      post_table.add_row({pp.best, pp.median, pp.lo68, pp.hi68, pp.lo95, pp.hi95, pp.mass_low_edge,
-                          pp.mass_high_edge});
+      post_table.add_row({pp.key, pp.unit}, {pp.best, pp.median, pp.lo68, pp.hi68, pp.lo95, pp.hi95,
+                                             pp.mass_low_edge, pp.mass_high_edge});
       if (p.design == "grid")
         for (std::size_t k = 0; k < pp.values.size(); ++k) {
-          marg_table.row_labels.push_back(pp.key);
-          marg_table.add_row({pp.values[k], pp.marginal[k], pp.profile[k]});
+          marg_table.add_row({pp.key, pp.unit}, {pp.values[k], pp.marginal[k], pp.profile[k]});
         }
     }
     std::string best = "best point:";
@@ -354,6 +356,7 @@ GatherReport gather(const Plan& p, const GatherOptions& o) {
   } else if (!rep.posterior_refused.empty()) {
     t.notes.push_back("no posterior written: " + rep.posterior_refused);
   }
+  fs::create_directories(folder); // here: a refused posterior leaves nothing behind
   rep.files = io::write_table_files(prefix, t);
   if (post) {
     for (const auto& f : io::write_table_files(prefix + "-posterior", post_table))

@@ -77,7 +77,7 @@ std::string finished_text(const Point& q, const PointResult& r,
     res.insert("mean_" + x + "_measured_err_kms", r.mean_measured_err[a]);
     res.insert("mean_" + x + "_simulated_kms", r.mean_simulated[a]);
     res.insert("mean_" + x + "_simulated_err_kms", r.mean_simulated_err[a]);
-    res.insert("mean_" + x + "_significance", r.significance[a]);
+    res.insert("mean_" + x + "_pull", r.pull[a]);
   }
   t.insert("result", res);
   toml::table f;
@@ -109,7 +109,7 @@ PointResult read_result(const toml::table& t, const std::string& path) {
     x.mean_measured_err[a] = r.number("mean_" + s + "_measured_err_kms");
     x.mean_simulated[a] = r.number("mean_" + s + "_simulated_kms");
     x.mean_simulated_err[a] = r.number("mean_" + s + "_simulated_err_kms");
-    x.significance[a] = r.number("mean_" + s + "_significance");
+    x.pull[a] = r.number("mean_" + s + "_pull");
   }
   return x;
 }
@@ -128,7 +128,7 @@ PointResult result_of(const run::WholeRunResult& w) {
     r.mean_measured_err[a] = c.measured.mean_err;
     r.mean_simulated[a] = c.simulated.mean;
     r.mean_simulated_err[a] = c.simulated.mean_err;
-    r.significance[a] = c.significance;
+    r.pull[a] = c.pull;
   }
   return r;
 }

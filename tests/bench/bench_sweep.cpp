@@ -68,7 +68,7 @@ void BM_sweep_skip_check_per_point(benchmark::State& st) {
 void BM_sweep_gather_per_point(benchmark::State& st) {
   const auto& p = finished_plan();
   sweep::GatherOptions g;
-  g.prefix = (fs::path(p.folder) / "gathered").string();
+  g.folder = (fs::path(p.folder) / "gathered").string();
   for (auto _ : st)
     benchmark::DoNotOptimize(sweep::gather(p, g));
   st.SetItemsProcessed(st.iterations() * std::int64_t(p.points.size()));

@@ -88,11 +88,11 @@ PY
 
 # 3. Residuals with the fit's Galactic parameters: median and marginalised.
 "$undertow" residuals survey.csv --galactic-from out/fit.h5 -o res1 > /dev/null 2>&1
-grep -q "from the kinematic fit out/fit.h5 (posterior median" res1-summary.md ||
+grep -q "from the kinematic fit out/fit.h5 (posterior median" res1/residuals-summary.md ||
   fail "residuals do not name the fit they took the Galactic parameters from"
 "$undertow" residuals survey.csv --galactic-from out/fit.h5 --marginalise \
   --distance posterior-median --distance-range 1,10 -o res2 > /dev/null
-grep -q "marginalised over" res2-summary.md || fail "marginalisation not named"
+grep -q "marginalised over" res2/residuals-summary.md || fail "marginalisation not named"
 
 # 3b. A mock observation whose Sun comes from the fit: R0 and the Sun's total velocity as fitted.
 cat > tiny.toml <<TOML

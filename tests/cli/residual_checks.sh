@@ -52,7 +52,8 @@ TOML
 "$undertow" observe run.h5 obs.toml -o mock.csv | tee observe.log
 grep -q "150 sources observed at t = 200 Myr" observe.log || fail "unexpected: $(cat observe.log)"
 "$undertow" residuals mock.csv --model "$src/potentials/kestrel.toml" --r0 8.1 -o mock-res > res.log 2> res.err
-for f in mock-res-sources.csv mock-res-summary.md mock-res-summary.tex mock-res.h5; do
+for f in mock-res/residuals-sources.csv mock-res/residuals-summary.md mock-res/residuals-summary.tex \
+  mock-res/residuals.h5; do
   [ -s "$f" ] || fail "missing $f"
 done
 grep -q "| all | 150 |" res.log || fail "summary lacks 150 sources: $(head -5 res.log)"
@@ -60,7 +61,7 @@ grep -q "^with R0 = 8.1 kpc, z_sun = 0 kpc, Theta0 = .* km/s, solar motion (11.1
   fail "the solar parameters used are not printed: $(head -3 res.log)"
 /usr/bin/python3 - <<'PY' || fail "the residual HDF5 file is not as documented"
 import h5py
-with h5py.File("mock-res.h5") as f:
+with h5py.File("mock-res/residuals.h5") as f:
     assert f["sources/V_kms"].attrs["units"] == "km/s"
     assert f["sources/name"].shape == (150,)
     assert f["summary/group"][0] in (b"all", "all")
@@ -81,9 +82,9 @@ grep -q "typo.toml:8:1: selection.source_max: unknown key" t.log || fail "unclea
 echo "   $(cat t.log)"
 
 echo "-- a catalog whose sources all fail the parallax cut"
-if "$undertow" residuals mock.csv --flat 230 --r0 8.1 --min-parallax-snr 1e6 -o none > n.log 2>&1; then fail "no error"; fi
+if "$undertow" residuals mock.csv --flat 230 --r0 8.1 --parallax-snr-min 1e6 -o none > n.log 2>&1; then fail "no error"; fi
 grep -q "no source is left after the selection; nothing written" n.log || fail "unclear: $(cat n.log)"
-[ -e none-summary.csv ] && fail "tables written for an empty selection"
+[ -e none ] && fail "tables written for an empty selection"
 echo "   $(tail -1 n.log)"
 
 echo "-- a bad catalog row"
@@ -105,7 +106,64 @@ one_line_error "give a linear curve as --linear THETA0,SLOPE" \
 one_line_error "give one rotation curve" "$undertow" residuals mock.csv --flat 230 --linear 230,-2 --r0 8.1 -o x
 one_line_error "the curve's value at R0 is Theta0" \
   "$undertow" residuals mock.csv --flat 230 --theta0 240 --r0 8.1 -o x
-[ -e x-summary.csv ] && fail "tables written for refused options"
+[ -e x ] && fail "tables written for refused options"
 "$undertow" residuals mock.csv --linear 230,-2 --r0 8.1 -o lin > lin.log 2>&1 || fail "a linear curve: $(cat lin.log)"
 grep -q "Theta(R) = 230 + -2 (R - R0) km/s" lin.log || fail "the linear curve is not said: $(head -2 lin.log)"
+
+echo "-- renamed options are refused naming the new spelling"
+one_line_error "residuals --min-parallax-snr is gone: use --parallax-snr-min" \
+  "$undertow" residuals mock.csv --flat 230 --r0 8.1 --min-parallax-snr 3 -o x
+one_line_error "integrate --restart is gone: use --from-scratch" "$undertow" integrate run.toml -o x.h5 --restart
+one_line_error "run --force is gone: use --from-scratch" "$undertow" run run.toml -o x --force
+[ -e x ] || [ -e x.h5 ] && fail "output written for a renamed option"
+
+echo "-- -o names a folder for residuals; a file there is refused before any work"
+touch afile
+one_line_error "afile: not a folder" "$undertow" residuals mock.csv --flat 230 --r0 8.1 -o afile
+
+echo "-- the mock catalog as ECSV and FITS: every digit, the same residuals byte for byte"
+"$undertow" observe run.h5 obs.toml -o mock.ecsv > /dev/null
+"$undertow" observe run.h5 obs.toml -o mock.fits > /dev/null
+head -c 9 mock.fits | grep -q "SIMPLE  =" || fail "mock.fits is not FITS"
+head -1 mock.ecsv | grep -q "^# %ECSV 1.0" || fail "mock.ecsv is not ECSV"
+for f in ecsv fits; do
+  "$undertow" residuals mock.$f --model "$src/potentials/kestrel.toml" --r0 8.1 -o res-$f > /dev/null 2>&1 ||
+    fail "residuals of mock.$f"
+  cmp -s mock-res/residuals-sources.csv res-$f/residuals-sources.csv ||
+    fail "mock.$f gives other residuals than mock.csv"
+done
+/usr/bin/python3 - <<'PY' || fail "the mock catalogs do not hold the same numbers"
+from astropy.table import Table
+import numpy as np
+c = Table.read("mock.csv", format="ascii.csv", comment="#")
+for f in ("mock.ecsv", "mock.fits"):
+    t = Table.read(f)
+    assert str(t["parallax_mas"].unit) == "mas", t["parallax_mas"].unit
+    for col in ("ra_deg", "parallax_mas", "pmra_masyr", "vlsr_kms"):
+        assert np.array_equal(np.asarray(c[col], float), np.asarray(t[col], float)), (f, col)
+PY
+
+echo "-- distances given directly: d = 1/parallax gives the same U, V, W"
+/usr/bin/python3 - <<'PY'
+from astropy.table import Table
+t = Table.read("mock.ecsv")
+t["distance_kpc"] = 1 / t["parallax_mas"].value
+t["distance_err_kpc"] = t["parallax_err_mas"].value / t["parallax_mas"].value ** 2
+t["distance_kpc"].unit = t["distance_err_kpc"].unit = "kpc"
+t.remove_columns(["parallax_mas", "parallax_err_mas"])
+t.write("dist.ecsv", format="ascii.ecsv", overwrite=True)
+PY
+"$undertow" residuals dist.ecsv --model "$src/potentials/kestrel.toml" --r0 8.1 -o res-dist > /dev/null 2>&1 ||
+  fail "residuals of a catalog of distances"
+/usr/bin/python3 - <<'PY' || fail "distances given directly give other U, V, W than 1/parallax"
+from astropy.table import Table
+import numpy as np
+a = Table.read("mock-res/residuals-sources.ecsv")
+b = Table.read("res-dist/residuals-sources.ecsv")
+for c in ("distance_kpc", "U_kms", "V_kms", "W_kms"):
+    assert np.allclose(a[c], b[c], rtol=0, atol=1e-9), c
+for c in ("U_err_linear_kms", "V_err_linear_kms"):
+    assert np.allclose(a[c], b[c], rtol=1e-3), c
+print("   distances: U, V, W equal to 1e-9 km/s, first-order errors to 1e-3")
+PY
 echo "residual checks: all passed"

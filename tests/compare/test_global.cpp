@@ -37,14 +37,16 @@ TEST_CASE("A measured catalog compared with itself gives zero differences and p-
 }
 
 TEST_CASE("The global table finds a 5 km/s lag between 200 measured and 2000 simulated sources "
-          "at high significance, and no difference in U_s",
+          "at a pull beyond 5, and no difference in U_s",
           "[compare]") {
   std::mt19937_64 rng(9);
   const auto m = sample(rng, 200, -5), s = sample(rng, 2000, 0);
   const auto t = compare::global_table(m, s, {}, 500, 2);
-  REQUIRE(t.row_labels[1] == "all V_s");
+  REQUIRE(t.text_headers == std::vector<std::string>{"subset", "component"});
+  REQUIRE(t.text_rows[1] == std::vector<std::string>{"all", "V_s"});
   CHECK(t.rows[1][6] == Approx(-5).margin(2.0));
-  CHECK(t.rows[1][7] < -5);    // significance
+  CHECK(t.columns[7].name == "pull");
+  CHECK(t.rows[1][7] < -5);    // the pull, (measured - simulated) / its error
   CHECK(t.rows[1][14] < 1e-3); // KS
   CHECK(std::fabs(t.rows[0][7]) < 3);
 }
@@ -58,7 +60,8 @@ TEST_CASE("Global comparison as values: all() is the subset of all sources, and 
   REQUIRE(g.subsets.size() == 1 + 2 + 2); // all, two radius bins, two groups
   CHECK(g.all().label == "all");
   CHECK(g.all().uvw[1].measured.n == 200);
-  CHECK(g.all().uvw[1].significance < -5); // the 5 km/s lag (definition of the significance)
+  CHECK(g.all().uvw[1].pull < -5); // the 5 km/s lag
+  CHECK(g.subsets[1].label == "R 5 to 8 kpc"); // a bin's label reads as a range
   const auto t = compare::global_table(g);
   REQUIRE(t.rows.size() == g.subsets.size() * 3);
   for (std::size_t i = 0; i < g.subsets.size(); ++i)
@@ -67,7 +70,9 @@ TEST_CASE("Global comparison as values: all() is the subset of all sources, and 
       const auto& row = t.rows[3 * i + c];
       CHECK(row[2] == v.measured.mean);
       CHECK(row[4] == v.simulated.mean);
-      CHECK(row[7] == v.significance);
+      CHECK(row[7] == v.pull);
+      CHECK(t.text_rows[3 * i + c][0] == g.subsets[i].label);
+      CHECK(t.text_rows[3 * i + c][1] == std::string(1, "UVW"[c]) + "_s");
     }
   compare::GlobalComparison empty;
   CHECK_THROWS_AS(empty.all(), std::logic_error);

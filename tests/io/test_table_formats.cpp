@@ -32,10 +32,10 @@ io::Table sample_table() {
                {"vc_kms", "v_c", "v_c", "km/s", 4},
                {"kappa_kms_kpc", "\\kappa", "κ", "km/s/kpc", 3},
                {"rho_msun_pc3", "\\rho", "ρ", "Msun/pc^3", 3}};
-  t.label_header = "ring";
+  t.text_headers = {"ring"};
   t.add_row({11.419912345678, 233.0000000001, 0.1, NAN});
   t.add_row({1e-300, -0.0, 1.0 / 3.0, 6.02214076e23});
-  t.row_labels = {"4-6 kpc, inner", "say \"outer\""};
+  t.text_rows = {{"4-6 kpc, inner"}, {"say \"outer\""}};
   t.notes = {"Δ = measured − model", "a note, with a comma"};
   return t;
 }

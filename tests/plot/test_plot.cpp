@@ -180,6 +180,8 @@ void fake_run(const fs::path& dir, bool with_pulls) {
   io::h5::File::write_atomically((dir / "comparison.h5").string(), [&](const io::h5::File& f) {
     const auto g = io::h5::create_group(f, "local");
     io::h5::write_strings(f, g.id(), "name", names, "");
+    io::h5::write_doubles(f, g.id(), "R_kpc", R, 1, "kpc", "");
+    io::h5::write_doubles(f, g.id(), "psi_deg", psi, 1, "deg", "");
     io::h5::write_doubles(f, g.id(), "pull_U", pull, 1, "", "");
     io::h5::write_doubles(f, g.id(), "pull_V", zero, 1, "", "");
     if (with_pulls) io::h5::write_doubles(f, g.id(), "pull_W", zero, 1, "", "");

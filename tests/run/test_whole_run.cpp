@@ -1,9 +1,11 @@
 // The whole job from one scenario: stages, reuse, outputs and the model-vs-model table.
+#include <algorithm>
 #include <catch2/catch.hpp>
 #include <filesystem>
 #include <fstream>
 
 #include "undertow/error.hpp"
+#include "undertow/io/hdf5.hpp"
 #include "undertow/run/whole_run.hpp"
 
 using namespace undertow;
@@ -95,6 +97,21 @@ TEST_CASE("A whole run writes every stage into one folder, reuses finished stage
                         "mock-residuals.h5", "comparison-global.csv", "comparison-local.tex",
                         "comparison.h5", "summary.txt", "scenario.toml"})
     CHECK(fs::exists(d / "spiral" / f));
+  { // the local table carries each source's R, psi and measured U_s, V_s, W_s: no join needed
+    const auto cmp = io::h5::File::open_read((d / "spiral" / "comparison.h5").string());
+    const auto res = io::h5::File::open_read((d / "spiral" / "measured-residuals.h5").string());
+    const auto names = io::h5::read_strings(cmp, cmp.id(), "local/name"),
+               all = io::h5::read_strings(res, res.id(), "sources/name");
+    REQUIRE(names.size() == 120);
+    for (const char* c : {"R_kpc", "psi_deg", "U_kms", "V_err_kms", "W_kms"}) {
+      const auto local = io::h5::read_doubles(cmp, cmp.id(), std::string("local/") + c, 1),
+                 source = io::h5::read_doubles(res, res.id(), std::string("sources/") + c, 1);
+      for (std::size_t i = 0; i < names.size(); ++i) {
+        const auto at = std::find(all.begin(), all.end(), names[i]) - all.begin();
+        CHECK(local[i] == source[std::size_t(at)]);
+      }
+    }
+  }
   const auto r2 = run::run_all(spiral, o);
   CHECK(r2.reused == std::vector<std::string>{"orbits", "mock", "orbits-r1"});
   CHECK(fs::exists(d / "spiral" / "realisations" / "r1" / "orbits.h5"));
@@ -113,7 +130,7 @@ TEST_CASE("A whole run writes every stage into one folder, reuses finished stage
   REQUIRE(table.rows.size() == 2);
   CHECK(table.rows[0][4] == 0); // Delta ln L of the first
   CHECK(table.rows[1][5] > 0);  // its uncertainty
-  CHECK(table.row_labels[1].find((d / "axi").string()) != std::string::npos); // same run name
+  CHECK(table.text_rows[1][0].find((d / "axi").string()) != std::string::npos); // same run name
   // a run against another catalog is refused: Delta ln L would compare different data
   const auto other = scenario::parse_scenario(
       scenario_text("kestrel-axisymmetric.toml", (d / "none.csv").string(), 7),

@@ -1,7 +1,8 @@
 #pragma once
 // Global comparison of measured and simulated peculiar motions, component by component and
 // over subsets (all sources, radius bins, azimuth bins, the catalog's groups): location and
-// scale on both sides, their difference with its significance, and KS and AD p-values.
+// scale on both sides, their difference with its pull (difference over its error), and KS and AD
+// p-values.
 #include <array>
 #include <cstdint>
 #include <string>
@@ -19,7 +20,8 @@ struct SampleStats {
 
 struct ComponentComparison {
   SampleStats measured, simulated;
-  double difference = 0, difference_err = 0, significance = 0; // measured - simulated
+  double difference = 0, difference_err = 0,
+         pull = 0; // measured - simulated; pull = difference / difference_err
   double ks_p = 1, ad_p = 1;
 };
 

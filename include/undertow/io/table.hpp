@@ -21,17 +21,27 @@ struct Table {
   std::string title;
   std::vector<Column> columns;
   std::vector<std::vector<double>> rows;
-  std::string label_header;            // when set, a first text column ("name", "group")
-  std::vector<std::string> row_labels; // one per row
+  // Text columns before the numbers ("name"; "subset", "component"): their headers, and per row
+  // one text for each (text_rows[r][k] under text_headers[k]).
+  std::vector<std::string> text_headers;
+  std::vector<std::vector<std::string>> text_rows;
   std::vector<std::string> notes; // printed under the table (Markdown, LaTeX) or as # lines (CSV)
 
   void add_row(std::vector<double> row);
-  // A first text column: a header and one label per row.
-  bool has_row_labels() const { return !label_header.empty() && row_labels.size() == rows.size(); }
+  // A row with its texts, one per text header.
+  void add_row(std::vector<std::string> texts, std::vector<double> row);
+  // Whether the text columns are written: headers set and every row has its texts.
+  bool has_text_columns() const {
+    return !text_headers.empty() && text_rows.size() == rows.size();
+  }
+  // The texts of text column k, one per row.
+  std::vector<std::string> text_column(std::size_t k) const;
 };
 
 enum class TableFormat { csv, ecsv, markdown, latex, fits };
 TableFormat table_format_from_name(const std::string& name); // throws InputError
+// A machine-readable format by a file's extension: .ecsv, .fits (.fit, .fts), else CSV.
+TableFormat machine_format_of_path(const std::string& path);
 // The names table_format_from_name knows, for command-line checks.
 inline std::vector<std::string> table_format_names() {
   return {"csv", "ecsv", "fits", "markdown", "md", "latex", "tex"};

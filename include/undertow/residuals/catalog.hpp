@@ -9,6 +9,7 @@
 #include <string>
 #include <vector>
 
+#include "undertow/io/table.hpp"
 #include "undertow/sky/lsr.hpp"
 
 namespace undertow::residuals {
@@ -25,6 +26,10 @@ struct Source {
   // catalogs publish them, and a per-source parallax zero point (measured = true + offset).
   double corr_w_pa = 0, corr_w_pd = 0;
   double parallax_offset_mas = 0;
+  // A catalog without parallaxes may give distances (with a Gaussian 1-sigma error) instead:
+  // then the parallax fields are zero and these are set.
+  double distance_kpc = 0, distance_err_kpc = 0;
+  bool has_distance() const { return distance_err_kpc > 0; }
   int line = 0; // line in the file, for messages
 };
 
@@ -33,7 +38,13 @@ struct Catalog {
   std::vector<Source> sources;
   // The file gave heliocentric (barycentric) velocities, turned into v_LSR on reading.
   bool heliocentric_velocities = false;
+  // The file gave distances instead of parallaxes (every source has_distance()).
+  bool distances = false;
 };
+
+// Stages whose likelihood is written for parallaxes (fit, the whole run's verdict, observe's error
+// catalog) call this: a catalog of distances is refused naming `stage` (InputError).
+void require_parallaxes(const Catalog& c, const std::string& stage);
 
 struct CatalogOptions {
   // Our column name -> the file's (docs/catalog-format.md lists ours and the other spellings
@@ -50,9 +61,11 @@ Catalog parse_catalog(const std::string& text, const std::string& source_name,
 // "ours=theirs,ours=theirs" (a command-line option); `where` names it in messages.
 std::map<std::string, std::string> parse_column_map(const std::string& text,
                                                     const std::string& where);
-// Writes a catalog in the same format (mock catalogs use this), atomically.
-// comment: extra '# ' lines at the top (provenance), may be empty.
+// The catalog as a table of our columns with their units, every digit kept (mock catalogs):
+// name and group as text, the optional correlations and zero point only when some source has them.
+// comment: a provenance note, may be empty.
+io::Table catalog_table(const Catalog& c, const std::string& comment = {});
+// Writes it atomically as CSV, ECSV or FITS by the path's extension (.ecsv, .fits; else CSV).
 void write_catalog(const std::string& path, const Catalog& c, const std::string& comment = {});
-std::string catalog_header();
 
 } // namespace undertow::residuals

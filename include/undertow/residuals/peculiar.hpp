@@ -30,6 +30,11 @@ struct GalacticDraw {
   RotationCurve rotation;
 };
 
+// The defaults of every route to the residuals (the residuals command, a run's [comparison], a
+// sweep's points): Monte Carlo draws per source and bootstrap resamples.
+inline constexpr int kDefaultDraws = 1000;
+inline constexpr int kDefaultBootstrap = 1000;
+
 struct ResidualSettings {
   sky::SolarFrame sun;
   RotationCurve rotation;
@@ -47,8 +52,8 @@ struct ResidualSettings {
   // When not empty, Monte Carlo draw k takes its Galactic parameters from entry k % size (the
   // posterior of a kinematic fit), and the nominal values use `sun` and `rotation`.
   std::vector<GalacticDraw> galactic_draws;
-  double min_parallax_snr = 0; // sources below are left out (listed in the result)
-  int draws = 1000;            // Monte Carlo draws per source
+  double parallax_snr_min = 0; // sources below are left out (listed in the result)
+  int draws = kDefaultDraws;   // Monte Carlo draws per source
   std::uint64_t seed = 1;
 };
 
@@ -59,7 +64,7 @@ struct SourceResidual {
   std::array<double, 3> mc_mean{}; // mean over the draws
   std::array<double, 9> mc_cov{};  // covariance over the draws, (km/s)^2, row-major
   std::array<double, 9> lin_cov{}; // first-order propagation, (km/s)^2
-  double frac_parallax_err = 0;
+  double frac_parallax_err = 0; // sigma_parallax/parallax; sigma_d/d for a distance given directly
 };
 
 struct ResidualResult {

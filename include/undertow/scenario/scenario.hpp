@@ -38,8 +38,8 @@ struct Comparison {
   residuals::ResidualSettings::Distance distance = residuals::ResidualSettings::Distance::inverse;
   double edsd_length_kpc = 1.35;
   fit::DistancePrior prior; // for distance = "posterior-median"
-  double min_parallax_snr = 0;
-  int draws = 200, bootstrap = 500;
+  double parallax_snr_min = 0;
+  int draws = residuals::kDefaultDraws, bootstrap = residuals::kDefaultBootstrap;
   std::uint64_t seed = 1;
   bool nearest = true;
   std::size_t neighbours = 30, min_neighbours = 5, prediction_sources = 5000;

@@ -14,9 +14,11 @@ struct GatherOptions {
                         // has a reference, else log_likelihood
   std::string order;    // "ascending", "descending", or empty for the statistic's own default
   bool partial = false; // write the tables even when points are missing or failed
-  std::string prefix;   // output files <prefix>.csv/.md/.tex/.h5; empty: <plan>/<name>-results
+  // The folder for <name>-results.csv/.ecsv/.fits/.md/.tex/.h5 (<name>: the sweep's); empty: the
+  // plan folder.
+  std::string folder;
   // The posterior over the swept parameters (sweep/posterior.hpp), written as
-  // <prefix>-posterior.* and <prefix>-marginals.* whenever it can be; required: a posterior that
+  // <name>-results-posterior.* and <name>-results-marginals.* whenever it can be; required: a posterior that
   // cannot be made (one point, a grid edge holding mass, a partial sweep) stops the gather with
   // nothing written.
   bool posterior_required = false;

@@ -24,7 +24,7 @@ struct PointResult {
   std::size_t measured_sources = 0, outliers = 0;
   // (U, V, W): measured mean and error, simulated mean and error, difference / sigma
   double mean_measured[3] = {}, mean_measured_err[3] = {}, mean_simulated[3] = {},
-         mean_simulated_err[3] = {}, significance[3] = {};
+         mean_simulated_err[3] = {}, pull[3] = {};
 };
 
 struct PointStatus {
