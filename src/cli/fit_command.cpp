@@ -75,7 +75,6 @@ std::optional<int> run_fit_command(const FitArgs& a) {
   read.columns = f.spec.catalog_columns;
   read.lsr = f.spec.model.lsr;
   const auto cat = residuals::read_catalog(f.spec.catalog_path, read);
-  residuals::require_parallaxes(cat, "the kinematic fit");
   const auto sel = select_sources(f, cat);
   for (const auto& e : sel.excluded)
     std::cout << "left out: " << e << "\n";

@@ -140,7 +140,7 @@ VerdictResult judge_at_r0(const residuals::Catalog& used, const SimulatedYoung& 
       const std::size_t k = i * std::size_t(ms.nodes) + std::size_t(j);
       double R = 0, z = 0;
       fit::galactocentric_rz(ms.node_d[k], nhel, st.r0_kpc, st.z_sun_kpc, R, z);
-      const double r0 = ms.w[i] - (ms.node_u[k] + ms.off[i]);
+      const double r0 = ms.w[i] - (ms.node_m[k] + ms.off[i]); // parallax or distance given
       lnw[std::size_t(j)] =
           ms.node_lnw[k] +
           (ms.node_table.empty() ? st.prior.ln_density(ms.node_d[k], R, z) : ms.node_table[k]) -
@@ -154,7 +154,7 @@ VerdictResult judge_at_r0(const residuals::Catalog& used, const SimulatedYoung& 
       Node nd;
       nd.lnw = w;
       nd.k = ms.node_u[k] / sky::kKappa;
-      nd.shift0 = (ms.w[i] - (ms.node_u[k] + ms.off[i])) / ms.cww[i];
+      nd.shift0 = (ms.w[i] - (ms.node_m[k] + ms.off[i])) / ms.cww[i];
       const Vector3d pos = sun + ms.node_d[k] * s.n;
       const auto chosen = field.nearest(pos.x(), pos.y(), st.neighbours);
       const auto mom = field.moments(chosen, pos.x(), pos.y());

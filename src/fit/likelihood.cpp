@@ -38,10 +38,10 @@ struct NodeInputs {
 // Returns the log-sum-exp over the nodes when table is null; otherwise adds table[j] (a
 // tabulated prior's ln ρ) to each node first.
 template <RotationForm K, bool Aniso, DistancePrior::Kind P>
-UNDERTOW_CLONES double
-node_values(const NodeInputs& in, const double* __restrict u, const double* __restrict dist,
-            const double* __restrict lnw, const double* __restrict table, int n,
-            double* __restrict out) {
+UNDERTOW_CLONES double node_values(const NodeInputs& in, const double* __restrict u,
+                                   const double* __restrict dist, const double* __restrict meas,
+                                   const double* __restrict lnw, const double* __restrict table,
+                                   int n, double* __restrict out) {
   const double kinv = 1 / sky::kKappa;
   // the parallax row of the LDL^T factor is the same at every node
   const double d0 = in.cww, i0 = 1 / d0, l10 = in.cwa * i0, l20 = in.cwd * i0;
@@ -73,7 +73,8 @@ node_values(const NodeInputs& in, const double* __restrict u, const double* __re
     const double ve = vx * in.ex + vy * in.ey + vz * in.ez;
     const double vq = vx * in.qx + vy * in.qy + vz * in.qz;
     const double k = uj * kinv; // mas/yr per km/s at this distance
-    const double r0 = in.w - (uj + in.offset), r1 = in.a - ve * k, r2 = in.dd - vq * k,
+    // meas: the measured quantity's true value (u, or d for a distance given directly)
+    const double r0 = in.w - (meas[j] + in.offset), r1 = in.a - ve * k, r2 = in.dd - vq * k,
                  r3 = in.v - (vr + in.lsr);
     double c11, c12, c13, c22, c23, c33;
     if constexpr (Aniso) {
@@ -134,7 +135,7 @@ node_values(const NodeInputs& in, const double* __restrict u, const double* __re
 }
 
 using NodeFn = double (*)(const NodeInputs&, const double*, const double*, const double*,
-                          const double*, int, double*);
+                          const double*, const double*, int, double*);
 
 template <RotationForm K, bool A> NodeFn pick_prior(DistancePrior::Kind p) {
   switch (p) {
@@ -165,10 +166,10 @@ NodeFn pick(RotationForm k, bool a, DistancePrior::Kind p) {
 
 // ln ∫ exp(-R/h_R - |z|/h_z) d^2 S(d) dd on the normalisation nodes (lnw carries the weights,
 // d^2 and, when the zero point is fixed, ln S): the disk prior's normalisation, vectorised.
-UNDERTOW_CLONES double
-disk_normalisation(const double* __restrict d, const double* __restrict lnw, int n, double nx,
-                   double ny, double nz, double r0, double z_sun, double hr, double hz,
-                   double* __restrict out) {
+UNDERTOW_CLONES double disk_normalisation(const double* __restrict d, const double* __restrict lnw,
+                                          int n, double nx, double ny, double nz, double r0,
+                                          double z_sun, double hr, double hz,
+                                          double* __restrict out) {
   const double s = z_sun / r0, c = std::sqrt(1 - s * s), ihr = 1 / hr, ihz = 1 / hz;
 #pragma omp simd
   for (int j = 0; j < n; ++j) {
@@ -206,6 +207,11 @@ Likelihood::Likelihood(const residuals::Catalog& c, KinematicModel m, Offset off
     : m_(std::move(m)), s_(c, m_.prior, m_.nodes, m_.lsr, off.free ? off.min : off.value,
                            off.free ? off.max : off.value),
       n_(s_.n), nodes_(s_.nodes) {
+  if (off.free && std::all_of(s_.distance_given.begin(), s_.distance_given.end(),
+                              [](unsigned char g) { return g != 0; }))
+    throw InputError(SourcePlace{c.file, 0, 0, "parallax_offset"},
+                     "a free parallax zero point, but the catalog gives distances, not "
+                     "parallaxes: nothing constrains it; fix it");
   if (m_.rotation == RotationForm::model && m_.model_vc_kms.size() < 2)
     throw InputError("the model rotation curve needs a tabulated circular speed");
   const auto& gn = gauss_legendre(norm_nodes_);
@@ -228,8 +234,7 @@ Likelihood::Likelihood(const residuals::Catalog& c, KinematicModel m, Offset off
     for (std::size_t i = 0; i < n_; ++i)
       for (int j = 0; j < norm_nodes_; ++j) {
         const std::size_t k = i * std::size_t(norm_nodes_) + std::size_t(j);
-        norm_lns_[k] =
-            ln_phi((1 / norm_d_[k] + s_.off[i] + off.value) / s_.sw[i] - m_.prior.parallax_snr_min);
+        norm_lns_[k] = ln_selected(i, norm_d_[k], off.value);
       }
   }
   if (!norm_lns_.empty()) {
@@ -245,6 +250,13 @@ Likelihood::Likelihood(const residuals::Catalog& c, KinematicModel m, Offset off
     for (std::size_t i = 0; i < n_; ++i)
       ln_z_const_[i] = integrate_normalisation(i, p);
   }
+}
+
+double Likelihood::ln_selected(std::size_t i, double d, double offset) const {
+  // the selection parallax/error >= k at true distance d: Phi((1/d + zero point)/sigma - k); a
+  // distance given directly: distance/error >= k (the same to first order), Phi(d/sigma - k)
+  const double mean = s_.distance_given[i] ? d : 1 / d + s_.off[i] + offset;
+  return ln_phi(mean / s_.sw[i] - m_.prior.parallax_snr_min);
 }
 
 double Likelihood::ln_normalisation(std::size_t i, const FullParams& p) const {
@@ -274,10 +286,8 @@ double Likelihood::integrate_normalisation(std::size_t i, const FullParams& p) c
       v += prior.ln_density(d, 0, 0);
     }
     if (snr)
-      v += norm_lns_.empty()
-               ? ln_phi((1 / d + s_.off[i] + get(p, Param::parallax_offset)) / s_.sw[i] -
-                        prior.parallax_snr_min)
-               : norm_lns_[b + std::size_t(j)];
+      v += norm_lns_.empty() ? ln_selected(i, d, get(p, Param::parallax_offset))
+                             : norm_lns_[b + std::size_t(j)];
     buf[j] = v;
   }
   return detail::log_sum_exp(buf, std::size_t(norm_nodes_));
@@ -310,7 +320,8 @@ void Likelihood::source_terms(std::size_t i, const FullParams& p, double& ln_goo
   in.hr = m_.prior.kind == DistancePrior::Kind::edsd ? m_.prior.edsd_length_kpc
                                                      : get(p, Param::disk_scale_length);
   in.hz = get(p, Param::disk_scale_height);
-  in.offset = s_.off[i] + get(p, Param::parallax_offset);
+  // the zero point applies to parallaxes, not to distances given directly
+  in.offset = s_.distance_given[i] ? 0.0 : s_.off[i] + get(p, Param::parallax_offset);
   in.w = s_.w[i], in.a = s_.a[i], in.dd = s_.dd[i], in.v = s_.v[i], in.lsr = s_.lsr[i];
   in.cww = s_.cww[i], in.cwa = s_.cwa[i], in.cwd = s_.cwd[i], in.caa = s_.caa[i],
   in.cad = s_.cad[i], in.cdd = s_.cdd[i], in.cvv = s_.cvv[i];
@@ -321,16 +332,17 @@ void Likelihood::source_terms(std::size_t i, const FullParams& p, double& ln_goo
   const double* u = s_.node_u.data() + i * std::size_t(nodes_);
   const double* lnw = s_.node_lnw.data() + i * std::size_t(nodes_);
   const double* dist = s_.node_d.data() + i * std::size_t(nodes_);
+  const double* meas = s_.node_m.data() + i * std::size_t(nodes_);
   const double* table =
       s_.node_table.empty() ? nullptr : s_.node_table.data() + i * std::size_t(nodes_);
   double buf[kMaxNodes];
-  ln_good = fn(in, u, dist, lnw, table, nodes_, buf);
+  ln_good = fn(in, u, dist, meas, lnw, table, nodes_, buf);
   ln_bad = -INFINITY;
   if (m_.outliers) {
     const double so = m_.outlier_dispersion_kms;
     NodeInputs out = in;
     out.s2 = so * so;
-    ln_bad = pick(m_.rotation, false, m_.prior.kind)(out, u, dist, lnw, table, nodes_, buf);
+    ln_bad = pick(m_.rotation, false, m_.prior.kind)(out, u, dist, meas, lnw, table, nodes_, buf);
   }
 }
 

@@ -12,8 +12,18 @@
 namespace undertow::fit {
 namespace {
 
+// The nodes' range in true parallax u: the likelihood's ±7σ around the measured value (a
+// parallax widened by the zero point's range, or a distance given directly), cut to the prior's
+// distance range.
 void node_range(const residuals::Source& s, double dmin, double dmax, double omin, double omax,
                 double& u_lo, double& u_hi) {
+  if (s.has_distance()) {
+    const double d_hi = std::min(dmax, s.distance_kpc + 7 * s.distance_err_kpc),
+                 d_lo = std::max(
+                     {dmin, s.distance_kpc - 7 * s.distance_err_kpc, 1e-3 * s.distance_kpc});
+    u_lo = 1 / d_hi, u_hi = 1 / d_lo;
+    return;
+  }
   const double wlo = s.parallax_mas - s.parallax_offset_mas - omax,
                whi = s.parallax_mas - s.parallax_offset_mas - omin;
   u_lo = std::max(1 / dmax, wlo - 7 * s.parallax_err_mas);
@@ -44,7 +54,8 @@ MeasuredSources::MeasuredSources(const residuals::Catalog& c, const DistancePrio
                   &dd, &v,  &off, &cww, &cwa, &cwd, &caa, &cad, &cdd, &cvv, &sw})
     x->resize(n);
   const std::size_t nn = n * std::size_t(nodes);
-  node_u.resize(nn), node_d.resize(nn), node_lnw.resize(nn);
+  node_u.resize(nn), node_d.resize(nn), node_m.resize(nn), node_lnw.resize(nn);
+  distance_given.resize(n);
   if (prior.kind == DistancePrior::Kind::table) node_table.resize(nn);
   for (std::size_t i = 0; i < n; ++i) {
     const auto& s = c.sources[i];
@@ -57,9 +68,15 @@ MeasuredSources::MeasuredSources(const residuals::Catalog& c, const DistancePrio
     ex[i] = eg[0], ey[i] = eg[1], ez[i] = eg[2];
     qx[i] = qg[0], qy[i] = qg[1], qz[i] = qg[2];
     lsr[i] = sky::lsr_correction_kms(s.ra_deg, s.dec_deg, lsr_form);
-    w[i] = s.parallax_mas, a[i] = s.pmra_masyr, dd[i] = s.pmdec_masyr, v[i] = s.vlsr_kms;
-    off[i] = s.parallax_offset_mas;
-    const double sw_ = s.parallax_err_mas, sa = s.pmra_err_masyr, sd = s.pmdec_err_masyr;
+    // a distance given directly stands where the parallax stands: measured value, error, no
+    // zero point, no correlation with the proper motions
+    const bool given = s.has_distance();
+    distance_given[i] = given ? 1 : 0;
+    w[i] = given ? s.distance_kpc : s.parallax_mas, a[i] = s.pmra_masyr, dd[i] = s.pmdec_masyr,
+    v[i] = s.vlsr_kms;
+    off[i] = given ? 0.0 : s.parallax_offset_mas;
+    const double sw_ = given ? s.distance_err_kpc : s.parallax_err_mas, sa = s.pmra_err_masyr,
+                 sd = s.pmdec_err_masyr;
     sw[i] = sw_;
     cww[i] = sw_ * sw_, caa[i] = sa * sa, cdd[i] = sd * sd;
     cvv[i] = s.vlsr_err_kms * s.vlsr_err_kms;
@@ -69,19 +86,28 @@ MeasuredSources::MeasuredSources(const residuals::Catalog& c, const DistancePrio
     double u_lo = 0, u_hi = 0;
     node_range(s, dmin, dmax, omin, omax, u_lo, u_hi);
     if (!(u_hi > u_lo))
-      throw InputError(SourcePlace{c.file, s.line, 0, "parallax_mas"},
-                       "source " + s.name + ": parallax " + detail::num(s.parallax_mas) + " ± " +
-                           detail::num(sw_) + " mas leaves no probability between " +
-                           detail::num(dmin) + " and " + detail::num(dmax) +
-                           " kpc (the distance prior's range)");
-    const double mid = 0.5 * (u_hi + u_lo), half = 0.5 * (u_hi - u_lo);
+      throw InputError(SourcePlace{c.file, s.line, 0, given ? "distance_kpc" : "parallax_mas"},
+                       "source " + s.name +
+                           (given ? ": distance " + detail::num(s.distance_kpc) + " ± " +
+                                        detail::num(sw_) + " kpc"
+                                  : ": parallax " + detail::num(s.parallax_mas) + " ± " +
+                                        detail::num(sw_) + " mas") +
+                           " leaves no probability between " + detail::num(dmin) + " and " +
+                           detail::num(dmax) + " kpc (the distance prior's range)");
+    // Gauss-Legendre in the variable the likelihood is Gaussian in: u for a parallax, d for a
+    // distance given directly
+    const double x_lo = given ? 1 / u_hi : u_lo, x_hi = given ? 1 / u_lo : u_hi;
+    const double mid = 0.5 * (x_hi + x_lo), half = 0.5 * (x_hi - x_lo);
     for (int j = 0; j < nodes; ++j) {
       const std::size_t k = i * std::size_t(nodes) + std::size_t(j);
-      const double u = mid + half * gl.nodes[std::size_t(j)];
+      const double x = mid + half * gl.nodes[std::size_t(j)];
+      const double u = given ? 1 / x : x;
       node_u[k] = u;
       node_d[k] = 1 / u;
-      // dd = du / u^2, and the prior's volume factor d^2 = u^-2
-      node_lnw[k] = std::log(gl.weights[std::size_t(j)] * half) - 4 * std::log(u);
+      node_m[k] = x; // the measured quantity's true value at the node
+      // in u: dd = du / u^2 and the prior's volume factor d^2 = u^-2; in d: the factor d^2
+      node_lnw[k] = std::log(gl.weights[std::size_t(j)] * half) +
+                    (given ? 2 * std::log(x) : -4 * std::log(u));
       if (prior.kind == DistancePrior::Kind::table) node_table[k] = prior.ln_density(1 / u, 0, 0);
     }
   }

@@ -9,9 +9,11 @@ TrueDraw draw_true(const residuals::Source& s, const DistancePosterior& post, do
   TrueDraw t{};
   t.distance_kpc = post.draw(rng.uniform());
   const double sw = s.parallax_err_mas, sa = s.pmra_err_masyr, sd = s.pmdec_err_masyr;
+  // conditional mean and covariance of the proper-motion errors given e_w (a distance given
+  // instead of a parallax has no correlation with the proper motions: no shift)
   const double ew = s.parallax_mas - s.parallax_offset_mas - offset - 1 / t.distance_kpc;
-  // conditional mean and covariance of the proper-motion errors given e_w
-  const double ma = s.corr_w_pa * sa / sw * ew, md = s.corr_w_pd * sd / sw * ew;
+  const double ma = s.has_distance() ? 0.0 : s.corr_w_pa * sa / sw * ew,
+               md = s.has_distance() ? 0.0 : s.corr_w_pd * sd / sw * ew;
   const double caa = sa * sa * (1 - s.corr_w_pa * s.corr_w_pa);
   const double cdd = sd * sd * (1 - s.corr_w_pd * s.corr_w_pd);
   const double cad = sa * sd * (s.corr_pm - s.corr_w_pa * s.corr_w_pd);

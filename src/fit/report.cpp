@@ -64,9 +64,13 @@ Selection select_sources(const FitFile& f, const residuals::Catalog& c) {
     // the likelihood's own test: the parallax within 7 sigma of the prior's range
     if (!parallax_within_prior(s, prior, omin, omax)) {
       sel.excluded.push_back(
-          s.name + ": parallax " + detail::num(s.parallax_mas) + " ± " +
-          detail::num(s.parallax_err_mas) + " mas is more than 7 sigma from the prior's range " +
-          detail::num(prior.distance_min_kpc) + "-" + detail::num(prior.distance_max_kpc) + " kpc");
+          s.name +
+          (s.has_distance() ? ": distance " + detail::num(s.distance_kpc) + " ± " +
+                                  detail::num(s.distance_err_kpc) + " kpc"
+                            : ": parallax " + detail::num(s.parallax_mas) + " ± " +
+                                  detail::num(s.parallax_err_mas) + " mas") +
+          " is more than 7 sigma from the prior's range " + detail::num(prior.distance_min_kpc) +
+          "-" + detail::num(prior.distance_max_kpc) + " kpc");
       continue;
     }
     sel.used.sources.push_back(s);
@@ -118,9 +122,8 @@ std::vector<SourceResult> source_results(const FitSpec& s, const residuals::Cata
     const sky::Vec3 dir = sky::galactic_direction(src.ra_deg, src.dec_deg);
     std::optional<DistancePosterior> opt;
     try {
-      opt.emplace(src.parallax_mas, src.parallax_err_mas,
-                  src.parallax_offset_mas + at(pm, Param::parallax_offset), dir.data(), med_prior,
-                  g);
+      opt.emplace(DistancePosterior::of_source(src, at(pm, Param::parallax_offset), dir.data(),
+                                               med_prior, g));
     } catch (const InputError&) { // possible only at the edge of the range: no per-source result
       res.distance_kpc = res.distance_lo_kpc = res.distance_hi_kpc = NAN;
       res.uvw.fill(NAN), res.uvw_lo.fill(NAN), res.uvw_hi.fill(NAN);

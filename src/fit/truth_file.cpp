@@ -64,14 +64,20 @@ KinematicTruth parse_truth_file(const std::string& text, const std::string& name
   if (!(t.pitch_deg > 0 && t.pitch_deg < 90)) st.fail("pitch_deg", "must lie in (0, 90)");
   st.finish({"amplitude_kms", "arms", "pitch_deg"});
   io::TableReader er(err_t, name, "errors");
-  const std::vector<std::string> ekeys{"parallax_err_mas", "pm_err_masyr", "vlsr_err_kms",
-                                       "parallax_snr_min"};
+  const std::vector<std::string> ekeys{"parallax_err_mas", "distance_err_fraction", "pm_err_masyr",
+                                       "vlsr_err_kms", "parallax_snr_min"};
   er.check_keys(ekeys);
-  t.errors.kind = observe::ErrorModel::Kind::fixed;
-  t.errors.parallax_mas = er.number("parallax_err_mas");
+  // parallaxes with a fixed error, or (distance_err_fraction) distances given instead
+  const bool distances = er.has("distance_err_fraction");
+  if (distances && er.has("parallax_err_mas"))
+    er.fail("distance_err_fraction", "give parallax_err_mas or distance_err_fraction, not both");
+  t.errors.kind =
+      distances ? observe::ErrorModel::Kind::distance : observe::ErrorModel::Kind::fixed;
+  const char* first = distances ? "distance_err_fraction" : "parallax_err_mas";
+  (distances ? t.errors.distance_fraction : t.errors.parallax_mas) = er.number(first);
   t.errors.pm_masyr = er.number("pm_err_masyr");
   t.errors.vlsr_kms = er.number("vlsr_err_kms");
-  for (const char* k : {"parallax_err_mas", "pm_err_masyr", "vlsr_err_kms"})
+  for (const char* k : {first, "pm_err_masyr", "vlsr_err_kms"})
     if (!(er.number(k) > 0)) er.fail(k, "an error must be positive");
   t.parallax_snr_min = er.number_or("parallax_snr_min", 0);
   er.finish(ekeys);

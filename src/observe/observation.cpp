@@ -143,6 +143,8 @@ MockResult observe(const io::Snapshot& snap, const std::vector<double>& weights,
   if (e.kind == ErrorModel::Kind::catalog)
     for (const auto& r : e.reference.sources)
       ref_dir.push_back(direction(r.ra_deg, r.dec_deg));
+  out.catalog.distances = e.kind == ErrorModel::Kind::distance ||
+                          (e.kind == ErrorModel::Kind::catalog && e.reference.distances);
   std::sort(cand.begin(), cand.end(), [](const Candidate& a, const Candidate& b) {
     return a.key != b.key ? a.key > b.key : a.i < b.i;
   });
@@ -165,6 +167,11 @@ MockResult observe(const io::Snapshot& snap, const std::vector<double>& weights,
       src.pmra_err_masyr = src.pmdec_err_masyr = e.pm_masyr;
       src.vlsr_err_kms = e.vlsr_kms;
       break;
+    case ErrorModel::Kind::distance:
+      src.distance_err_kpc = e.distance_fraction * c.d,
+      src.pmra_err_masyr = src.pmdec_err_masyr = e.pm_masyr;
+      src.vlsr_err_kms = e.vlsr_kms;
+      break;
     case ErrorModel::Kind::catalog: {
       if (ref_dir.empty()) throw InputError("observe: the error catalog has no sources");
       const sky::Vec3 here = direction(c.o.ra_deg, c.o.dec_deg);
@@ -174,20 +181,34 @@ MockResult observe(const io::Snapshot& snap, const std::vector<double>& weights,
         const double a = angle_between(ref_dir[k], here);
         if (a < bd) bd = a, best = &e.reference.sources[k];
       }
-      src.parallax_err_mas = best->parallax_err_mas, src.pmra_err_masyr = best->pmra_err_masyr;
+      if (best->has_distance())
+        src.distance_err_kpc = best->distance_err_kpc / best->distance_kpc * c.d;
+      else
+        src.parallax_err_mas = best->parallax_err_mas;
+      src.pmra_err_masyr = best->pmra_err_masyr;
       src.pmdec_err_masyr = best->pmdec_err_masyr, src.vlsr_err_kms = best->vlsr_err_kms;
       break;
     }
     }
-    src.parallax_mas = w_true + src.parallax_err_mas * rng.normal();
+    // the first normal draws the parallax, or the distance given instead (cut at zero below)
+    if (src.has_distance())
+      src.distance_kpc = c.d + src.distance_err_kpc * rng.normal();
+    else
+      src.parallax_mas = w_true + src.parallax_err_mas * rng.normal();
     src.pmra_masyr = c.o.pmra_masyr + src.pmra_err_masyr * rng.normal();
     src.pmdec_masyr = c.o.pmdec_masyr + src.pmdec_err_masyr * rng.normal();
     src.vlsr_kms = vlsr_true + src.vlsr_err_kms * rng.normal();
-    if (src.parallax_mas / src.parallax_err_mas < sel.parallax_snr_min) {
+    if (src.signal_to_noise() < sel.parallax_snr_min) {
       ++out.rejected_snr;
       continue;
     }
-    if (src.parallax_mas < sel.parallax_min_mas || src.parallax_mas > sel.parallax_max_mas) {
+    if (src.has_distance() && !(src.distance_kpc > 0)) { // a catalog distance is positive
+      ++out.rejected_parallax;
+      continue;
+    }
+    // the observed-parallax range; for a distance, the parallax it stands for
+    const double w_obs = src.has_distance() ? 1 / src.distance_kpc : src.parallax_mas;
+    if (w_obs < sel.parallax_min_mas || w_obs > sel.parallax_max_mas) {
       ++out.rejected_parallax;
       continue;
     }

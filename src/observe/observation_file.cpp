@@ -188,15 +188,19 @@ ObservationSpec observation_from_table(const toml::table& t, const std::string& 
       q.check_keys({"kind", "parallax_err_fraction", "pm_err_masyr", "vlsr_err_kms"});
       e.kind = ErrorModel::Kind::fractional;
       e.parallax_fraction = pos("parallax_err_fraction", 0.1);
+    } else if (kind == "distance") {
+      q.check_keys({"kind", "distance_err_fraction", "pm_err_masyr", "vlsr_err_kms"});
+      e.kind = ErrorModel::Kind::distance;
+      e.distance_fraction = pos("distance_err_fraction", 0.1);
     } else if (kind == "catalog") {
       q.check_keys({"kind", "catalog", "catalog_columns"});
       e.kind = ErrorModel::Kind::catalog;
       residuals::CatalogOptions co;
       co.columns = q.string_map_or_empty("catalog_columns");
       e.reference = residuals::read_catalog(io::path_beside(file, q.string("catalog")), co);
-      residuals::require_parallaxes(e.reference, "copying errors into a mock catalog");
     } else {
-      q.fail("kind", "must be \"fixed\", \"fractional\" or \"catalog\", got \"" + kind + "\"");
+      q.fail("kind", "must be \"fixed\", \"fractional\", \"distance\" or \"catalog\", got \"" +
+                         kind + "\"");
     }
     if (e.kind != ErrorModel::Kind::catalog) {
       e.pm_masyr = pos("pm_err_masyr", 0.1);

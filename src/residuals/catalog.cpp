@@ -227,14 +227,6 @@ std::map<std::string, std::string> parse_column_map(const std::string& text,
   return m;
 }
 
-void require_parallaxes(const Catalog& c, const std::string& stage) {
-  if (c.distances)
-    throw InputError(SourcePlace{c.file, 0, 0, "distance_kpc"},
-                     "this catalog gives distances, not parallaxes: " + stage +
-                         " is written for measured parallaxes (undertow residuals reads "
-                         "distances)");
-}
-
 io::Table catalog_table(const Catalog& c, const std::string& comment) {
   io::Table t;
   t.title = "undertow catalog: columns and units in docs/catalog-format.md";

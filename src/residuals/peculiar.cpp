@@ -124,8 +124,7 @@ ResidualResult compute_residuals(const Catalog& c, const ResidualSettings& s) {
     const double w = given ? src.distance_kpc
                            : src.parallax_mas - src.parallax_offset_mas - s.parallax_offset_mas;
     const double sw = given ? src.distance_err_kpc : src.parallax_err_mas;
-    // to first order, parallax/error = distance/error
-    const double snr = (given ? src.distance_kpc : src.parallax_mas) / sw;
+    const double snr = src.signal_to_noise();
     if (s.parallax_snr_min > 0 && snr < s.parallax_snr_min) {
       out.excluded.push_back(src.name + (given ? ": distance/error = " : ": parallax/error = ") +
                              detail::num(snr) + " below " + detail::num(s.parallax_snr_min));

@@ -214,12 +214,11 @@ residuals::Catalog verdict_catalog(const scenario::Scenario& s, const residuals:
   out.file = c.file;
   const auto& cm = *s.comparison;
   for (const auto& src : c.sources) {
-    if (cm.parallax_snr_min > 0 &&
-        !(src.parallax_mas >= cm.parallax_snr_min * src.parallax_err_mas))
+    if (cm.parallax_snr_min > 0 && !(src.signal_to_noise() >= cm.parallax_snr_min))
       continue; // the residuals' own cut, listed there
     if (!fit::parallax_within_prior(src, cm.prior, 0, 0)) {
-      excluded.push_back(src.name + ": parallax more than 7 sigma outside the distance prior's "
-                                    "range");
+      excluded.push_back(src.name + (src.has_distance() ? ": distance" : ": parallax") +
+                         " more than 7 sigma outside the distance prior's range");
       continue;
     }
     out.sources.push_back(src);
@@ -364,7 +363,6 @@ WholeRunResult run_all(const scenario::Scenario& s, const WholeRunOptions& o) {
   read.columns = s.comparison->catalog_columns;
   read.lsr = s.observation->settings.lsr;
   const auto measured = residuals::read_catalog(s.comparison->catalog, read); // inputs first
-  residuals::require_parallaxes(measured, "the whole run's verdict");
   const fs::path dir(o.folder);
   std::error_code ec;
   fs::create_directories(dir / ".keys", ec);

@@ -96,6 +96,15 @@ void check_quantiles(const fit::DistancePosterior& post, const ReferencePosterio
 
 const double kNowhere[3] = {1, 0, 0}; // direction, unused by heliocentric priors
 
+fit::DistancePrior uniform_prior(double dmin, double dmax) {
+  fit::DistancePrior p;
+  p.kind = fit::DistancePrior::Kind::uniform;
+  p.distance_min_kpc = dmin;
+  p.distance_max_kpc = dmax;
+  p.validate();
+  return p;
+}
+
 } // namespace
 
 TEST_CASE("DistancePosterior, edsd prior d^2 exp(-d/L), L = 1.35 kpc (Bailer-Jones 2015, PASP "
@@ -124,11 +133,7 @@ TEST_CASE("DistancePosterior, uniform space density cut at [0.5, 15] kpc (p(d) â
           "quantiles within 1 % of Boost.Math quadrature at parallax SNR 3, 5, 10, 30 and with "
           "the parallax beyond the near edge",
           "[fit]") {
-  fit::DistancePrior p;
-  p.kind = fit::DistancePrior::Kind::uniform;
-  p.distance_min_kpc = 0.5;
-  p.distance_max_kpc = 15;
-  p.validate();
+  const fit::DistancePrior p = uniform_prior(0.5, 15);
   struct Case {
     double w, s;
   };
@@ -141,6 +146,30 @@ TEST_CASE("DistancePosterior, uniform space density cut at [0.5, 15] kpc (p(d) â
                                  15.0);
     check_quantiles(post, ref, 0.01);
   }
+}
+
+TEST_CASE("DistancePosterior::of_distance, a distance given with a Gaussian error, uniform space "
+          "density on [0.5, 15] kpc -- quantiles within 0.5 % of Boost.Math quadrature of "
+          "N(d_m | d, s) d^2, also where the error reaches zero distance",
+          "[fit]") {
+  const fit::DistancePrior p = uniform_prior(0.5, 15);
+  struct Case {
+    double d, s;
+  };
+  for (const Case& c : {Case{5, 0.25}, Case{5, 1}, Case{2, 1}, Case{9, 3}, Case{14, 1}}) {
+    INFO("d = " << c.d << " +- " << c.s << " kpc");
+    const auto post = fit::DistancePosterior::of_distance(c.d, c.s, kNowhere, p, fit::Geometry{});
+    const ReferencePosterior ref(
+        [&](double d) { return std::exp(-0.5 * (d - c.d) * (d - c.d) / (c.s * c.s)) * d * d; }, 0.5,
+        15.0);
+    check_quantiles(post, ref, 0.005);
+  }
+  undertow::residuals::Source src;
+  src.distance_kpc = 5, src.distance_err_kpc = 1;
+  CHECK(fit::DistancePosterior::of_source(src, 0.3, kNowhere, p, fit::Geometry{}).median() ==
+        fit::DistancePosterior::of_distance(5, 1, kNowhere, p, fit::Geometry{}).median());
+  CHECK_THROWS_WITH(fit::DistancePosterior::of_distance(40, 1, kNowhere, p, fit::Geometry{}),
+                    Catch::Contains("distance 40 Â± 1 kpc leaves no probability"));
 }
 
 TEST_CASE("DistancePosterior, exponential-disk prior exp(-R/h_R - |z|/h_z) d^2 along one line "

@@ -31,7 +31,8 @@ double at(const fit::FullParams& p, Param k) {
 // ln p(measured | θ) of one source, integrated independently: the prediction at each distance
 // through the sky module's Galactocentric transformation (checked against astropy), the intrinsic
 // covariance through its numerical Jacobian, the 4-D Gaussian by Eigen, and the distance integral
-// by Boost.Math's adaptive Gauss-Kronrod quadrature.
+// by Boost.Math's adaptive Gauss-Kronrod quadrature. A source whose catalog gives its distance
+// has the measured distance, N(d_m | d, σ_d), where a parallax source has N(ϖ | 1/d + ϖ0, σ_ϖ).
 double reference_ln_l(const residuals::Source& s, const fit::KinematicModel& m,
                       const fit::FullParams& p) {
   sky::SolarFrame sun;
@@ -44,13 +45,16 @@ double reference_ln_l(const residuals::Source& s, const fit::KinematicModel& m,
   const auto& pr = m.prior;
   const double off = s.parallax_offset_mas + at(p, Param::parallax_offset);
   Eigen::Matrix4d Cm = Eigen::Matrix4d::Zero();
-  const double e[4] = {s.parallax_err_mas, s.pmra_err_masyr, s.pmdec_err_masyr, s.vlsr_err_kms};
+  const bool given = s.has_distance();
+  const double e[4] = {given ? s.distance_err_kpc : s.parallax_err_mas, s.pmra_err_masyr,
+                       s.pmdec_err_masyr, s.vlsr_err_kms};
   for (int k = 0; k < 4; ++k)
     Cm(k, k) = e[k] * e[k];
   Cm(0, 1) = Cm(1, 0) = s.corr_w_pa * e[0] * e[1];
   Cm(0, 2) = Cm(2, 0) = s.corr_w_pd * e[0] * e[2];
   Cm(1, 2) = Cm(2, 1) = s.corr_pm * e[1] * e[2];
-  const Eigen::Vector4d meas(s.parallax_mas, s.pmra_masyr, s.pmdec_masyr, s.vlsr_kms);
+  const Eigen::Vector4d meas(given ? s.distance_kpc : s.parallax_mas, s.pmra_masyr, s.pmdec_masyr,
+                             s.vlsr_kms);
   const auto rho_at = [&](double d, const sky::Vec3& r) {
     const double R = std::hypot(r[0], r[1]);
     if (pr.kind == fit::DistancePrior::Kind::disk)
@@ -97,7 +101,7 @@ double reference_ln_l(const residuals::Source& s, const fit::KinematicModel& m,
       S = std::pow(at(p, Param::dispersion), 2) * Eigen::Matrix3d::Identity();
     Eigen::Matrix4d C = Cm;
     C.block<3, 3>(1, 1) += J * S * J.transpose();
-    const Eigen::Vector4d pred(1 / d + off, o0(0), o0(1), o0(2));
+    const Eigen::Vector4d pred(given ? d : 1 / d + off, o0(0), o0(1), o0(2));
     const Eigen::Vector4d res = meas - pred;
     const Eigen::LDLT<Eigen::Matrix4d> ldlt(C);
     const double chi2 = res.dot(ldlt.solve(res));
@@ -110,7 +114,7 @@ double reference_ln_l(const residuals::Source& s, const fit::KinematicModel& m,
       [&](double d) {
         const double sel =
             pr.parallax_snr_min > 0
-                ? 0.5 * std::erfc(-((1 / d + off) / s.parallax_err_mas - pr.parallax_snr_min) /
+                ? 0.5 * std::erfc(-((given ? d : 1 / d + off) / e[0] - pr.parallax_snr_min) /
                                   std::sqrt(2.0))
                 : 1.0;
         return rho_at(d, position(d)) * d * d * sel;
@@ -134,6 +138,15 @@ TEST_CASE("The likelihood of each source equals an independent integration of th
   for (std::size_t i = 0; i < cat.sources.size(); i += 3) {
     cat.sources[i].corr_w_pa = 0.3, cat.sources[i].corr_w_pd = -0.2, cat.sources[i].corr_pm = 0.25;
     cat.sources[i].parallax_offset_mas = 0.005;
+  }
+  // and the same sources as a catalog of distances (d = 1/parallax, σ_d = σ_ϖ/ϖ² at 1.3 times
+  // the error: a distance measurement of its own)
+  auto dist = cat;
+  dist.distances = true;
+  for (auto& s : dist.sources) {
+    s.distance_kpc = 1 / s.parallax_mas;
+    s.distance_err_kpc = 1.3 * s.parallax_err_mas / (s.parallax_mas * s.parallax_mas);
+    s.parallax_mas = s.parallax_err_mas = s.corr_w_pa = s.corr_w_pd = s.parallax_offset_mas = 0;
   }
   fit::FullParams p = truth_params(t);
   p[std::size_t(Param::z_sun)] = 0.02;
@@ -163,16 +176,19 @@ TEST_CASE("The likelihood of each source equals an independent integration of th
     m.prior.parallax_snr_min = c.snr;
     fit::Likelihood::Offset off;
     off.value = at(p, Param::parallax_offset);
-    const fit::Likelihood L(cat, m, off);
-    std::vector<double> lnl;
-    L.per_source(p, lnl, nullptr);
-    double worst = 0;
-    for (std::size_t i = 0; i < cat.sources.size(); ++i) {
-      const double ref = reference_ln_l(cat.sources[i], m, p);
-      worst = std::max(worst, std::fabs(lnl[i] - ref));
+    for (const auto* catalog : {&cat, &dist}) {
+      const fit::Likelihood L(*catalog, m, off);
+      std::vector<double> lnl;
+      L.per_source(p, lnl, nullptr);
+      double worst = 0;
+      for (std::size_t i = 0; i < catalog->sources.size(); ++i) {
+        const double ref = reference_ln_l(catalog->sources[i], m, p);
+        worst = std::max(worst, std::fabs(lnl[i] - ref));
+      }
+      INFO(c.what << (catalog == &dist ? ", distances given" : ", parallaxes")
+                  << ": largest |ln L_i - reference| = " << worst);
+      CHECK(worst < 2e-4);
     }
-    INFO(c.what << ": largest |ln L_i - reference| = " << worst);
-    CHECK(worst < 2e-4);
   }
 }
 

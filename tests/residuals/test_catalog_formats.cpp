@@ -206,11 +206,6 @@ TEST_CASE("Catalogs: distances given instead of parallaxes give the U, V, W of 1
             Approx(std::sqrt(b.sources[i].lin_cov[4 * k])).epsilon(0.08));
     }
   }
-  // the stages whose likelihood is written for parallaxes refuse distances, naming the column
-  CHECK_THROWS_WITH(residuals::require_parallaxes(back, "the kinematic fit"),
-                    Catch::Contains("dist.ecsv") && Catch::Contains("distance_kpc") &&
-                        Catch::Contains("the kinematic fit"));
-  CHECK_NOTHROW(residuals::require_parallaxes(ref, "the kinematic fit"));
   // a distance that is not positive, and a parallax column beside distances, are refused
   std::string text = kCsv;
   text.replace(text.find("parallax_mas,parallax_err_mas"), 29, "distance_kpc,distance_err_kpc");

@@ -44,6 +44,8 @@ private:
   void source_terms(std::size_t i, const FullParams& p, double& ln_good, double& ln_bad) const;
   double ln_normalisation(std::size_t i, const FullParams& p) const; // cached when constant
   double integrate_normalisation(std::size_t i, const FullParams& p) const;
+  // ln P(selected | true distance d) of source i under the parallax S/N cut (zero point offset)
+  double ln_selected(std::size_t i, double d, double offset) const;
 
   KinematicModel m_;
   MeasuredSources s_;

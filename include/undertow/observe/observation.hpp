@@ -47,12 +47,16 @@ struct YoungWeights {
 };
 
 struct ErrorModel {
-  enum class Kind { fixed, fractional, catalog } kind = Kind::fixed;
+  // distance: the mock catalog gives distances (Gaussian errors sigma_d = fraction × d), no
+  // parallaxes, as a catalog of photometric or spectroscopic distances does
+  enum class Kind { fixed, fractional, distance, catalog } kind = Kind::fixed;
   double parallax_mas = 0.02;     // fixed: sigma_parallax
   double parallax_fraction = 0.1; // fractional: sigma_parallax / parallax
+  double distance_fraction = 0.1; // distance: sigma_d / d
   double pm_masyr = 0.1;          // proper-motion errors (fixed and fractional)
   double vlsr_kms = 5.0;          // LSR velocity error (fixed and fractional)
-  residuals::Catalog reference;   // catalog: errors copied from the nearest of its sources
+  residuals::Catalog reference;   // catalog: errors copied from the nearest of its sources (a
+                                  // catalog of distances gives its fractional distance error)
 };
 
 struct ObservationSettings {
@@ -74,7 +78,7 @@ struct MockResult {
   residuals::Catalog catalog;
   std::size_t candidates = 0; // tracers inside the geometric selection
   std::size_t rejected_snr = 0;
-  std::size_t rejected_parallax = 0; // outside the observed-parallax range
+  std::size_t rejected_parallax = 0;     // outside the observed-parallax range
   std::vector<std::uint64_t> tracer_ids; // of the mock sources, in catalog order
 };
 

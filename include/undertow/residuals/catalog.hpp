@@ -30,6 +30,11 @@ struct Source {
   // then the parallax fields are zero and these are set.
   double distance_kpc = 0, distance_err_kpc = 0;
   bool has_distance() const { return distance_err_kpc > 0; }
+  // What a parallax signal-to-noise cut compares: parallax/error, or distance/error for a
+  // distance given directly (the same to first order).
+  double signal_to_noise() const {
+    return has_distance() ? distance_kpc / distance_err_kpc : parallax_mas / parallax_err_mas;
+  }
   int line = 0; // line in the file, for messages
 };
 
@@ -42,9 +47,6 @@ struct Catalog {
   bool distances = false;
 };
 
-// Stages whose likelihood is written for parallaxes (fit, the whole run's verdict, observe's error
-// catalog) call this: a catalog of distances is refused naming `stage` (InputError).
-void require_parallaxes(const Catalog& c, const std::string& stage);
 
 struct CatalogOptions {
   // Our column name -> the file's (docs/catalog-format.md lists ours and the other spellings
