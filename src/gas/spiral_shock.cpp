@@ -438,7 +438,7 @@ io::Table shock_profile_table(const ShockProblem& p, const ShockProfile& f) {
             " kpc (Roberts 1969)";
   t.columns = {{"x_kpc", "x", "x", "kpc", 8},
                {"phase_deg", "\\chi", "χ", "deg", 8},
-               {"arm_potential_kms2", "\\Phi_1", "Φ1", "(km/s)^2", 8},
+               {"arm_potential_km2_s2", "\\Phi_1", "Φ1", "(km/s)^2", 8},
                {"density_ratio", "\\Sigma/\\bar\\Sigma", "Σ/⟨Σ⟩", "", 8},
                {"u_across_kms", "u_\\perp", "u⊥", "km/s", 8},
                {"v_along_kms", "v_\\parallel", "v∥", "km/s", 8},

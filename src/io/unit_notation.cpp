@@ -139,4 +139,30 @@ std::string fits_unit(const std::string& unit) {
   return out;
 }
 
+NamedUnit split_unit_suffix(const std::string& name) {
+  // every suffix a key or column of ours ends in, longest first where one ends another
+  static const std::pair<const char*, const char*> suffixes[] = {{"_kms_kpc", "km/s/kpc"},
+                                                                 {"_km2_s2", "(km/s)^2"},
+                                                                 {"_msun_kpc3", "Msun/kpc^3"},
+                                                                 {"_msun_pc3", "Msun/pc^3"},
+                                                                 {"_kms", "km/s"},
+                                                                 {"_kpc", "kpc"},
+                                                                 {"_deg", "deg"},
+                                                                 {"_gyr", "Gyr"},
+                                                                 {"_myr", "Myr"},
+                                                                 {"_msun", "Msun"},
+                                                                 {"_masyr", "mas/yr"},
+                                                                 {"_mas", "mas"}};
+  for (const auto& [s, u] : suffixes) {
+    const std::string_view sf(s);
+    if (name.size() > sf.size() && std::string_view(name).substr(name.size() - sf.size()) == sf)
+      return {name.substr(0, name.size() - sf.size()), u};
+  }
+  return {name, ""};
+}
+
+std::string unit_of_name(const std::string& name) {
+  return split_unit_suffix(name).unit;
+}
+
 } // namespace undertow::io

@@ -1,6 +1,9 @@
 #include "undertow/plot/labels.hpp"
 
+#include <cctype>
 #include <map>
+
+#include "undertow/io/unit_notation.hpp"
 
 namespace undertow::plot {
 
@@ -27,19 +30,29 @@ std::string parameter_label(const std::string& name) {
   };
   const auto it = known.find(name);
   if (it != known.end()) return it->second;
-  // A unit suffix becomes a bracket: "strength_kms2" stays, "amplitude_kpc" -> "amplitude [kpc]".
-  static const std::map<std::string, std::string> units = {{"_kpc", "kpc"},
-                                                           {"_kms", "km s#u-1#d"},
-                                                           {"_deg", "deg"},
-                                                           {"_myr", "Myr"},
-                                                           {"_kms_kpc", "km s#u-1#d kpc#u-1#d"},
-                                                           {"_msun", "M#d⊙#u"}};
-  std::string best;
-  for (const auto& [suffix, unit] : units)
-    if (name.size() > suffix.size() && name.ends_with(suffix) && suffix.size() > best.size())
-      best = suffix;
-  if (best.empty()) return name;
-  return name.substr(0, name.size() - best.size()) + " [" + units.at(best) + "]";
+  // A unit suffix becomes a bracket: "force_ratio" stays, "amplitude_kpc" -> "amplitude [kpc]".
+  const auto [stem, unit] = io::split_unit_suffix(name);
+  if (unit.empty()) return name;
+  return stem + " [" + plplot_unit(unit) + "]";
+}
+
+std::string plplot_unit(const std::string& unit) {
+  // through the FITS notation ("km s-1 kpc-1"): each factor, its power raised
+  const std::string fits = io::fits_unit(unit);
+  std::string out;
+  std::size_t b = 0;
+  while (b < fits.size()) {
+    const std::size_t e = std::min(fits.find(' ', b), fits.size());
+    const std::string factor = fits.substr(b, e - b);
+    std::size_t k = 0;
+    while (k < factor.size() && std::isalpha(static_cast<unsigned char>(factor[k])))
+      ++k;
+    const std::string base = factor.substr(0, k), power = factor.substr(k);
+    out += (out.empty() ? "" : " ") + (base == "solMass" ? std::string("M#d⊙#u") : base) +
+           (power.empty() ? "" : "#u" + power + "#d");
+    b = e + 1;
+  }
+  return out;
 }
 
 } // namespace undertow::plot

@@ -11,6 +11,7 @@
 #include "undertow/io/table.hpp"
 #include "undertow/io/table_hdf5.hpp"
 #include "undertow/io/toml_writer.hpp"
+#include "undertow/io/unit_notation.hpp"
 #include "undertow/sweep/key_path.hpp"
 #include "undertow/sweep/posterior.hpp"
 
@@ -70,29 +71,6 @@ double parameter_value(const Point& q, std::size_t j) {
   return q.reference ? NAN : q.values.get(j)->value<double>().value_or(NAN);
 }
 
-// Units from the key's suffix, the naming rule of every undertow file (docs/conventions.md):
-// every suffix a key or column of ours ends in, longest first where one ends another.
-std::string unit_of(const std::string& key) {
-  static const std::pair<const char*, const char*> suffixes[] = {{"_kms_kpc", "km/s/kpc"},
-                                                                 {"_km2_s2", "(km/s)^2"},
-                                                                 {"_msun_kpc3", "Msun/kpc^3"},
-                                                                 {"_msun_pc3", "Msun/pc^3"},
-                                                                 {"_kms", "km/s"},
-                                                                 {"_kpc", "kpc"},
-                                                                 {"_deg", "deg"},
-                                                                 {"_gyr", "Gyr"},
-                                                                 {"_myr", "Myr"},
-                                                                 {"_msun", "Msun"},
-                                                                 {"_masyr", "mas/yr"},
-                                                                 {"_mas_yr", "mas/yr"},
-                                                                 {"_mas", "mas"}};
-  for (const auto& [s, u] : suffixes) {
-    const std::string sf(s);
-    if (key.size() > sf.size() && key.compare(key.size() - sf.size(), sf.size(), sf) == 0) return u;
-  }
-  return "";
-}
-
 std::string latex_name(const std::string& s) {
   std::string o = "\\mathrm{";
   for (char c : s)
@@ -135,8 +113,9 @@ GatherReport gather(const Plan& p, const GatherOptions& o) {
                      "reference = ...)");
   if (!known && (sort == "mean_V_significance" || sort == "V_significance"))
     throw InputError(SourcePlace{"", 0, 0, "--sort"},
-                     "'" + sort + "' is renamed mean_V_pull (a difference over its error is a "
-                     "pull; docs/migration.md)");
+                     "'" + sort +
+                         "' is renamed mean_V_pull (a difference over its error is a "
+                         "pull; docs/migration.md)");
   if (!known) {
     std::string list = "number";
     for (const auto* c : columns)
@@ -191,7 +170,7 @@ GatherReport gather(const Plan& p, const GatherOptions& o) {
         throw InputError(SourcePlace{"", 0, 0, "posterior"},
                          "'" + p.parameters[j] + "' has values that are not numbers");
       post_keys.push_back(p.parameters[j]);
-      post_units.push_back(unit_of(parse_key_path(p.parameters[j]).back().key));
+      post_units.push_back(io::unit_of_name(parse_key_path(p.parameters[j]).back().key));
     }
     // replicates of one parameter set are one point: their mean ln L; its error from each
     // run's realisations (scatter^2 / K) or, with one realisation each, from the replicates
@@ -258,7 +237,8 @@ GatherReport gather(const Plan& p, const GatherOptions& o) {
     std::string shown = steps.back().key;
     for (std::size_t k = 0; k < p.parameters.size(); ++k)
       if (k != j && parse_key_path(p.parameters[k]).back().key == shown) shown = p.parameters[j];
-    t.columns.push_back({p.parameters[j], latex_name(shown), shown, unit_of(steps.back().key), 6});
+    t.columns.push_back(
+        {p.parameters[j], latex_name(shown), shown, io::unit_of_name(steps.back().key), 6});
   }
   if (p.replicates > 1) t.columns.push_back({"replicate", "r", "r", "", 6});
   for (const auto* s : columns)
@@ -397,7 +377,7 @@ GatherReport gather(const Plan& p, const GatherOptions& o) {
         std::vector<double> v;
         for (const auto& q : p.points)
           v.push_back(parameter_value(q, j));
-        h::write_doubles(f, pg.id(), k, v, 1, unit_of(steps.back().key),
+        h::write_doubles(f, pg.id(), k, v, 1, io::unit_of_name(steps.back().key),
                          "swept value (NaN for the reference)");
       } else {
         std::vector<std::string> v;

@@ -12,7 +12,7 @@ model=$src/potentials/kestrel.toml
 "$undertow" arm-flow "$model" --radius 8 --sound-speed 7 --format csv -o flow.csv 2> summary.txt
 grep -q "shock at x = " summary.txt || fail "no shock reported at 8 kpc: $(cat summary.txt)"
 grep -q "u1 u2 / c^2 = 1" summary.txt || fail "jump condition not 1: $(cat summary.txt)"
-head -3 flow.csv | grep -q "^x_kpc,phase_deg,arm_potential_kms2,density_ratio" || fail "header"
+head -3 flow.csv | grep -q "^x_kpc,phase_deg,arm_potential_km2_s2,density_ratio" || fail "header"
 rows=$(grep -vc '^#\|^x_kpc' flow.csv)
 [ "$rows" = 2048 ] || fail "expected 2048 rows, got $rows"
 # The mean of the density ratio over the spacing is 1.

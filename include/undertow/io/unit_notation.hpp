@@ -15,5 +15,14 @@ std::string fits_unit(const std::string& unit);
 // powers of the same named units: "mas/yr", "mas yr-1" and "mas / yr" are; "arcsec" and "mas"
 // are not). Throws std::invalid_argument like fits_unit.
 bool same_unit(const std::string& a, const std::string& b);
+// The unit a key or column name of ours states by its suffix (docs/conventions.md): "_kms_kpc"
+// "km/s/kpc", "_km2_s2" "(km/s)^2", "_kms" "km/s", ...; empty for a name without one.
+std::string unit_of_name(const std::string& name);
+// The name without that suffix and the unit: "amplitude_km2_s2" -> {"amplitude", "(km/s)^2"};
+// {name, ""} without one.
+struct NamedUnit {
+  std::string stem, unit;
+};
+NamedUnit split_unit_suffix(const std::string& name);
 
 } // namespace undertow::io

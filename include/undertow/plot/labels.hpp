@@ -6,5 +6,8 @@
 namespace undertow::plot {
 
 std::string parameter_label(const std::string& name);
+// One of our unit strings ("km/s/kpc", "Msun", "(km/s)^2") in PLplot's escapes, through the FITS
+// notation: "km s#u-1#d kpc#u-1#d", "M#d⊙#u", "km#u2#d s#u-2#d".
+std::string plplot_unit(const std::string& unit);
 
 } // namespace undertow::plot
