@@ -328,7 +328,8 @@ int run_observe(const ObserveArgs& a) {
                           " Myr old"
                     : ", weighted as young sources over " +
                           undertow::detail::num(spec.settings.young->age_window_myr) + " Myr")
-            << ")\n";
+            << ")\n"
+            << "the Sun: " << observe::describe_sun(spec.settings) << "\n";
   return 0;
 }
 

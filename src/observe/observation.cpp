@@ -3,6 +3,7 @@
 #include <algorithm>
 #include <cmath>
 #include <map>
+#include <sstream>
 
 #include "undertow/error.hpp"
 #include "undertow/tracers/random.hpp"
@@ -216,6 +217,16 @@ MockResult observe(const io::Snapshot& snap, const std::vector<double>& weights,
     out.tracer_ids.push_back(t.id[c.i]);
   }
   return out;
+}
+
+std::string describe_sun(const ObservationSettings& o) {
+  std::ostringstream d;
+  d.precision(15);
+  d << "R0 = " << o.sun.r0_kpc << " kpc, z☉ = " << o.sun.z_sun_kpc
+    << " kpc, Θ0 = " << o.sun.theta0_kms << " km/s, (U☉, V☉, W☉) = (" << o.sun.u_sun_kms << ", "
+    << o.sun.v_sun_kms << ", " << o.sun.w_sun_kms << ") km/s, LSR "
+    << (o.lsr == sky::LsrForm::apex ? "apex" : "components") << ", from " << o.sun_source;
+  return d.str();
 }
 
 } // namespace undertow::observe

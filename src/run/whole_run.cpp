@@ -62,14 +62,7 @@ residuals::ResidualSettings residual_settings(const scenario::Scenario& s) {
 
 // The Sun of a run, every digit, and where it came from.
 std::string sun_description(const scenario::Scenario& s) {
-  const auto& o = s.observation->settings;
-  std::ostringstream d;
-  d.precision(15);
-  d << "R0 = " << o.sun.r0_kpc << " kpc, z☉ = " << o.sun.z_sun_kpc
-    << " kpc, Θ0 = " << o.sun.theta0_kms << " km/s, (U☉, V☉, W☉) = (" << o.sun.u_sun_kms << ", "
-    << o.sun.v_sun_kms << ", " << o.sun.w_sun_kms << ") km/s, LSR "
-    << (o.lsr == sky::LsrForm::apex ? "apex" : "components") << ", from " << o.sun_source;
-  return d.str();
+  return observe::describe_sun(s.observation->settings);
 }
 
 // The mock survey's selection and errors and the measured catalog's treatment, every digit.

@@ -51,6 +51,8 @@ vlsr_err_kms = 5
 TOML
 "$undertow" observe run.h5 obs.toml -o mock.csv | tee observe.log
 grep -q "150 sources observed at t = 200 Myr" observe.log || fail "unexpected: $(cat observe.log)"
+grep -q "^the Sun: R0 = 8.1 kpc, z☉ = 0 kpc, Θ0 = .* from fixed values" observe.log ||
+  fail "observe does not print the Sun it used: $(cat observe.log)"
 "$undertow" residuals mock.csv --model "$src/potentials/kestrel.toml" --r0 8.1 -o mock-res > res.log 2> res.err
 for f in mock-res/residuals-sources.csv mock-res/residuals-summary.md mock-res/residuals-summary.tex \
   mock-res/residuals.h5; do

@@ -82,6 +82,10 @@ struct MockResult {
   std::vector<std::uint64_t> tracer_ids; // of the mock sources, in catalog order
 };
 
+// The Sun an observation uses, every digit, and where it came from: "R0 = 8.1 kpc, z☉ = 0 kpc,
+// Θ0 = 228 km/s, (U☉, V☉, W☉) = (11.1, 12.24, 7.25) km/s, LSR apex, from fixed values".
+std::string describe_sun(const ObservationSettings& s);
+
 // Whether tracer i lies in the survey's volume and sky (true distance range, declination,
 // latitude), with its true observables o and distance d (kpc).
 bool in_survey_volume(const orbit::PhaseSpace& t, std::size_t i, const ObservationSettings& s,
