@@ -232,11 +232,20 @@ io::Table catalog_table(const Catalog& c, const std::string& comment) {
   t.title = "undertow catalog: columns and units in docs/catalog-format.md";
   if (!comment.empty()) t.notes.push_back(comment);
   t.text_headers = {"name", "group"};
-  t.columns = {{"ra_deg", "", "", "deg"},         {"dec_deg", "", "", "deg"},
-               {"parallax_mas", "", "", "mas"},   {"parallax_err_mas", "", "", "mas"},
-               {"pmra_masyr", "", "", "mas/yr"},  {"pmra_err_masyr", "", "", "mas/yr"},
-               {"pmdec_masyr", "", "", "mas/yr"}, {"pmdec_err_masyr", "", "", "mas/yr"},
-               {"vlsr_kms", "", "", "km/s"},      {"vlsr_err_kms", "", "", "km/s"},
+  const io::Column w = c.distances ? io::Column{"distance_kpc", "", "", "kpc"}
+                                   : io::Column{"parallax_mas", "", "", "mas"},
+                   sw = c.distances ? io::Column{"distance_err_kpc", "", "", "kpc"}
+                                    : io::Column{"parallax_err_mas", "", "", "mas"};
+  t.columns = {{"ra_deg", "", "", "deg"},
+               {"dec_deg", "", "", "deg"},
+               w,
+               sw,
+               {"pmra_masyr", "", "", "mas/yr"},
+               {"pmra_err_masyr", "", "", "mas/yr"},
+               {"pmdec_masyr", "", "", "mas/yr"},
+               {"pmdec_err_masyr", "", "", "mas/yr"},
+               {"vlsr_kms", "", "", "km/s"},
+               {"vlsr_err_kms", "", "", "km/s"},
                {"corr_pmra_pmdec", "", "", ""}};
   const auto any = [&](double Source::*m) {
     return std::any_of(c.sources.begin(), c.sources.end(),
@@ -247,8 +256,6 @@ io::Table catalog_table(const Catalog& c, const std::string& comment) {
   if (w_pm) t.columns.push_back({"corr_parallax_pmra", "", "", ""});
   if (w_pm) t.columns.push_back({"corr_parallax_pmdec", "", "", ""});
   if (offset) t.columns.push_back({"parallax_offset_mas", "", "", "mas"});
-  if (c.distances) t.columns[2] = {"distance_kpc", "", "", "kpc"};
-  if (c.distances) t.columns[3] = {"distance_err_kpc", "", "", "kpc"};
   for (const auto& s : c.sources) {
     std::vector<double> row{s.ra_deg,
                             s.dec_deg,

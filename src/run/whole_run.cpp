@@ -60,11 +60,6 @@ residuals::ResidualSettings residual_settings(const scenario::Scenario& s) {
   return r;
 }
 
-// The Sun of a run, every digit, and where it came from.
-std::string sun_description(const scenario::Scenario& s) {
-  return observe::describe_sun(s.observation->settings);
-}
-
 // The mock survey's selection and errors and the measured catalog's treatment, every digit.
 std::string selection_description(const scenario::Scenario& s) {
   const auto& x = s.observation->settings.selection;
@@ -437,8 +432,11 @@ WholeRunResult run_all(const scenario::Scenario& s, const WholeRunOptions& o) {
       throw InputError(SourcePlace{s.path, 0, 0, "observation.selection"},
                        "no simulated tracer passes the selection; nothing compared");
     // as ECSV and FITS too, for astropy; the CSV last, as it marks the stage finished
-    for (const char* ext : {".ecsv", ".fits", ".csv"})
-      residuals::write_catalog(fs::path(mock_path).replace_extension(ext).string(), mock.catalog);
+    const io::Table table = residuals::catalog_table(mock.catalog);
+    for (const char* ext : {".ecsv", ".fits", ".csv"}) {
+      const std::string path = fs::path(mock_path).replace_extension(ext).string();
+      io::write_table_file(path, table, io::machine_format_of_path(path));
+    }
     write_text(dir / ".keys/mock", mock_key);
     note("mock catalog: " + std::to_string(mock.catalog.sources.size()) + " sources");
   }
@@ -544,7 +542,7 @@ WholeRunResult run_all(const scenario::Scenario& s, const WholeRunOptions& o) {
     io::h5::set_attr(f, f.id(), "run_name", s.name);
     io::h5::set_attr(f, f.id(), "catalog_digest",
                      io::hex64(io::digest_file(s.comparison->catalog).fnv1a));
-    io::h5::set_attr(f, f.id(), "sun", sun_description(s));
+    io::h5::set_attr(f, f.id(), "sun", observe::describe_sun(s.observation->settings));
     io::h5::set_attr(f, f.id(), "selection", selection_description(s));
     io::h5::set_attr(f, f.id(), "verdict", verdict_description(s));
     std::string names;
@@ -590,13 +588,13 @@ WholeRunResult run_all(const scenario::Scenario& s, const WholeRunOptions& o) {
       "sources; ⟨σ_int⟩ = %.1f km/s; the Sun's velocity %s; R0 %s\n"
       "comparison-local: %zu of %zu sources with p < 0.0027 (beyond 3 σ) of their Student-t "
       "prediction\n",
-      s.name.c_str(), s.path.c_str(), sun_description(s).c_str(), s.comparison->catalog.c_str(),
-      meas_res.sources.size(), mock_res.sources.size(), prep.time_myr, all_v.measured.mean,
-      all_v.measured.mean_err, all_v.simulated.mean, all_v.simulated.mean_err, all_v.difference,
-      all_v.pull, all_u.measured.mean, all_u.measured.mean_err, all_u.simulated.mean,
-      all_u.simulated.mean_err, all_u.difference, all_u.pull, summary.mean, summary.scatter, K,
-      K == 1 ? "" : "s", (unsigned long long)s.seed, (unsigned long long)(s.seed + K - 1),
-      judged.sources.size(), verdicts[0].floor_mean_kms,
+      s.name.c_str(), s.path.c_str(), observe::describe_sun(s.observation->settings).c_str(),
+      s.comparison->catalog.c_str(), meas_res.sources.size(), mock_res.sources.size(),
+      prep.time_myr, all_v.measured.mean, all_v.measured.mean_err, all_v.simulated.mean,
+      all_v.simulated.mean_err, all_v.difference, all_v.pull, all_u.measured.mean,
+      all_u.measured.mean_err, all_u.simulated.mean, all_u.simulated.mean_err, all_u.difference,
+      all_u.pull, summary.mean, summary.scatter, K, K == 1 ? "" : "s", (unsigned long long)s.seed,
+      (unsigned long long)(s.seed + K - 1), judged.sources.size(), verdicts[0].floor_mean_kms,
       vs.marginalise_sun ? "marginalised" : "held fixed",
       vs.marginalise_r0 ? "marginalised" : "held fixed", local.outliers.size(),
       local.sources.size());
