@@ -45,5 +45,9 @@ echo "== The same kind of fit on the Kestrel survey: its arms make the young sou
 echo "   circular-rotation model absorbs the streaming into a biased Galaxy (docs/fit.md)"
 "$undertow" fit demo/kestrel-fit.toml -o "$out/kestrel-fit"
 echo
+echo "== Arm geometry from a catalog: pitch angles and the number of arms of demo/arms-catalog.csv"
+echo "   (truth: demo/arms-truth.toml, Kestrel's four arms of pitch 13 deg; docs/arms.md)"
+"$undertow" arms demo/arms-catalog.csv --r0 8.1 --naive -o "$out/arms"
+echo
 echo "== Figures (docs/figures.md): $out/*/figures/"
 ls "$out"/*/figures/*.png | sed 's|^|   |'

@@ -25,6 +25,7 @@
 #include "undertow/scenario/provenance_model.hpp"
 #include "undertow/scenario/scenario.hpp"
 
+#include "arms_command.hpp"
 #include "draw_command.hpp"
 #include "fit_command.hpp"
 #include "long_run.hpp"
@@ -628,6 +629,8 @@ int main(int argc, char** argv) {
 
   undertow::cli::FitArgs fit;
   undertow::cli::add_fit_command(app, fit);
+  undertow::cli::ArmsArgs arms_args;
+  undertow::cli::add_arms_command(app, arms_args);
   undertow::cli::MockArgs mock;
   undertow::cli::add_mock_command(app, mock);
 
@@ -645,6 +648,7 @@ int main(int argc, char** argv) {
     if (const auto code = undertow::cli::run_sweep_command(sweep)) return *code;
     if (const auto code = undertow::cli::run_draw_command(draw)) return *code;
     if (const auto code = undertow::cli::run_fit_command(fit)) return *code;
+    if (const auto code = undertow::cli::run_arms_command(arms_args)) return *code;
     if (const auto code = undertow::cli::run_mock_command(mock)) return *code;
     if (t->parsed()) return run_tabulate(tab);
     if (afc->parsed()) {

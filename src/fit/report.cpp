@@ -12,6 +12,7 @@
 #include "undertow/fit/measurement_draw.hpp"
 #include "undertow/io/atomic_file.hpp"
 #include "undertow/io/hdf5.hpp"
+#include "undertow/io/staged_folder.hpp"
 #include "undertow/io/table_hdf5.hpp"
 #include "undertow/residuals/peculiar.hpp"
 #include "undertow/units.hpp"
@@ -342,28 +343,9 @@ std::vector<std::string> write_fit_files(const std::string& folder, const FitFil
 std::vector<std::string> write_fit_outputs(const std::string& folder, const FitFile& f,
                                            const Selection& sel, const FitResult& r,
                                            const std::vector<SourceResult>& src) {
-  namespace fs = std::filesystem;
   check_output_folder(folder);
-  const fs::path out = fs::path(folder).lexically_normal();
-  const fs::path parent = out.has_parent_path() ? out.parent_path() : fs::path(".");
-  const std::string tag = std::to_string(::getpid());
-  const fs::path tmp = parent / ("." + out.filename().string() + ".tmp-" + tag);
-  const fs::path old = parent / ("." + out.filename().string() + ".old-" + tag);
-  fs::remove_all(tmp);
-  std::vector<std::string> files;
-  try {
-    for (const auto& file : write_fit_files(tmp.string(), f, sel, r, src))
-      files.push_back((out / fs::path(file).filename()).string());
-    if (fs::exists(out)) fs::rename(out, old);
-    fs::rename(tmp, out);
-    fs::remove_all(old);
-  } catch (...) {
-    std::error_code ec;
-    fs::remove_all(tmp, ec);
-    if (fs::exists(old, ec) && !fs::exists(out, ec)) fs::rename(old, out, ec);
-    throw;
-  }
-  return files;
+  return io::write_folder_atomically(
+      folder, [&](const std::string& tmp) { return write_fit_files(tmp, f, sel, r, src); });
 }
 
 namespace {

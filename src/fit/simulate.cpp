@@ -3,6 +3,7 @@
 #include <algorithm>
 #include <cmath>
 
+#include "undertow/arms/spiral_geometry.hpp"
 #include "undertow/error.hpp"
 #include "undertow/tracers/random.hpp"
 #include "undertow/units.hpp"
@@ -25,6 +26,11 @@ residuals::Catalog simulate_catalog(const KinematicTruth& t) {
   const double dmin = t.distance_min_kpc, dmax = t.distance_max_kpc, hz = t.scale_height_kpc;
   const double zmax = std::min(dmax, 12 * hz), rmax = r0 + dmax;
   const double cos_lmin = std::cos(t.longitude_min_deg * units::deg);
+  const auto& arm = t.placement;
+  const double arm_tan = std::tan(arm.pitch_deg * units::deg),
+               arm_cos = std::cos(arm.pitch_deg * units::deg);
+  const double arm_gap = arm.arms > 0 ? arms::arm_spacing(arm.arms, arm.pitch_deg) : 0;
+  std::vector<long> arm_of(n, 0);
   for (std::size_t i = 0; i < n; ++i) {
     tracers::TracerStream rng(t.seed, i, 0x517);
     // rejection from a uniform slab: volume density exp(-R/h_R - |z|/h_z) inside the range
@@ -34,11 +40,27 @@ residuals::Catalog simulate_catalog(const KinematicTruth& t) {
       x = -r0 + dp * std::cos(l), y = dp * std::sin(l);
       z = zmax * (2 * rng.uniform() - 1);
       const double d = std::sqrt(dp * dp + z * z), R = std::hypot(x, y);
-      const double accept =
-          std::exp(-std::fabs(z) / hz) *
-          (t.disk_scale_length_kpc > 0
-               ? std::exp(-(R - std::max(0.0, r0 - dmax)) / t.disk_scale_length_kpc)
-               : 1.0);
+      double accept = std::exp(-std::fabs(z) / hz) *
+                      (t.disk_scale_length_kpc > 0
+                           ? std::exp(-(R - std::max(0.0, r0 - dmax)) / t.disk_scale_length_kpc)
+                           : 1.0);
+      if (arm.arms > 0 && R > 0) {
+        // the nearest arm: ln R − ln R_arm0(ψ) reduced to within half a spacing
+        const double psi = std::atan2(y, -x);
+        const double off =
+            std::log(R) - arms::arm_ln_radius(psi, 0, std::log(arm.radius_kpc), arm_tan);
+        const long k = std::lround(-off / arm_gap);
+        const double delta = arms::distance_across_arm(
+            R, psi, std::log(arm.radius_kpc) - double(k) * arm_gap, arm_tan, arm_cos);
+        const bool wanted = arm.only.empty() ||
+                            std::find(arm.only.begin(), arm.only.end(), int(k)) != arm.only.end();
+        const bool inside =
+            psi >= arm.psi_min_deg * units::deg && psi <= arm.psi_max_deg * units::deg;
+        accept *= wanted && inside
+                      ? std::exp(-0.5 * delta * delta / (arm.width_kpc * arm.width_kpc))
+                      : 0.0;
+        arm_of[i] = k;
+      }
       // direction cut: angle between the line of sight and the direction of the centre
       const double toward_centre = (dp * std::cos(l)) / std::max(d, 1e-12);
       if (d >= dmin && d <= dmax && R < rmax && toward_centre <= cos_lmin && rng.uniform() < accept)
@@ -79,6 +101,9 @@ residuals::Catalog simulate_catalog(const KinematicTruth& t) {
   s.selection.dec_min_deg = t.dec_min_deg;
   auto mock = observe::observe(snap, weights, s);
   mock.catalog.file = "simulated";
+  if (arm.arms > 0) // tracer i has id i + 1 and is named "T<id>" by the observation
+    for (auto& src : mock.catalog.sources)
+      src.group = "arm" + std::to_string(arm_of[std::stoul(src.name.substr(1)) - 1]);
   return mock.catalog;
 }
 

@@ -1,6 +1,7 @@
 #include "undertow/fit/truth_file.hpp"
 
 #include <algorithm>
+#include <cmath>
 
 #include "undertow/fit/fit_file.hpp"
 #include "undertow/io/text_file.hpp"
@@ -12,8 +13,8 @@ KinematicTruth parse_truth_file(const std::string& text, const std::string& name
   KinematicTruth t;
   const toml::table root = io::parse_toml_text(text, name);
   io::TableReader r(root, name, "");
-  const std::vector<std::string> top{"sources", "seed",      "lsr",    "rotation",
-                                     "volume",  "streaming", "errors", "parameters"};
+  const std::vector<std::string> top{"sources",   "seed",   "lsr",        "rotation", "volume",
+                                     "streaming", "errors", "parameters", "arms"};
   r.check_keys(top);
   const int n = r.integer("sources");
   if (n < 1 || n > 10000000) r.fail("sources", "must lie between 1 and 10 000 000");
@@ -63,6 +64,35 @@ KinematicTruth parse_truth_file(const std::string& text, const std::string& name
   t.pitch_deg = st.number_or("pitch_deg", 12);
   if (!(t.pitch_deg > 0 && t.pitch_deg < 90)) st.fail("pitch_deg", "must lie in (0, 90)");
   st.finish({"amplitude_kms", "arms", "pitch_deg"});
+  {
+    const toml::table arm_t = sub("arms");
+    io::TableReader ar(arm_t, name, "arms");
+    const std::vector<std::string> akeys{"arms",        "pitch_deg",   "radius_kpc", "width_kpc",
+                                         "psi_min_deg", "psi_max_deg", "only"};
+    ar.check_keys(akeys);
+    auto& a = t.placement;
+    if (r.table("arms")) {
+      a.arms = ar.integer("arms");
+      if (a.arms < 1 || a.arms > 16) ar.fail("arms", "must lie between 1 and 16");
+      a.pitch_deg = ar.number("pitch_deg");
+      if (!(a.pitch_deg > 0 && a.pitch_deg < 90)) ar.fail("pitch_deg", "must lie in (0, 90)");
+      a.radius_kpc = ar.number("radius_kpc");
+      if (!(a.radius_kpc > 0)) ar.fail("radius_kpc", "must be positive");
+      a.width_kpc = ar.number("width_kpc");
+      if (!(a.width_kpc > 0)) ar.fail("width_kpc", "must be positive");
+      a.psi_min_deg = ar.number_or("psi_min_deg", -180);
+      a.psi_max_deg = ar.number_or("psi_max_deg", 180);
+      if (!(a.psi_min_deg >= -180 && a.psi_max_deg <= 180 && a.psi_min_deg < a.psi_max_deg))
+        ar.fail("psi_max_deg", "the azimuth range must lie in [-180, 180] with min < max");
+      if (ar.has("only"))
+        for (double k : ar.numbers("only")) {
+          if (k != std::round(k))
+            ar.fail("only", "lists whole arm numbers (0: arm0, 1: arm1, ...)");
+          a.only.push_back(int(k));
+        }
+    }
+    ar.finish(akeys);
+  }
   io::TableReader er(err_t, name, "errors");
   const std::vector<std::string> ekeys{"parallax_err_mas", "distance_err_fraction", "pm_err_masyr",
                                        "vlsr_err_kms", "parallax_snr_min"};

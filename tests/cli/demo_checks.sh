@@ -92,7 +92,8 @@ bash "$src/tests/cli/figure_checks.sh" "$undertow" "$png_probe" "$work/demo" "$w
   --h5 spiral/comparison.h5:global=spiral/comparison-global \
   --h5 spiral/comparison.h5:lag_by_age=spiral/lag-by-age \
   --h5 spiral/measured-residuals.h5:sources=spiral/measured-residuals-sources \
-  --h5 kestrel-fit/fit.h5:parameters=kestrel-fit/parameters) || fail "table checks"
+  --h5 kestrel-fit/fit.h5:parameters=kestrel-fit/parameters \
+  --h5 arms/arms.h5:segments=arms/arm-segments) || fail "table checks"
 
 # 3. Bad input to the whole run.
 cp "$src/demo/spiral.toml" typo.toml

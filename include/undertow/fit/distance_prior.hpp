@@ -44,16 +44,22 @@ void read_density_table(const std::string& path, DistancePrior& p);
 
 namespace undertow::fit {
 
-// Galactocentric R and z of the point at heliocentric distance d along the unit vector n
+// Galactocentric x, y, z of the point at heliocentric distance d along the unit vector n
 // (heliocentric Galactic axes), for the Sun at R0 and height z_sun (the tilted frame of
-// docs/conventions.md).
+// docs/conventions.md: the Sun at x = −R0 cos θ, z = z_sun).
+inline void galactocentric_xyz(double d, const double n[3], double r0, double z_sun, double& x,
+                               double& y, double& z) {
+  const double s = z_sun / r0, c = std::sqrt(1 - s * s);
+  const double xh = d * n[0] - r0, zh = d * n[2];
+  x = c * xh + s * zh, y = d * n[1], z = -s * xh + c * zh;
+}
+
+// Its Galactocentric R and z.
 inline void galactocentric_rz(double d, const double n[3], double r0, double z_sun, double& R,
                               double& z) {
-  const double s = z_sun / r0, c = std::sqrt(1 - s * s);
-  const double x = d * n[0] - r0, y = d * n[1], zz = d * n[2];
-  const double xt = c * x + s * zz;
-  R = std::sqrt(xt * xt + y * y);
-  z = -s * x + c * zz;
+  double x = 0, y = 0;
+  galactocentric_xyz(d, n, r0, z_sun, x, y, z);
+  R = std::sqrt(x * x + y * y);
 }
 
 } // namespace undertow::fit

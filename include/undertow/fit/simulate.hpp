@@ -8,12 +8,24 @@
 // optionally, a spiral streaming pattern; observed from the truth's Sun with the given errors and
 // parallax signal-to-noise cut. For injection-and-recovery tests, benchmarks and examples.
 #include <cstdint>
+#include <vector>
 
 #include "undertow/fit/kinematic_model.hpp"
 #include "undertow/observe/observation.hpp"
 #include "undertow/residuals/catalog.hpp"
 
 namespace undertow::fit {
+
+// Sources on logarithmic spiral arms instead of the smooth disk: the disk's density times
+// exp(−δ²/(2w²)), δ the distance across the nearest arm (arms/spiral_geometry.hpp) of an m-armed
+// pattern of pitch p whose arm "arm0" passes radius_kpc at ψ = 0. Each source's group names its
+// arm: "arm1" the next inward, "arm-1" the next outward (one name per winding).
+struct ArmPlacement {
+  int arms = 0; // 0: the smooth disk
+  double pitch_deg = 12, radius_kpc = 8, width_kpc = 0.2;
+  double psi_min_deg = -180, psi_max_deg = 180; // sources only in this range of azimuth
+  std::vector<int> only;                        // when given, only these arms
+};
 
 struct KinematicTruth {
   FullParams params{};  // R0, Θ0, solar motion, mean motion, σ...
@@ -29,6 +41,7 @@ struct KinematicTruth {
   double stream_kms = 0;
   int arms = 4;
   double pitch_deg = 12;
+  ArmPlacement placement;
   observe::ErrorModel errors;
   double parallax_snr_min = 0;
   std::uint64_t seed = 1;

@@ -1,0 +1,18 @@
+#pragma once
+// An output folder that appears whole or not at all: everything is written into a temporary
+// folder beside it (".<name>.tmp-<pid>"), which then takes its place; an earlier folder there is
+// replaced only once the new one is complete, and on any failure the temporary is removed and the
+// earlier folder left as it was.
+#include <functional>
+#include <string>
+#include <vector>
+
+namespace undertow::io {
+
+// write(temporary folder) creates the files and returns their paths; the paths returned here are
+// the same files in `folder`.
+std::vector<std::string>
+write_folder_atomically(const std::string& folder,
+                        const std::function<std::vector<std::string>(const std::string&)>& write);
+
+} // namespace undertow::io
