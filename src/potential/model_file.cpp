@@ -6,10 +6,13 @@
 #include <functional>
 #include <limits>
 #include <map>
+#include <optional>
 #include <set>
 
 #include "undertow/dynamics/calibration.hpp"
 #include "undertow/dynamics/frequencies.hpp"
+#include "undertow/io/hdf5.hpp"
+#include "undertow/io/paths.hpp"
 #include "undertow/io/toml_table.hpp"
 
 namespace undertow::potential {
@@ -138,6 +141,30 @@ const std::vector<std::string> pattern_common = {"kind",
                                                  "grow_start_myr",
                                                  "grow_duration_myr"};
 
+// A finished arm fit ('undertow arms', its arms.h5): the preferred number of arms, their shared
+// pitch, and the azimuth at which an arm crosses a radius, at the time of the catalog.
+struct FittedArms {
+  int arms = 0;
+  double pitch_deg = 0, azimuth_deg = 0, radius_kpc = 0;
+};
+
+FittedArms read_fitted_arms(const TableReader& r, const std::string& model_file) {
+  const std::string path = io::path_beside(model_file, r.string("arms_from"));
+  FittedArms a;
+  try {
+    const auto f = io::h5::File::open_read(path);
+    const auto g = io::h5::open_group(f, "preferred");
+    a.arms = int(io::h5::get_attr_int(f, g.id(), "arms"));
+    a.pitch_deg = io::h5::get_attr_double(f, g.id(), "pitch_deg");
+    a.azimuth_deg = io::h5::get_attr_double(f, g.id(), "arm_azimuth_deg");
+    a.radius_kpc = io::h5::get_attr_double(f, g.id(), "arm_azimuth_radius_kpc");
+  } catch (const std::exception&) {
+    r.fail("arms_from", path + " is not the arms.h5 of an arm fit of two segments or more "
+                               "(undertow arms writes /preferred only when it counts arms)");
+  }
+  return a;
+}
+
 // Builds a pattern; force ratios and bar strengths need the finished axisymmetric model.
 // The arms' layer thickness h (kpc): 0.3 unless given, infinite (no vertical decay) for
 // `planar = true`, which excludes a thickness.
@@ -159,10 +186,10 @@ Pattern read_pattern(const toml::table& t, const std::string& file, const std::s
   if (kind == LogSpiral::kind)
     valid.insert(valid.end(), {"arms", "pitch_deg", "reference_radius_kpc", "amplitude_km2_s2",
                                "force_ratio", "envelope_scale_kpc", "inner_taper_kpc",
-                               "scale_height_kpc", "planar", "outer_radius_kpc"});
+                               "scale_height_kpc", "planar", "outer_radius_kpc", "arms_from"});
   else if (kind == CoxGomezSpiral::kind)
     valid.insert(valid.end(), {"arms", "pitch_deg", "reference_radius_kpc", "radial_scale_kpc",
-                               "scale_height_kpc", "density_msun_kpc3"});
+                               "scale_height_kpc", "density_msun_kpc3", "arms_from"});
   else if (kind == DehnenBar::kind)
     valid.insert(valid.end(),
                  {"bar_radius_kpc", "amplitude_km2_s2", "strength", "reference_radius_kpc"});
@@ -172,7 +199,28 @@ Pattern read_pattern(const toml::table& t, const std::string& file, const std::s
   Pattern p;
   p.label = r.string_or("label", kind);
   p.pattern_speed = r.number("pattern_speed_kms_kpc");
-  if (r.has("arm_azimuth_deg") || r.has("arm_azimuth_at_myr")) {
+  // The arms of a finished arm fit: their number and pitch, and where they were when the catalog
+  // was observed (arm_azimuth_at_myr), moved along the arm to this pattern's reference radius.
+  std::optional<FittedArms> fitted;
+  if (r.has("arms_from")) {
+    for (const char* k : {"arms", "pitch_deg", "phase_deg", "arm_azimuth_deg"})
+      if (r.has(k)) r.fail(k, "comes from arms_from: give one or the other");
+    if (!r.has("arm_azimuth_at_myr"))
+      r.fail("arms_from", "needs arm_azimuth_at_myr: the time of the catalog's observation, when "
+                          "the arms were where the fit found them");
+    fitted = read_fitted_arms(r, file);
+  }
+  const auto arms_of = [&] { return fitted ? fitted->arms : r.integer("arms"); };
+  const auto pitch_of = [&] { return fitted ? fitted->pitch_deg : r.number("pitch_deg"); };
+  if (fitted) {
+    const double t = r.number("arm_azimuth_at_myr");
+    const double tanp = std::tan(fitted->pitch_deg * units::deg);
+    // along the arm, ln R = ln R_x − (ψ − ψ_x) tan p: its azimuth at the reference radius
+    const double a = fitted->azimuth_deg * units::deg -
+                     std::log(r.number("reference_radius_kpc") / fitted->radius_kpc) / tanp;
+    const double turned = p.pattern_speed * t * units::kms_per_kpc_times_myr;
+    p.phase = std::remainder(a - turned, 2 * units::pi);
+  } else if (r.has("arm_azimuth_deg") || r.has("arm_azimuth_at_myr")) {
     // The pattern where it is at a given time (the observation's), so that a sweep over the
     // pattern speed keeps today's arms where the data see them; the t = 0 phase follows.
     if (r.has("phase_deg"))
@@ -202,7 +250,7 @@ Pattern read_pattern(const toml::table& t, const std::string& file, const std::s
     if (direct == ratio) r.fail("", "give exactly one of amplitude_km2_s2 and force_ratio");
     p.shape = at_keys(r, [&] {
       auto s = LogSpiral::make(
-          r.integer("arms"), r.number("pitch_deg"), r.number("reference_radius_kpc"),
+          arms_of(), pitch_of(), r.number("reference_radius_kpc"),
           r.number_or("envelope_scale_kpc", inf), r.number_or("inner_taper_kpc", 1.0),
           planar_arms(r), direct ? r.number("amplitude_km2_s2") : 0.0,
           r.number_or("outer_radius_kpc", 20.0));
@@ -217,7 +265,7 @@ Pattern read_pattern(const toml::table& t, const std::string& file, const std::s
     });
   } else if (kind == CoxGomezSpiral::kind) {
     p.shape = at_keys(r, [&] {
-      return CoxGomezSpiral::make(r.integer("arms"), r.number("pitch_deg"),
+      return CoxGomezSpiral::make(arms_of(), pitch_of(),
                                   r.number("reference_radius_kpc"), r.number("radial_scale_kpc"),
                                   r.number("scale_height_kpc"), r.number("density_msun_kpc3"));
     });

@@ -41,7 +41,23 @@ with h5py.File(d + "/arms.h5") as f:
 print("arm fit of the demo catalog: 4 segments within 3 sigma of 13 deg")
 PY
 
-# 3. Bad input: one line, exit 2, nothing written.
+# 3. The fit's arms into a model file: Kestrel's components and calibration with a spiral whose
+# arms come from the fit (arms_from); the model reads and is tabulated.
+sed -n '/^\[\[component\]\]/,/^\[\[pattern\]\]/p' "$src/potentials/kestrel.toml" |
+  sed '$d' > model.toml
+cat >> model.toml <<'TOML'
+[[pattern]]
+kind = "log-spiral"
+arms_from = "fit/arms.h5"
+arm_azimuth_at_myr = 600
+pattern_speed_kms_kpc = 21
+reference_radius_kpc = 8.1
+force_ratio = 0.025
+TOML
+"$undertow" tabulate model.toml --from 8 --to 8 --step 1 > model.out || fail "arms_from: model refused"
+grep -q "m = 4" model.out || fail "arms_from: the model has not the fit's four arms"
+
+# 4. Bad input: one line, exit 2, nothing written.
 refuse() { # name, expected text, arguments
   local name=$1 want=$2
   shift 2
