@@ -9,10 +9,12 @@
 #include "undertow/arms/spiral_geometry.hpp"
 #include "undertow/detail/kernel.hpp"
 #include "undertow/error.hpp"
+#include "undertow/fit/distance_prior.hpp"
 #include "undertow/io/atomic_file.hpp"
 #include "undertow/io/hdf5.hpp"
 #include "undertow/io/staged_folder.hpp"
 #include "undertow/io/table_hdf5.hpp"
+#include "undertow/sky/galactic.hpp"
 #include "undertow/units.hpp"
 
 namespace undertow::arms {
@@ -73,6 +75,30 @@ ArmFit run_arm_fit(const residuals::Catalog& c, const ArmFitSettings& s,
       L[k].emplace_back(src, g, psi, lines, c.file);
     }
   }
+  // the sources' measured places, with their 1σ reach along the line of sight
+  f.sources.title = "The fitted sources' places at their measured distances and ±1 sigma";
+  f.sources.text_headers = {"name", "group"};
+  for (const char* c : {"x_kpc", "y_kpc", "x_near_kpc", "y_near_kpc", "x_far_kpc", "y_far_kpc"})
+    f.sources.columns.push_back({c, c, c, "kpc", 5});
+  for (const auto& g : names)
+    for (const auto& src : by_group[g]) {
+      const auto n = sky::galactic_direction(src.ra_deg, src.dec_deg);
+      const double w = src.parallax_mas - src.parallax_offset_mas, sw = src.parallax_err_mas;
+      const double dmax = s.lines.distance_max_kpc;
+      const double d = src.has_distance() ? src.distance_kpc : (w > 0 ? 1 / w : NAN);
+      const double dn = src.has_distance() ? std::max(0.0, src.distance_kpc - src.distance_err_kpc)
+                                           : 1 / (w + sw);
+      const double df = src.has_distance() ? src.distance_kpc + src.distance_err_kpc
+                                           : (w - sw > 0 ? std::min(dmax, 1 / (w - sw)) : dmax);
+      std::vector<double> row;
+      for (double dd : {d, dn, df}) {
+        double x = NAN, y = NAN, z = 0;
+        if (dd > 0)
+          fit::galactocentric_xyz(dd, n.data(), s.nominal().r0_kpc, s.nominal().z_sun_kpc, x, y, z);
+        row.push_back(x), row.push_back(y);
+      }
+      f.sources.add_row({src.name, g}, row);
+    }
   f.segments.resize(names.size());
   if (s.naive) f.naive.resize(names.size());
   // the segments in parallel, each chain on one thread; each segment's seed depends on its
@@ -90,6 +116,9 @@ ArmFit run_arm_fit(const residuals::Catalog& c, const ArmFitSettings& s,
     auto r =
         fit_segment(ls, s.priors, sm, naive ? SegmentMethod::naive : SegmentMethod::marginalised,
                     names[k], stop);
+    const auto& nl = L[k][ng / 2]; // the nominal geometry's window
+    r.window_min_deg = (nl.psi_ref() + nl.window_lo()) / units::deg;
+    r.window_max_deg = (nl.psi_ref() + nl.window_hi()) / units::deg;
     (naive ? f.naive[k] : f.segments[k]) = std::move(r);
   }
   for (const auto& r : f.segments)
@@ -149,14 +178,17 @@ io::Table segments_of(const std::vector<SegmentResult>& v, const std::string& ti
                {"width_plus_kpc", "+\\sigma_w", "+σ_w", "kpc", 2},
                {"tau_steps", "\\tau", "τ", "", 3},
                {"r_hat", "\\hat R", "R̂", "", 4},
-               {"converged", "\\mathrm{conv}", "converged", "", 1}};
+               {"converged", "\\mathrm{conv}", "converged", "", 1},
+               {"window_min_deg", "\\psi_{\\rm min}", "ψ_min", "deg", 4},
+               {"window_max_deg", "\\psi_{\\rm max}", "ψ_max", "deg", 4}};
   for (const auto& r : v) {
     std::vector<double> row{double(r.sources), r.psi_ref_deg};
     for (const auto* x : {&r.pitch_deg, &r.radius_kpc, &r.width_kpc}) {
       const auto q = interval_row(*x);
       row.insert(row.end(), q.begin(), q.end());
     }
-    row.insert(row.end(), {r.tau_max, r.r_hat_max, r.converged ? 1.0 : 0.0});
+    row.insert(row.end(), {r.tau_max, r.r_hat_max, r.converged ? 1.0 : 0.0, r.window_min_deg,
+                           r.window_max_deg});
     t.add_row({r.group}, row);
   }
   t.notes.push_back("ln R = ln R_ref − (ψ − ψ_ref) tan p: R_ref is the arm's radius at the "
@@ -295,6 +327,7 @@ std::vector<std::string> write_arm_outputs(const std::string& folder, const ArmF
       io::h5::set_attr(file, root.id(), "geometry", s.geometry_source);
       io::h5::set_attr(file, root.id(), "r0_kpc", s.nominal().r0_kpc);
       io::write_table_group(file, "segments", st);
+      io::write_table_group(file, "sources", f.sources);
       const auto samples = io::h5::create_group(file, "samples");
       for (const auto& r : f.segments) {
         std::vector<double> v;

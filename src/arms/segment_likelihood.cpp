@@ -80,7 +80,7 @@ UNDERTOW_CLONES double profile_log_sum(const double* __restrict R, const double*
 SegmentLikelihood::SegmentLikelihood(const std::vector<residuals::Source>& sources,
                                      const fit::Geometry& g, double psi_ref, const SightLines& s,
                                      const std::string& file)
-    : psi_ref_(psi_ref) {
+    : psi_ref_(psi_ref), window_lo_(s.window_lo), window_hi_(s.window_hi) {
   s.validate();
   const std::size_t n = sources.size();
   std::vector<double> nrm(3 * n); // unit vectors toward the sources

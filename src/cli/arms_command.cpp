@@ -56,6 +56,7 @@ void add_arms_command(CLI::App& app, ArmsArgs& a) {
   c->add_option("--columns", a.columns, "Column map OURS=THEIRS,...");
   c->add_option("-o,--output", a.output, "Output folder (default: <catalog>-arms)");
   c->add_option("--threads", a.threads, "OpenMP threads")->check(CLI::Range(1, 4096));
+  add_figure_options(*c, a.figures);
   a.command = c;
 }
 
@@ -139,6 +140,7 @@ std::optional<int> run_arms_command(const ArmsArgs& a) {
             << (f.count ? ", arm-count, arm-membership" : "")
             << " as CSV, ECSV, FITS, Markdown and LaTeX; arms.h5; summary.txt) in "
             << detail::num(f.seconds) << " s\n";
+  draw_after(a.figures, folder);
   return 0;
 }
 

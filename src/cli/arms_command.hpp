@@ -6,6 +6,8 @@
 #include <string>
 #include <vector>
 
+#include "draw_command.hpp"
+
 namespace undertow::cli {
 
 struct ArmsArgs {
@@ -18,6 +20,7 @@ struct ArmsArgs {
   int max_arms = 8, draws = 5, threads = 0;
   std::uint64_t seed = 1;
   bool naive = false;
+  FigureArgs figures;
   CLI::App* command = nullptr;
 };
 

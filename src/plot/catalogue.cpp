@@ -14,6 +14,8 @@ std::string source_name(Source s) {
     return "fit";
   case Source::sweep:
     return "sweep";
+  case Source::arms:
+    return "arm fit";
   }
   return "";
 }
@@ -31,6 +33,7 @@ const std::vector<FigureKind>& catalogue() {
       traces_figure(),
       sweep_map_figure(),
       sweep_profiles_figure(),
+      arm_segments_figure(),
   };
   return all;
 }
@@ -54,12 +57,13 @@ Source detect_source(const std::string& dir) {
   if (fs::is_regular_file(dir) && dir.ends_with("-results.h5")) return Source::sweep;
   if (!fs::is_directory(dir)) throw InputError(dir + ": not a folder (nor a sweep's *-results.h5)");
   if (fs::exists(dir + "/fit.h5")) return Source::fit;
+  if (fs::exists(dir + "/arms.h5")) return Source::arms;
   if (fs::exists(dir + "/orbits.h5") || fs::exists(dir + "/measured-residuals.h5"))
     return Source::run;
   for (const auto& e : fs::directory_iterator(dir))
     if (e.path().filename().string().ends_with("-results.h5")) return Source::sweep;
-  throw InputError(dir + ": neither a run's, a fit's nor a gathered sweep's folder (no orbits.h5, "
-                         "fit.h5 or *-results.h5)");
+  throw InputError(dir + ": neither a run's, a fit's, an arm fit's nor a gathered sweep's folder "
+                         "(no orbits.h5, fit.h5, arms.h5 or *-results.h5)");
 }
 
 std::vector<std::string> draw_figures(Source source, const std::string& dir,

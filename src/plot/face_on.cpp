@@ -11,6 +11,7 @@
 
 #include "run_input.hpp"
 #include "undertow/error.hpp"
+#include "markers.hpp"
 #include "undertow/plot/catalogue.hpp"
 #include "undertow/plot/inputs.hpp"
 #include "undertow/plot/scales.hpp"
@@ -76,15 +77,7 @@ void draw_panel(const FaceOn& d, Figure& fig, const Panel& where, bool predicted
       fig.line_width(0.6);
     }
   }
-  // The centre (+) and the Sun (circled dot).
-  fig.colour(kInk);
-  fig.line_width(0.8);
-  const double c = 0.25 * (d.x1 - d.x0) / 20;
-  fig.line({-c, c}, {0, 0});
-  fig.line({0, 0}, {-c, c});
-  fig.points({-d.r0}, {0}, 2.0, false);
-  fig.points({-d.r0}, {0}, 0.5);
-  fig.line_width(0.6);
+  centre_and_sun(fig, d.r0, 0.25 * (d.x1 - d.x0) / 20);
   fig.axes("x [kpc]", predicted ? "" : "y [kpc]", true, !predicted);
   fig.note(0, predicted ? "model's prediction" : "measured", 1.0);
   // The scale arrow, bottom left.

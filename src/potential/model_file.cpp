@@ -249,11 +249,11 @@ Pattern read_pattern(const toml::table& t, const std::string& file, const std::s
     const bool direct = r.has("amplitude_km2_s2"), ratio = r.has("force_ratio");
     if (direct == ratio) r.fail("", "give exactly one of amplitude_km2_s2 and force_ratio");
     p.shape = at_keys(r, [&] {
-      auto s = LogSpiral::make(
-          arms_of(), pitch_of(), r.number("reference_radius_kpc"),
-          r.number_or("envelope_scale_kpc", inf), r.number_or("inner_taper_kpc", 1.0),
-          planar_arms(r), direct ? r.number("amplitude_km2_s2") : 0.0,
-          r.number_or("outer_radius_kpc", 20.0));
+      auto s = LogSpiral::make(arms_of(), pitch_of(), r.number("reference_radius_kpc"),
+                               r.number_or("envelope_scale_kpc", inf),
+                               r.number_or("inner_taper_kpc", 1.0), planar_arms(r),
+                               direct ? r.number("amplitude_km2_s2") : 0.0,
+                               r.number_or("outer_radius_kpc", 20.0));
       if (ratio) {
         const double f = r.number("force_ratio");
         if (!(f >= 0 && f < 1))
@@ -265,9 +265,9 @@ Pattern read_pattern(const toml::table& t, const std::string& file, const std::s
     });
   } else if (kind == CoxGomezSpiral::kind) {
     p.shape = at_keys(r, [&] {
-      return CoxGomezSpiral::make(arms_of(), pitch_of(),
-                                  r.number("reference_radius_kpc"), r.number("radial_scale_kpc"),
-                                  r.number("scale_height_kpc"), r.number("density_msun_kpc3"));
+      return CoxGomezSpiral::make(arms_of(), pitch_of(), r.number("reference_radius_kpc"),
+                                  r.number("radial_scale_kpc"), r.number("scale_height_kpc"),
+                                  r.number("density_msun_kpc3"));
     });
   } else if (kind == DehnenBar::kind) {
     const bool direct = r.has("amplitude_km2_s2"), strength = r.has("strength");

@@ -75,9 +75,8 @@ amplitude_km2_s2 = 100
   CHECK(std::remainder(chi, 2 * units::pi) == Approx(0).margin(1e-9));
 
   // given with arms or pitch_deg, or without the time: refused at the key
-  for (const auto& [extra, key] :
-       std::vector<std::pair<std::string, std::string>>{{"arms = 2\n", "arms"},
-                                                        {"pitch_deg = 10\n", "pitch_deg"}}) {
+  for (const auto& [extra, key] : std::vector<std::pair<std::string, std::string>>{
+           {"arms = 2\n", "arms"}, {"pitch_deg = 10\n", "pitch_deg"}}) {
     try {
       potential::parse_model_text(kAxisymmetric + spiral + extra, (dir / "model.toml").string());
       FAIL("accepted " << extra);
@@ -87,12 +86,12 @@ amplitude_km2_s2 = 100
   }
   std::string no_time = spiral;
   no_time.replace(no_time.find("arm_azimuth_at_myr = 300\n"), 25, "");
-  CHECK_THROWS_WITH(potential::parse_model_text(kAxisymmetric + no_time,
-                                                (dir / "model.toml").string()),
-                    Catch::Contains("needs arm_azimuth_at_myr"));
+  CHECK_THROWS_WITH(
+      potential::parse_model_text(kAxisymmetric + no_time, (dir / "model.toml").string()),
+      Catch::Contains("needs arm_azimuth_at_myr"));
   std::string missing = spiral;
   missing.replace(missing.find("fit/arms.h5"), 11, "no/arms.h5");
-  CHECK_THROWS_WITH(potential::parse_model_text(kAxisymmetric + missing,
-                                                (dir / "model.toml").string()),
-                    Catch::Contains("is not the arms.h5 of an arm fit"));
+  CHECK_THROWS_WITH(
+      potential::parse_model_text(kAxisymmetric + missing, (dir / "model.toml").string()),
+      Catch::Contains("is not the arms.h5 of an arm fit"));
 }

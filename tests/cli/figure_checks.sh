@@ -17,6 +17,7 @@ declare -A expected=(
   [spiral]="face-on rotation residuals pulls lag-age lag-phase"
   [axisymmetric]="face-on rotation residuals pulls"
   [kinematic-fit]="posterior traces fit-rotation"
+  [arms]="arm-segments"
 )
 for run in "${!expected[@]}"; do
   "$U" draw "$DEMO/$run" --format png,svg,pdf --dpi 150 -o "$W/$run" > "$W/$run.log" ||

@@ -36,7 +36,11 @@ struct ArmFit {
   std::string catalog;
   std::vector<SegmentResult> segments, naive; // naive: empty unless asked
   std::optional<ArmCountResult> count;        // with two segments or more
-  std::vector<std::string> notes;             // sources left out, warnings
+  // the fitted sources: name and group, and Galactocentric x, y (kpc) at the measured distance
+  // and at the measured value ± 1σ (near, far; the far end at the distance range's limit when
+  // ϖ − σ <= 0), for the face-on figure
+  io::Table sources;
+  std::vector<std::string> notes; // sources left out, warnings
   double seconds = 0;
 };
 

@@ -42,6 +42,7 @@ struct SegmentResult {
   std::string group;
   std::size_t sources = 0;
   double psi_ref_deg = 0;
+  double window_min_deg = -180, window_max_deg = 180; // the segment's window in ψ (absolute)
   Interval pitch_deg, radius_kpc, width_kpc;
   double ln_radius_mean = 0, pitch_rad_mean = 0; // the posterior mean of (ln R_ref, p) ...
   std::array<double, 3> ln_radius_pitch_cov{};   // ... and its covariance (LL, Lp, pp), p in rad

@@ -55,12 +55,14 @@ public:
   std::size_t size() const { return num_begin_.size() - 1; }
   std::size_t nodes() const { return R_.size(); }
   double psi_ref() const { return psi_ref_; }
+  double window_lo() const { return window_lo_; } // ψ − ψ_ref, radians
+  double window_hi() const { return window_hi_; }
   // Each source's naive position: R (kpc) and ψ − ψ_ref (rad), NaN where ϖ <= 0.
   const std::vector<double>& naive_R() const { return naive_R_; }
   const std::vector<double>& naive_dpsi() const { return naive_dpsi_; }
 
 private:
-  double psi_ref_;
+  double psi_ref_, window_lo_, window_hi_;
   // nodes of all sources, numerator grids first then denominator grids, structure of arrays:
   // R, ln R, ψ − ψ_ref, and the weight (h d² exp(−|z|/h_z), times the measurement's likelihood on
   // the numerator grids) scaled by its source's largest, with that scale's log apart

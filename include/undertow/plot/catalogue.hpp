@@ -11,7 +11,7 @@
 
 namespace undertow::plot {
 
-enum class Source { run, fit, sweep };
+enum class Source { run, fit, sweep, arms };
 std::string source_name(Source s);
 
 struct DrawOptions {
@@ -64,5 +64,6 @@ FigureKind posterior_figure();
 FigureKind traces_figure();
 FigureKind sweep_map_figure();
 FigureKind sweep_profiles_figure();
+FigureKind arm_segments_figure();
 
 } // namespace undertow::plot
