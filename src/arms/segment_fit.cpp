@@ -168,8 +168,12 @@ SegmentResult fit_segment(const std::vector<const SegmentLikelihood*>& likelihoo
       if (!(x[0] > pr.pitch_min_deg && x[0] < pr.pitch_max_deg && x[1] > lr0 && x[1] < lr1 &&
             x[2] > pr.width_min_kpc && x[2] < pr.width_max_kpc))
         return -INFINITY;
+      // the width, a scale, takes the scale-invariant prior 1/w (Jeffreys 1961, "Theory of
+      // Probability", §3.1): uniform in w, the posterior median of a 30-source segment sat
+      // 0.4σ above the truth on average
       const double v =
-          method == SegmentMethod::naive ? L.naive(x[0], x[1], x[2]) : L(x[0], x[1], x[2]);
+          (method == SegmentMethod::naive ? L.naive(x[0], x[1], x[2]) : L(x[0], x[1], x[2])) -
+          std::log(x[2]);
       return std::isfinite(v) ? v : -INFINITY;
     };
     const auto best = start_point(L, pr, lp);

@@ -2,7 +2,7 @@
 // The pitch-angle fit of one arm segment (docs/arms.md): the posterior of the pitch p, the arm's
 // radius R_ref at the segment's reference azimuth ψ_ref and its width w, sampled with the ensemble
 // sampler (fit/ensemble_sampler.hpp) under the likelihood of arms/segment_likelihood.hpp, with
-// uniform priors on p (degrees), ln R_ref and w inside their ranges. The Galactic geometry is
+// priors uniform in p (degrees), ln R_ref and ln w inside their ranges. The Galactic geometry is
 // fixed, or several geometries (draws from a kinematic fit's posterior of R0 and z_sun) each get a
 // chain of their own and the pooled samples marginalise over them (the arm data's own weak hold on
 // R0 is left out: the kinematic fit's posterior stands as the prior and is not updated).
