@@ -74,8 +74,10 @@ refuse() { # name, expected text, arguments
 awk -F, 'BEGIN{OFS=","} /^T/ && $2=="arm2" && n<2 {$2="tiny"; n++} {print}' arms-catalog.csv > tiny.csv
 refuse tiny "group 'tiny' has 2 source(s); a pitch angle needs at least 3" tiny.csv --r0 8.1
 # three sources at one place: one azimuth
-{ grep -v '^T' arms-catalog.csv; grep '^T' arms-catalog.csv | head -1 |
-  awk -F, 'BEGIN{OFS=","} {for (k = 1; k <= 3; ++k) {$1 = "S" k; $2 = "same"; print}}'; } > same.csv
+# (one awk, no 'head' in a pipe: under pipefail a writer cut off by head can fail the script)
+{ grep -v '^T' arms-catalog.csv
+  awk -F, 'BEGIN{OFS=","} /^T/ {for (k = 1; k <= 3; ++k) {$1 = "S" k; $2 = "same"; print}; exit}' \
+    arms-catalog.csv; } > same.csv
 refuse same "span 0 deg of Galactocentric azimuth" same.csv --r0 8.1
 refuse pitch-low "--pitch-range" arms-catalog.csv --r0 8.1 --pitch-range 0,30
 refuse pitch-high "--pitch-range" arms-catalog.csv --r0 8.1 --pitch-range 10,95
