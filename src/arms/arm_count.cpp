@@ -93,14 +93,13 @@ ArmCountResult count_arms(const std::vector<SegmentSummary>& segments, const Arm
     for (int k = 0; k < np; ++k) {
       const double p = pitch_at(k), t = std::tan(p), delta = 2 * units::pi / m * t;
       const int nf = grid_phase(delta);
-      double best = -INFINITY;
       std::vector<double> row(static_cast<std::size_t>(nf));
       for (int j = 0; j < nf; ++j) {
         const double phi0 = (j + 0.5) / nf * delta;
         double a = 0;
         for (const auto& g : seg)
           a += segment_factor(g, m, p, t, delta, phi0, ln_lambda, nullptr);
-        row[std::size_t(j)] = a, best = std::max(best, a);
+        row[std::size_t(j)] = a;
       }
       v.push_back(detail::log_sum_exp(row) - std::log(double(nf)));
     }

@@ -85,7 +85,7 @@ ArmFit run_arm_fit(const residuals::Catalog& c, const ArmFitSettings& s,
       const auto n = sky::galactic_direction(src.ra_deg, src.dec_deg);
       const double w = src.parallax_mas - src.parallax_offset_mas, sw = src.parallax_err_mas;
       const double dmax = s.lines.distance_max_kpc;
-      const double d = src.has_distance() ? src.distance_kpc : (w > 0 ? 1 / w : NAN);
+      const double d = src.measured_distance_kpc();
       const double dn = src.has_distance() ? std::max(0.0, src.distance_kpc - src.distance_err_kpc)
                                            : 1 / (w + sw);
       const double df = src.has_distance() ? src.distance_kpc + src.distance_err_kpc

@@ -9,6 +9,7 @@
 #include "undertow/fit/diagnostics.hpp"
 #include "undertow/fit/distance_prior.hpp"
 #include "undertow/fit/ensemble_sampler.hpp"
+#include "undertow/fit/kinematic_fit.hpp"
 #include "undertow/sky/galactic.hpp"
 #include "undertow/tracers/random.hpp"
 #include "undertow/units.hpp"
@@ -28,21 +29,24 @@ void SegmentPriors::validate() const {
     throw detail::ParameterError("radius range", "must be positive and finite with min < max");
 }
 
+namespace {
+
+// The Galactocentric azimuth ψ of the point at distance d (kpc) toward source s; NaN for d <= 0.
+double azimuth_at(const residuals::Source& s, double d, const fit::Geometry& g) {
+  if (!(d > 0)) return NAN;
+  const auto n = sky::galactic_direction(s.ra_deg, s.dec_deg);
+  double x = 0, y = 0, z = 0;
+  fit::galactocentric_xyz(d, n.data(), g.r0_kpc, g.z_sun_kpc, x, y, z);
+  return std::atan2(y, -x);
+}
+
+} // namespace
+
 std::vector<double> measured_azimuths(const std::vector<residuals::Source>& sources,
                                       const fit::Geometry& g) {
   std::vector<double> out;
-  for (const auto& s : sources) {
-    const double w = s.parallax_mas - s.parallax_offset_mas;
-    const double d = s.has_distance() ? s.distance_kpc : (w > 0 ? 1 / w : NAN);
-    if (!(d > 0)) {
-      out.push_back(NAN);
-      continue;
-    }
-    const auto n = sky::galactic_direction(s.ra_deg, s.dec_deg);
-    double x = 0, y = 0, z = 0;
-    fit::galactocentric_xyz(d, n.data(), g.r0_kpc, g.z_sun_kpc, x, y, z);
-    out.push_back(std::atan2(y, -x));
-  }
+  for (const auto& s : sources)
+    out.push_back(azimuth_at(s, s.measured_distance_kpc(), g));
   return out;
 }
 
@@ -52,10 +56,8 @@ double reference_azimuth(const std::vector<residuals::Source>& sources, const fi
     if (std::isfinite(psi)) sx += std::cos(psi), sy += std::sin(psi);
   if (sx == 0 && sy == 0) // no positive parallax: the directions at 1 kpc
     for (const auto& s : sources) {
-      const auto n = sky::galactic_direction(s.ra_deg, s.dec_deg);
-      double x = 0, y = 0, z = 0;
-      fit::galactocentric_xyz(1.0, n.data(), g.r0_kpc, g.z_sun_kpc, x, y, z);
-      sx += std::cos(std::atan2(y, -x)), sy += std::sin(std::atan2(y, -x));
+      const double psi = azimuth_at(s, 1.0, g);
+      sx += std::cos(psi), sy += std::sin(psi);
     }
   return std::atan2(sy, sx);
 }
@@ -90,13 +92,7 @@ void check_segment(const std::vector<residuals::Source>& sources, const fit::Geo
 namespace {
 
 Interval interval_of(std::vector<double> v) {
-  std::sort(v.begin(), v.end());
-  const auto q = [&](double f) {
-    const double x = f * double(v.size() - 1);
-    const std::size_t k = std::size_t(x);
-    return k + 1 < v.size() ? v[k] + (x - double(k)) * (v[k + 1] - v[k]) : v[k];
-  };
-  return {q(0.5), q(0.16), q(0.84)};
+  return {fit::quantile(v, 0.5), fit::quantile(v, 0.16), fit::quantile(v, 0.84)};
 }
 
 // Start values: a straight-line fit of ln R against ψ − ψ_ref at the naive positions, then the
@@ -193,22 +189,14 @@ SegmentResult fit_segment(const std::vector<const SegmentLikelihood*>& likelihoo
     }
     fit::EnsembleSampler s(3, walkers, sm.seed + 7919 * g, lp, 2.0, sm.de_fraction);
     s.start(start);
-    bool converged = false;
-    fit::ChainDiagnostics diag;
-    while (s.steps() < sm.steps_max) {
-      if (!s.run(int(std::min(sm.chunk, sm.steps_max - s.steps())), stop)) {
-        r.interrupted = true;
-        break;
-      }
-      diag = fit::diagnose(s, s.steps() / 4);
-      if (double(diag.kept) >= sm.tau_multiple * diag.tau_max && diag.r_hat_max <= sm.r_hat_max) {
-        converged = true;
-        break;
-      }
+    const auto run =
+        fit::run_to_convergence(s, {sm.chunk, sm.steps_max, sm.tau_multiple, sm.r_hat_max}, stop);
+    if (run.interrupted) {
+      r.interrupted = true;
+      return r;
     }
-    if (r.interrupted) return r;
-    diag = fit::diagnose(s, s.steps() / 4);
-    r.converged = r.converged && converged;
+    const auto& diag = run.diag;
+    r.converged = r.converged && run.converged;
     r.tau_max = std::max(r.tau_max, diag.tau_max);
     r.r_hat_max = std::max(r.r_hat_max, diag.r_hat_max);
     r.steps = std::max(r.steps, s.steps());

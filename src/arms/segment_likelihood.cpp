@@ -172,11 +172,7 @@ SegmentLikelihood::SegmentLikelihood(const std::vector<residuals::Source>& sourc
   den_begin_.push_back(R_.size());
   // naive positions
   for (std::size_t i = 0; i < n; ++i) {
-    const auto& src = sources[i];
-    const double d = src.has_distance() ? src.distance_kpc
-                                        : (src.parallax_mas - src.parallax_offset_mas > 0
-                                               ? 1 / (src.parallax_mas - src.parallax_offset_mas)
-                                               : NAN);
+    const double d = sources[i].measured_distance_kpc();
     if (!(d > 0)) {
       naive_R_.push_back(NAN), naive_dpsi_.push_back(NAN);
       continue;

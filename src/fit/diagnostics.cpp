@@ -111,4 +111,26 @@ ChainDiagnostics diagnose(const EnsembleSampler& s, long burn) {
   return d;
 }
 
+ConvergenceRun run_to_convergence(EnsembleSampler& s, const ConvergenceRule& rule,
+                                  const std::atomic<bool>* stop,
+                                  const std::function<void(long)>& progress) {
+  ConvergenceRun r;
+  while (true) {
+    const long steps_now = std::min<long>(rule.chunk, rule.steps_max - s.steps());
+    if (steps_now <= 0) break;
+    if (!s.run(int(steps_now), stop, progress)) {
+      r.interrupted = true;
+      return r;
+    }
+    r.diag = diagnose(s, s.steps() / 4);
+    if (double(r.diag.kept) >= rule.tau_multiple * r.diag.tau_max &&
+        r.diag.r_hat_max <= rule.r_hat_max) {
+      r.converged = true;
+      return r;
+    }
+  }
+  r.diag = diagnose(s, s.steps() / 4);
+  return r;
+}
+
 } // namespace undertow::fit

@@ -319,27 +319,14 @@ FitResult run_fit(const FitSpec& s, const Likelihood& L, const std::atomic<bool>
       s.sampler.de_fraction);
   sampler.start(start);
   const long max_steps = s.sampler.steps_max;
-  while (true) {
-    const long steps_now = std::min<long>(s.sampler.chunk, max_steps - sampler.steps());
-    if (steps_now <= 0) break;
-    if (!sampler.run(int(steps_now), stop, [&](long done) {
-          if (progress) progress("sampling", done, max_steps);
-        })) {
-      r.interrupted = true;
-      break;
-    }
-    const long burn = sampler.steps() / 4;
-    r.diag = diagnose(sampler, burn);
-    if (double(r.diag.kept) >= s.sampler.tau_multiple * r.diag.tau_max &&
-        r.diag.r_hat_max <= s.sampler.r_hat_max) {
-      r.converged = true;
-      break;
-    }
-  }
+  const auto run = run_to_convergence(
+      sampler, {s.sampler.chunk, max_steps, s.sampler.tau_multiple, s.sampler.r_hat_max}, stop,
+      [&](long done) {
+        if (progress) progress("sampling", done, max_steps);
+      });
+  r.converged = run.converged, r.interrupted = run.interrupted, r.diag = run.diag;
   r.steps = sampler.steps();
   if (!r.converged && !r.interrupted) {
-    const long burn = r.steps / 4;
-    r.diag = diagnose(sampler, burn);
     // kept = 3/4 of the total must reach tau_multiple × τ; split-R̂ − 1 falls about as 1/steps
     double need = s.sampler.tau_multiple * r.diag.tau_max * 4.0 / 3.0;
     if (std::isfinite(r.diag.r_hat_max) && r.diag.r_hat_max > s.sampler.r_hat_max)

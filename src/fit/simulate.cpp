@@ -101,9 +101,9 @@ residuals::Catalog simulate_catalog(const KinematicTruth& t) {
   s.selection.dec_min_deg = t.dec_min_deg;
   auto mock = observe::observe(snap, weights, s);
   mock.catalog.file = "simulated";
-  if (arm.arms > 0) // tracer i has id i + 1 and is named "T<id>" by the observation
-    for (auto& src : mock.catalog.sources)
-      src.group = "arm" + std::to_string(arm_of[std::stoul(src.name.substr(1)) - 1]);
+  if (arm.arms > 0) // tracer i has id i + 1
+    for (std::size_t k = 0; k < mock.catalog.sources.size(); ++k)
+      mock.catalog.sources[k].group = "arm" + std::to_string(arm_of[mock.tracer_ids[k] - 1]);
   return mock.catalog;
 }
 

@@ -81,7 +81,7 @@ TEST_CASE("arms: one segment's worth of spacing fits every m with the right m ta
   // two segments on neighbouring arms of a 4-armed pattern of 13 deg, measured exactly but with
   // pitches too uncertain to tell 2, 4 or 8 arms apart (σ_p = 15 deg): no m is preferred strongly
   std::vector<arms::SegmentSummary> seg(2);
-  const double t = std::tan(13 * units::deg), d = arms::arm_spacing(4, 13);
+  const double d = arms::arm_spacing(4, 13);
   for (int j = 0; j < 2; ++j) {
     seg[std::size_t(j)].group = "s";
     seg[std::size_t(j)].psi_ref_rad = 0;
@@ -89,7 +89,6 @@ TEST_CASE("arms: one segment's worth of spacing fits every m with the right m ta
     seg[std::size_t(j)].pitch_rad = 13 * units::deg;
     seg[std::size_t(j)].cov = {1e-4, 0, std::pow(15 * units::deg, 2)};
   }
-  (void)t;
   arms::ArmCountSettings s;
   const auto r = arms::count_arms(seg, s);
   CHECK(r.ln_bayes_factor_next < std::log(3.0)); // the data cannot tell them apart

@@ -5,6 +5,7 @@
 // parallax zero point and an optional group label. Reading is strict: a missing column, a value
 // that is not a finite number, a non-positive error or a correlation outside [-1, 1] is an error at
 // its file, line and column.
+#include <cmath>
 #include <map>
 #include <string>
 #include <vector>
@@ -35,6 +36,13 @@ struct Source {
   double signal_to_noise() const {
     return has_distance() ? distance_kpc / distance_err_kpc : parallax_mas / parallax_err_mas;
   }
+  // The distance as measured (kpc): the distance given, or 1/ϖ less the source's zero point; NaN
+  // for a parallax that is not positive. A naive distance, biased when errors are not small.
+  double measured_distance_kpc() const {
+    if (has_distance()) return distance_kpc;
+    const double w = parallax_mas - parallax_offset_mas;
+    return w > 0 ? 1 / w : NAN;
+  }
   int line = 0; // line in the file, for messages
 };
 
@@ -46,7 +54,6 @@ struct Catalog {
   // The file gave distances instead of parallaxes (every source has_distance()).
   bool distances = false;
 };
-
 
 struct CatalogOptions {
   // Our column name -> the file's (docs/catalog-format.md lists ours and the other spellings
