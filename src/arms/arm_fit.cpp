@@ -304,7 +304,7 @@ std::string arm_summary(const ArmFit& f, const ArmFitSettings& s) {
 
 std::vector<std::string> write_arm_outputs(const std::string& folder, const ArmFit& f,
                                            const ArmFitSettings& s) {
-  return io::write_folder_atomically(folder, [&](const std::string& dir) {
+  return io::write_folder_atomically(folder, "arms.h5", "arm fit", [&](const std::string& dir) {
     std::vector<std::string> files;
     const auto add = [&](const std::string& stem, const io::Table& t) {
       const auto w = io::write_table_files(dir + "/" + stem, t);

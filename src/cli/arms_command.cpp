@@ -10,6 +10,7 @@
 #include "undertow/detail/kernel.hpp"
 #include "undertow/error.hpp"
 #include "undertow/fit/report.hpp"
+#include "undertow/io/staged_folder.hpp"
 
 namespace undertow::cli {
 
@@ -116,8 +117,7 @@ std::optional<int> run_arms_command(const ArmsArgs& a) {
   }
   const std::string folder =
       a.output.empty() ? std::filesystem::path(a.catalog).stem().string() + "-arms" : a.output;
-  if (std::filesystem::exists(folder) && !std::filesystem::is_directory(folder))
-    throw InputError(SourcePlace{folder, 0, 0, {}}, "the output exists and is not a folder");
+  io::check_replaceable_folder(folder, "arms.h5", "arm fit"); // before any work
   residuals::CatalogOptions read;
   if (!a.columns.empty()) read.columns = residuals::parse_column_map(a.columns, "--columns");
   const auto cat = residuals::read_catalog(a.catalog, read);

@@ -322,14 +322,7 @@ std::string status_line(const FitResult& r) {
 } // namespace
 
 void check_output_folder(const std::string& folder) {
-  namespace fs = std::filesystem;
-  if (!fs::exists(folder)) return;
-  if (!fs::is_directory(folder))
-    throw InputError(SourcePlace{folder, 0, 0, {}}, "the output exists and is not a folder");
-  if (!fs::is_empty(folder) && !fs::exists(fs::path(folder) / "fit.h5"))
-    throw InputError(SourcePlace{folder, 0, 0, {}},
-                     "the output folder exists and holds no earlier fit (no fit.h5): give a new "
-                     "folder, so that nothing of yours is overwritten");
+  io::check_replaceable_folder(folder, "fit.h5", "fit");
 }
 
 namespace {
@@ -343,9 +336,9 @@ std::vector<std::string> write_fit_files(const std::string& folder, const FitFil
 std::vector<std::string> write_fit_outputs(const std::string& folder, const FitFile& f,
                                            const Selection& sel, const FitResult& r,
                                            const std::vector<SourceResult>& src) {
-  check_output_folder(folder);
-  return io::write_folder_atomically(
-      folder, [&](const std::string& tmp) { return write_fit_files(tmp, f, sel, r, src); });
+  return io::write_folder_atomically(folder, "fit.h5", "fit", [&](const std::string& tmp) {
+    return write_fit_files(tmp, f, sel, r, src);
+  });
 }
 
 namespace {

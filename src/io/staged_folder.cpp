@@ -3,12 +3,28 @@
 #include <filesystem>
 #include <unistd.h>
 
+#include "undertow/error.hpp"
+
 namespace undertow::io {
 
+void check_replaceable_folder(const std::string& folder, const std::string& marker,
+                              const std::string& what) {
+  namespace fs = std::filesystem;
+  if (!fs::exists(folder)) return;
+  if (!fs::is_directory(folder))
+    throw InputError(SourcePlace{folder, 0, 0, {}}, "the output exists and is not a folder");
+  if (!fs::is_empty(folder) && !fs::exists(fs::path(folder) / marker))
+    throw InputError(SourcePlace{folder, 0, 0, {}},
+                     "the output folder exists and holds no earlier " + what + " (no " + marker +
+                         "): give a new folder, so that nothing of yours is overwritten");
+}
+
 std::vector<std::string>
-write_folder_atomically(const std::string& folder,
+write_folder_atomically(const std::string& folder, const std::string& marker,
+                        const std::string& what,
                         const std::function<std::vector<std::string>(const std::string&)>& write) {
   namespace fs = std::filesystem;
+  check_replaceable_folder(folder, marker, what);
   const fs::path out = fs::path(folder).lexically_normal();
   const fs::path parent = out.has_parent_path() ? out.parent_path() : fs::path(".");
   const std::string tag = std::to_string(::getpid());

@@ -84,6 +84,16 @@ refuse pitch-high "--pitch-range" arms-catalog.csv --r0 8.1 --pitch-range 10,95
 refuse no-r0 "give --r0" arms-catalog.csv
 refuse unlabelled "no source has a group label" "$src/demo/kinematic-catalog.csv" --r0 8.1
 refuse no-group "no source is in group 'arm7'" arms-catalog.csv --r0 8.1 --groups arm0,arm7
+# a folder of the user's that holds no earlier arm fit is never replaced; an earlier fit is
+mkdir keep && echo mine > keep/notes.txt
+set +e
+"$undertow" arms arms-catalog.csv --r0 8.1 -o keep > keep.out 2> keep.err; code=$?
+set -e
+[ "$code" -eq 2 ] && grep -q "holds no earlier arm fit (no arms.h5)" keep.err &&
+  [ "$(cat keep/notes.txt)" = mine ] && [ ! -e keep/arms.h5 ] ||
+  { cat keep.err; fail "a folder of the user's: exit $code, or it was touched"; }
+"$undertow" arms arms-catalog.csv --r0 8.1 -o fit --no-figures > again.out ||
+  fail "an earlier arm fit's folder was not replaced"
 touch a-file
 set +e
 "$undertow" arms arms-catalog.csv --r0 8.1 -o a-file > file.out 2> file.err; code=$?

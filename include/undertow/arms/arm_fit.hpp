@@ -54,7 +54,8 @@ io::Table count_table(const ArmCountResult& c);
 io::Table membership_table(const ArmFit& f);
 std::string arm_summary(const ArmFit& f, const ArmFitSettings& s);
 
-// Writes the folder (io/staged_folder.hpp); returns the files.
+// Writes the folder (io/staged_folder.hpp), replacing an earlier arm fit there but refusing any
+// other non-empty folder; returns the files.
 std::vector<std::string> write_arm_outputs(const std::string& folder, const ArmFit& f,
                                            const ArmFitSettings& s);
 

@@ -9,10 +9,17 @@
 
 namespace undertow::io {
 
+// Refuses (InputError) an output that is a file, or a non-empty folder without `marker`, the
+// file that shows it to be an earlier output of the same command (`what` names it): nothing of
+// the user's is ever replaced. Call it before any work; write_folder_atomically calls it again.
+void check_replaceable_folder(const std::string& folder, const std::string& marker,
+                              const std::string& what);
+
 // write(temporary folder) creates the files and returns their paths; the paths returned here are
 // the same files in `folder`.
 std::vector<std::string>
-write_folder_atomically(const std::string& folder,
+write_folder_atomically(const std::string& folder, const std::string& marker,
+                        const std::string& what,
                         const std::function<std::vector<std::string>(const std::string&)>& write);
 
 } // namespace undertow::io
