@@ -121,6 +121,7 @@ std::optional<int> run_arms_command(const ArmsArgs& a) {
   residuals::CatalogOptions read;
   if (!a.columns.empty()) read.columns = residuals::parse_column_map(a.columns, "--columns");
   const auto cat = residuals::read_catalog(a.catalog, read);
+  residuals::print_catalog_warnings(cat, std::cerr);
   arms::ArmFit f;
   try {
     f = arms::run_arm_fit(cat, s, &stop_flag());

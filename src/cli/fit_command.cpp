@@ -80,7 +80,7 @@ std::optional<int> run_fit_command(const FitArgs& a) {
     std::cout << "left out: " << e << "\n";
   const auto off = offset_range(f.spec);
   const Likelihood L(sel.used, f.spec.model, off);
-  std::vector<std::string> warnings;
+  std::vector<std::string> warnings = cat.warnings;
   {
     // the quadrature must have converged: ln L with twice the nodes at the start values
     KinematicModel m2 = f.spec.model;
@@ -121,7 +121,7 @@ std::optional<int> run_fit_command(const FitArgs& a) {
   const auto files = write_fit_outputs(folder, f, sel, r, src);
   {
     // the summary without its warnings, which go to stderr
-    std::istringstream in(io::read_text_file(folder + "/summary.txt"));
+    std::istringstream in(io::read_file_bytes(folder + "/summary.txt"));
     std::string line;
     while (std::getline(in, line))
       if (line.rfind("warning: ", 0) != 0) std::cout << line << "\n";

@@ -96,6 +96,8 @@ struct IntegrateArgs {
 int run_integrate(const IntegrateArgs& a) {
   using namespace undertow;
   const auto sc = scenario::load_scenario(a.scenario);
+  for (const auto& w : sc.warnings)
+    std::cerr << "warning: " << w << "\n";
   run::EnsembleOptions o;
   o.output =
       a.output.empty() ? std::filesystem::path(a.scenario).stem().string() + ".h5" : a.output;
@@ -344,6 +346,8 @@ struct RunArgs {
 int run_whole(const RunArgs& a) {
   using namespace undertow;
   const auto sc = scenario::load_scenario(a.scenario);
+  for (const auto& w : sc.warnings)
+    std::cerr << "warning: " << w << "\n";
   run::WholeRunOptions o;
   o.folder = a.folder.empty() ? std::filesystem::path(a.scenario).stem().string() : a.folder;
   o.force = a.from_scratch;

@@ -3,18 +3,16 @@
 #include <cmath>
 #include <set>
 
+#include "undertow/detail/kernel.hpp"
 #include "undertow/error.hpp"
 
 namespace undertow::dynamics {
 
 double calibrate(potential::Model& m, double r0_kpc, double theta0_kms,
                  const std::vector<std::string>& labels) {
-  if (!(r0_kpc > 0) || !std::isfinite(r0_kpc))
-    throw InputError("calibration: radius_kpc must be positive, got " +
-                     undertow::detail::num(r0_kpc));
-  if (!(theta0_kms > 0) || !std::isfinite(theta0_kms))
-    throw InputError("calibration: speed_kms must be positive, got " +
-                     undertow::detail::num(theta0_kms));
+  // ParameterError names the key, so that a reader reports it at that key's line
+  undertow::detail::positive(r0_kpc, "radius_kpc");
+  undertow::detail::positive(theta0_kms, "speed_kms");
   if (labels.empty()) throw InputError("calibration: rescale names no component");
   std::set<std::size_t> chosen;
   for (const auto& l : labels)

@@ -323,8 +323,9 @@ Model model_from_table(const toml::table& t, const std::string& file, const std:
     const auto which = cr.strings("rescale");
     cr.finish({"radius_kpc", "speed_kms", "rescale"});
     try {
-      dynamics::calibrate(m, r0, v0, which);
+      io::at_keys(cr, [&] { return dynamics::calibrate(m, r0, v0, which); });
     } catch (const InputError& e) {
+      if (!e.place().file.empty()) throw; // already placed at its key
       cr.fail("rescale", e.what());
     }
   }

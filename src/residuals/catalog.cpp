@@ -4,9 +4,12 @@
 #include <cmath>
 #include <cstdio>
 #include <iterator>
+#include <map>
+#include <ostream>
 #include <stdexcept>
 #include <utility>
 
+#include "undertow/detail/kernel.hpp"
 #include "undertow/error.hpp"
 #include "undertow/io/atomic_file.hpp"
 #include "undertow/io/input_table.hpp"
@@ -97,6 +100,8 @@ public:
                        "missing column (nor any of its other spellings, nor a column map entry)");
     return c;
   }
+  // The file's column c is read as one of ours.
+  bool reads(std::size_t c) const { return std::find(at_.begin(), at_.end(), c) != at_.end(); }
 
 private:
   // A file with units (ECSV, FITS) must use ours; CSV carries none.
@@ -156,6 +161,13 @@ Catalog from_table(const io::InputTable& t, const CatalogOptions& o) {
   const bool has_corr = ccorr != npos, has_group = cgroup != npos;
   const std::size_t ccw_a = cols("corr_parallax_pmra"), ccw_d = cols("corr_parallax_pmdec"),
                     coff = cols("parallax_offset_mas");
+  const auto warn = [&](const SourcePlace& where, const std::string& what) {
+    c.warnings.push_back(InputError::format(where, what));
+  };
+  for (std::size_t k = 0; k < t.columns(); ++k)
+    if (!cols.reads(k))
+      warn(t.header_place(k), "not a column undertow reads (docs/catalog-format.md): ignored");
+  std::map<std::string, int> first_line; // of each source name
   for (std::size_t r = 0; r < t.rows(); ++r) {
     Source s;
     s.line = t.line_of(r);
@@ -194,6 +206,20 @@ Catalog from_table(const io::InputTable& t, const CatalogOptions& o) {
                        "the correlations of parallax and proper motions are not a valid "
                        "correlation matrix (not positive definite)");
     if (has_group) s.group = t.cell(r, cgroup);
+    if (const auto [it, fresh] = first_line.emplace(s.name, s.line); !fresh)
+      warn(t.place(r, name), "'" + s.name + "' names an earlier source too (line " +
+                                 std::to_string(it->second) +
+                                 "): both are kept, and outputs will show the name twice");
+    if (!distances && !(s.parallax_mas > 0))
+      warn(t.place(r, col[2]),
+           "parallax " + detail::num(s.parallax_mas) +
+               " mas is not positive: kept; the kinematic and arm fits and residuals' posterior "
+               "distances use it, residuals with 1/parallax distances leave it out");
+    // 1000 mas is closer than 1 pc, nearer than any star (the largest stellar parallax is about
+    // 770 mas, from memory): a unit slip, most likely
+    if (!distances && s.parallax_mas > 1000)
+      warn(t.place(r, col[2]), "parallax " + detail::num(s.parallax_mas) +
+                                   " mas puts the source closer than 1 pc: is the column in mas?");
     if (helio) // the LSR velocity the rest of undertow reads, by the LSR the caller uses
       s.vlsr_kms = sky::helio_to_lsr(s.vlsr_kms, s.ra_deg, s.dec_deg, o.lsr);
     c.sources.push_back(std::move(s));
@@ -202,6 +228,14 @@ Catalog from_table(const io::InputTable& t, const CatalogOptions& o) {
 }
 
 } // namespace
+
+void print_catalog_warnings(const Catalog& c, std::ostream& out, std::size_t shown) {
+  for (std::size_t i = 0; i < c.warnings.size() && i < shown; ++i)
+    out << "warning: " << c.warnings[i] << "\n";
+  if (c.warnings.size() > shown)
+    out << "warning: ... and " << c.warnings.size() - shown << " more of the same kinds in "
+        << c.file << "\n";
+}
 
 Catalog read_catalog(const std::string& path, const CatalogOptions& o) {
   return from_table(io::InputTable::read_file(path), o);

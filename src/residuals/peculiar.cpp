@@ -113,6 +113,7 @@ ResidualResult compute_residuals(const Catalog& c, const ResidualSettings& s) {
   if (s.distance == ResidualSettings::Distance::posterior_median) s.prior.validate();
   const fit::DistancePrior prior = prior_of(s);
   ResidualResult out;
+  out.warnings = c.warnings; // the catalog's own, counted in the summary with the rest
   std::uint64_t index = 0;
   bool warned_inverse = false;
   for (const Source& src : c.sources) {

@@ -164,7 +164,7 @@ EnsembleResult run_ensemble(const scenario::Scenario& s, const EnsembleOptions& 
   gas::GasState g;
   const bool star_records = s.gas && s.gas->stars;
   if (fs::exists(dir)) {
-    if (!fs::exists(id_file) || io::read_text_file(id_file) != identity(s))
+    if (!fs::exists(id_file) || io::read_file_bytes(id_file) != identity(s))
       throw InputError(SourcePlace{dir, 0, 0, {}},
                        "holds an unfinished run of a different scenario (or model file); remove it "
                        "or run again with --from-scratch");

@@ -4,6 +4,7 @@
 #include <cmath>
 #include <cstdio>
 #include <filesystem>
+#include <iostream>
 #include <map>
 #include <optional>
 #include <sstream>
@@ -31,7 +32,7 @@ namespace fs = std::filesystem;
 // The key a finished stage left beside its output, if any.
 std::optional<std::string> stored_key(const fs::path& key_file) {
   if (!fs::exists(key_file)) return std::nullopt;
-  return io::read_text_file(key_file.string());
+  return io::read_file_bytes(key_file.string());
 }
 
 void write_text(const fs::path& p, const std::string& text) {
@@ -351,6 +352,7 @@ WholeRunResult run_all(const scenario::Scenario& s, const WholeRunOptions& o) {
   read.columns = s.comparison->catalog_columns;
   read.lsr = s.observation->settings.lsr;
   const auto measured = residuals::read_catalog(s.comparison->catalog, read); // inputs first
+  residuals::print_catalog_warnings(measured, std::cerr);
   const fs::path dir(o.folder);
   std::error_code ec;
   fs::create_directories(dir / ".keys", ec);

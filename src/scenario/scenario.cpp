@@ -86,6 +86,10 @@ void read_integration(Scenario& s, const TableReader& r) {
   if (s.end_myr == s.start_myr) r.fail("end_myr", "must differ from start_myr");
   s.integration.step_myr = r.number("step_myr");
   if (!(s.integration.step_myr > 0)) r.fail("step_myr", "must be positive");
+  if (const double span = std::fabs(s.end_myr - s.start_myr); s.integration.step_myr > span)
+    s.warnings.push_back(InputError::format(
+        r.place("step_myr"), "longer than the run (" + detail::num(span) +
+                                 " Myr): the run takes one step of " + detail::num(span) + " Myr"));
   s.integration.tolerance = r.number_or("tolerance", 1e-10);
   if (!(s.integration.tolerance > 0 && s.integration.tolerance < 1))
     r.fail("tolerance", "must lie in (0, 1)");

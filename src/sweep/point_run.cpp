@@ -256,7 +256,7 @@ PointStatus checked_status(const Plan& p, const Point& q) {
   }
   if (fs::exists(failed_of(p, q))) {
     st.state = PointStatus::State::failed;
-    st.detail = io::read_text_file(failed_of(p, q).string());
+    st.detail = io::read_file_bytes(failed_of(p, q).string());
     while (!st.detail.empty() && st.detail.back() == '\n')
       st.detail.pop_back();
     return st;

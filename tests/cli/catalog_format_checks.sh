@@ -74,4 +74,25 @@ expect_error "column map naming a missing column" "kestrel:[0-9]*: PLX: the colu
   "$undertow" residuals ../csv/kestrel "${common[@]}" -o bad --columns parallax_mas=PLX
 expect_error "ECSV column in arcsec" "arcsec.ecsv:[0-9]*: parallax_mas: unit 'arcsec'" \
   "$undertow" residuals arcsec.ecsv "${common[@]}" -o bad
+# a NUL inside a cell (read as the digits before it by a C parser), a folder for a catalog
+"$py" -c "
+t = open('../csv/kestrel', 'rb').read().split(b'\\n')
+i = next(k for k, l in enumerate(t) if l and not l.startswith(b'#')) + 2  # the second data row
+t[i] = t[i].replace(b',', b'\\x00junk,', 3)
+open('nul.csv', 'wb').write(b'\\n'.join(t))
+"
+expect_error "NUL inside a cell" "nul.csv:[0-9]*:[0-9]*: control character 0x00 (NUL)" \
+  "$undertow" residuals nul.csv "${common[@]}" -o bad
+mkdir folder.csv
+expect_error "a folder for a catalog" "folder.csv: is a folder, not a file" \
+  "$undertow" residuals folder.csv "${common[@]}" -o bad
 echo "bad catalogs: one line each naming the file and column, exit 2, nothing written"
+
+# A UTF-8 byte-order mark, as spreadsheet programs write: read as if absent, the same tables
+mkdir bom && printf '\xef\xbb\xbf' > bom/kestrel && cat ../csv/kestrel >> bom/kestrel
+(cd bom && "$undertow" residuals kestrel "${common[@]}" -o res > log 2>&1) ||
+  { cat bom/log; fail "a catalog with a byte-order mark"; }
+for f in res/residuals-sources.{csv,ecsv,md,tex,fits} res/residuals-summary.{csv,ecsv,md,fits}; do
+  cmp -s ../csv/$f bom/$f || fail "bom/$f differs from the CSV catalog's"
+done
+echo "a catalog with a UTF-8 byte-order mark gives the same residuals"

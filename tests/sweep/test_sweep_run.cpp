@@ -21,7 +21,7 @@ namespace {
 using test::scratch;
 
 std::string bytes(const fs::path& p) {
-  return io::read_text_file(p.string());
+  return io::read_file_bytes(p.string());
 }
 
 } // namespace

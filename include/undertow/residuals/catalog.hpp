@@ -6,6 +6,7 @@
 // that is not a finite number, a non-positive error or a correlation outside [-1, 1] is an error at
 // its file, line and column.
 #include <cmath>
+#include <iosfwd>
 #include <map>
 #include <string>
 #include <vector>
@@ -53,7 +54,13 @@ struct Catalog {
   bool heliocentric_velocities = false;
   // The file gave distances instead of parallaxes (every source has_distance()).
   bool distances = false;
+  // Odd but valid input, one line each ("file:line: field: what"): columns undertow does not
+  // read, source names used twice, non-positive or implausibly large parallaxes.
+  std::vector<std::string> warnings;
 };
+// Writes the catalog's warnings to `out`, "warning: " each, at most `shown` of them and then a
+// count of the rest.
+void print_catalog_warnings(const Catalog& c, std::ostream& out, std::size_t shown = 10);
 
 struct CatalogOptions {
   // Our column name -> the file's (docs/catalog-format.md lists ours and the other spellings

@@ -68,6 +68,8 @@ struct Scenario {
   std::uint64_t seed = 1;
   std::string model_path; // when the galaxy is a separate file
   std::string model_text; // verbatim text of that file (or empty)
+  // Odd but valid settings, one line each ("file:line: key: what"), for the commands to print.
+  std::vector<std::string> warnings;
   potential::Model model;
   TracerSource tracers;
   std::optional<gas::GasSettings> gas; // [gas]: the tracers are colliding gas clouds
