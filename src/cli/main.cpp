@@ -14,6 +14,7 @@
 #include "undertow/gas/spiral_shock.hpp"
 #include "undertow/io/atomic_file.hpp"
 #include "undertow/io/snapshot.hpp"
+#include "undertow/io/staged_folder.hpp"
 #include "undertow/io/table_hdf5.hpp"
 #include "undertow/observe/observation_file.hpp"
 #include "undertow/observe/prepare.hpp"
@@ -282,8 +283,10 @@ int run_residuals(const ResidualArgs& a) {
           : "",
       parallax_offset, lsr_name.c_str(), s.draws, static_cast<unsigned long long>(s.seed));
   const std::string prefix = (std::filesystem::path(folder) / "residuals").string();
-  std::filesystem::create_directories(folder);
-  const auto files = residuals::write_report(prefix, res, sum, settings);
+  const auto files = io::write_files_together(folder, [&](const std::string& tmp) {
+    return residuals::write_report((std::filesystem::path(tmp) / "residuals").string(), res, sum,
+                                   settings);
+  });
   std::cout << "with " << settings << "\n\n";
   io::write_table(std::cout, residuals::summary_table(sum), io::TableFormat::markdown);
   for (const auto& e : res.excluded)

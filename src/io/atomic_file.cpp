@@ -5,6 +5,7 @@
 #include <cstring>
 #include <filesystem>
 #include <unistd.h>
+#include <vector>
 
 #include "undertow/error.hpp"
 
@@ -60,6 +61,50 @@ void AtomicFile::commit() {
   const bool ok = bool(out_);
   out_.close();
   path_.commit(ok && !out_.fail());
+}
+
+void check_output_file(const std::string& path) {
+  namespace fs = std::filesystem;
+  std::error_code ec;
+  if (fs::is_directory(path, ec))
+    throw InputError(SourcePlace{path, 0, 0, {}}, "is a folder; give the output a file name");
+  fs::path parent = fs::path(path).parent_path();
+  if (parent.empty()) parent = ".";
+  if (!fs::exists(parent, ec))
+    throw InputError(SourcePlace{path, 0, 0, {}},
+                     "its folder " + parent.string() + " does not exist");
+  if (!fs::is_directory(parent, ec))
+    throw InputError(SourcePlace{path, 0, 0, {}}, parent.string() + " is a file, not a folder");
+  if (::access(parent.c_str(), W_OK | X_OK) != 0)
+    throw InputError(SourcePlace{path, 0, 0, {}},
+                     "cannot write in " + parent.string() + ": " + std::strerror(errno));
+}
+
+void remove_stale_temporaries(const std::string& dir) {
+  namespace fs = std::filesystem;
+  std::error_code ec;
+  if (!fs::is_directory(dir, ec)) return;
+  std::vector<fs::path> stale; // collected first: removing while iterating is undefined
+  for (const auto& e : fs::recursive_directory_iterator(dir, ec))
+    if (AtomicPath::is_temporary(e.path().filename().string())) stale.push_back(e.path());
+  for (const auto& p : stale)
+    fs::remove_all(p, ec);
+}
+
+void remove_stale_temporaries_of(const std::string& path) {
+  namespace fs = std::filesystem;
+  const fs::path p(path);
+  fs::path parent = p.parent_path();
+  if (parent.empty()) parent = ".";
+  const std::string prefix = "." + p.filename().string() + ".tmp-";
+  std::error_code ec;
+  std::vector<fs::path> stale;
+  for (const auto& e : fs::directory_iterator(parent, ec)) {
+    const std::string name = e.path().filename().string();
+    if (name.rfind(prefix, 0) == 0 && AtomicPath::is_temporary(name)) stale.push_back(e.path());
+  }
+  for (const auto& q : stale)
+    fs::remove_all(q, ec);
 }
 
 } // namespace undertow::io

@@ -7,6 +7,17 @@
 
 namespace undertow::io {
 
+namespace {
+// An error met while writing into a temporary folder, told with the paths the user asked for.
+[[noreturn]] void rethrow_for(const std::string& what, const std::string& tmp,
+                              const std::string& out) {
+  std::string m = what;
+  for (auto at = m.find(tmp); at != std::string::npos; at = m.find(tmp, at + out.size()))
+    m.replace(at, tmp.size(), out);
+  throw InputError(m);
+}
+} // namespace
+
 void check_replaceable_folder(const std::string& folder, const std::string& marker,
                               const std::string& what) {
   namespace fs = std::filesystem;
@@ -43,7 +54,45 @@ write_folder_atomically(const std::string& folder, const std::string& marker,
     std::error_code ec;
     fs::remove_all(tmp, ec);
     if (fs::exists(old, ec) && !fs::exists(out, ec)) fs::rename(old, out, ec);
-    throw;
+    try {
+      throw;
+    } catch (const InputError& e) {
+      rethrow_for(e.what(), tmp.string(), out.string());
+    }
+  }
+  return files;
+}
+
+std::vector<std::string>
+write_files_together(const std::string& folder,
+                     const std::function<std::vector<std::string>(const std::string&)>& write) {
+  namespace fs = std::filesystem;
+  const fs::path out(folder);
+  std::error_code ec;
+  const bool created = !fs::exists(out, ec);
+  fs::create_directories(out, ec);
+  if (ec || !fs::is_directory(out))
+    throw InputError(SourcePlace{folder, 0, 0, {}},
+                     "cannot create the output folder" + (ec ? ": " + ec.message() : ""));
+  const fs::path tmp = out / (".files.tmp-" + std::to_string(::getpid()));
+  std::vector<std::string> files;
+  try {
+    fs::remove_all(tmp);
+    fs::create_directory(tmp);
+    for (const auto& file : write(tmp.string())) {
+      const fs::path to = out / fs::path(file).filename();
+      fs::rename(file, to);
+      files.push_back(to.string());
+    }
+    fs::remove_all(tmp);
+  } catch (...) {
+    fs::remove_all(tmp, ec);
+    if (created) fs::remove_all(out, ec);
+    try {
+      throw;
+    } catch (const InputError& e) {
+      rethrow_for(e.what(), tmp.string(), out.string());
+    }
   }
   return files;
 }

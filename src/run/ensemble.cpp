@@ -9,6 +9,7 @@
 #include "undertow/error.hpp"
 #include "undertow/gas/cloud_gas.hpp"
 #include "undertow/gas/gas_orbits.hpp"
+#include "undertow/io/atomic_file.hpp"
 #include "undertow/io/text_file.hpp"
 #include "undertow/orbit/conserved.hpp"
 #include "undertow/orbit/frame.hpp"
@@ -153,6 +154,8 @@ bool advance_segment(const scenario::Scenario& s, const gas::CircularFlow& flow,
 
 EnsembleResult run_ensemble(const scenario::Scenario& s, const EnsembleOptions& o) {
   if (o.output.empty()) throw InputError("no output file given");
+  io::check_output_file(o.output);           // before the work, not after it
+  io::remove_stale_temporaries_of(o.output); // a killed run's unfinished final file
   const std::string dir = o.output + ".parts";
   const std::string id_file = (fs::path(dir) / "scenario.txt").string();
   std::vector<double> times{s.start_myr};

@@ -16,6 +16,7 @@
 #include "undertow/dynamics/frequencies.hpp"
 #include "undertow/error.hpp"
 #include "undertow/fit/measured_sources.hpp"
+#include "undertow/io/atomic_file.hpp"
 #include "undertow/io/digest.hpp"
 #include "undertow/io/table_hdf5.hpp"
 #include "undertow/io/text_file.hpp"
@@ -355,9 +356,12 @@ WholeRunResult run_all(const scenario::Scenario& s, const WholeRunOptions& o) {
   residuals::print_catalog_warnings(measured, std::cerr);
   const fs::path dir(o.folder);
   std::error_code ec;
+  if (fs::exists(dir, ec) && !fs::is_directory(dir, ec))
+    throw InputError(SourcePlace{o.folder, 0, 0, {}}, "is a file; a whole run writes a folder");
   fs::create_directories(dir / ".keys", ec);
   if (ec)
     throw InputError(SourcePlace{o.folder, 0, 0, {}}, "cannot create folder: " + ec.message());
+  io::remove_stale_temporaries(o.folder); // of a run killed mid-write: never results
   WholeRunResult res;
   const auto note = [&](const std::string& t) {
     if (o.log) *o.log << t << "\n";

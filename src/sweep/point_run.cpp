@@ -31,18 +31,6 @@ fs::path failed_of(const Plan& p, const Point& q) {
   return point_folder(p, q) + ".failed";
 }
 
-// Temporaries of a writer killed mid-write (io::AtomicFile): garbage, removed before a point
-// resumes and before its files are digested, so that a resumed folder equals an uninterrupted one.
-void remove_stale_temporaries(const fs::path& dir) {
-  if (!fs::exists(dir)) return;
-  std::vector<fs::path> stale;
-  for (const auto& e : fs::recursive_directory_iterator(dir))
-    if (e.is_regular_file() && io::AtomicFile::is_temporary(e.path().filename().string()))
-      stale.push_back(e.path());
-  for (const auto& p : stale)
-    fs::remove(p);
-}
-
 std::map<std::string, io::FileDigest> digests(const fs::path& dir) {
   std::map<std::string, io::FileDigest> out;
   for (const auto& e : fs::recursive_directory_iterator(dir)) {
@@ -340,7 +328,7 @@ PointOutcome run_point(const Plan& p, const Point& q, const PointRunOptions& o) 
     say(st.detail + "; set aside as " + aside.filename().string() + ", running it again");
   }
   fs::remove(failed_of(p, q)); // a retry: it shows as partial while it runs
-  remove_stale_temporaries(partial);
+  io::remove_stale_temporaries(partial.string());
   say(describe(p, q));
   run::WholeRunResult w;
   double science = 0;
@@ -382,7 +370,7 @@ PointOutcome run_point(const Plan& p, const Point& q, const PointRunOptions& o) 
       for (const auto& e : fs::directory_iterator(partial / ".keys"))
         if (e.path().filename().string().rfind("orbits-r", 0) == 0) fs::remove(e.path());
     }
-    remove_stale_temporaries(partial);
+    io::remove_stale_temporaries(partial.string());
     if (digest_inputs() != inputs)
       return failed("an input file changed while the point ran; run it again");
     r = result_of(w);

@@ -57,8 +57,24 @@ if "$undertow" integrate s.toml -o full/out.h5 > full.log 2>&1; then fail "no er
 grep -q "disk full" full.log || fail "unclear full-disk error: $(cat full.log)"
 [ -e full/out.h5 ] && fail "a half-written file was left on the full disk"
 [ -e full/out.h5.parts ] && fail "a parts folder was left on the full disk"
-umount full; trap - EXIT
 echo "   $(tail -1 full.log)"
+# residuals: its tables and HDF5 file join the folder together or not at all
+if "$undertow" residuals "$src/demo/kestrel-measured.csv" --model "$src/potentials/kestrel.toml" \
+  --r0 8.1 --draws 50 --bootstrap 50 -o full/res > full-res.log 2>&1; then
+  fail "residuals: no error on a full disk"
+fi
+grep -q "full/res/residuals-.*write failed" full-res.log || fail "unclear error: $(cat full-res.log)"
+[ -z "$(ls -A full)" ] || fail "residuals left $(ls -A full) on the full disk"
+echo "   $(tail -1 full-res.log)"
+umount full; trap - EXIT
+
+echo "-- an output that is a folder: refused before any work"
+mkdir -p a-folder.h5
+if "$undertow" integrate s.toml -o a-folder.h5 > afold.log 2>&1; then fail "no error for a folder"; fi
+[ "$(wc -l < afold.log)" -eq 1 ] || fail "error is not one line: $(cat afold.log)"
+grep -q "is a folder" afold.log || fail "unclear error: $(cat afold.log)"
+[ -e a-folder.h5.parts ] && fail "a parts folder was started for an output that is a folder"
+echo "   $(cat afold.log)"
 
 echo "-- an unwritable folder"
 if "$undertow" integrate s.toml -o /proc/undertow-out.h5 > unw.log 2>&1; then fail "no error for /proc"; fi

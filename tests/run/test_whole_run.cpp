@@ -112,7 +112,12 @@ TEST_CASE("A whole run writes every stage into one folder, reuses finished stage
       }
     }
   }
+  // temporaries of a run killed mid-write, at the top and in a stage's folder: removed on rerun
+  std::ofstream(d / "spiral" / ".verdict.csv.tmp-31337") << "half";
+  std::ofstream(d / "spiral" / "realisations" / ".orbits.h5.tmp-31338") << "half";
   const auto r2 = run::run_all(spiral, o);
+  CHECK_FALSE(fs::exists(d / "spiral" / ".verdict.csv.tmp-31337"));
+  CHECK_FALSE(fs::exists(d / "spiral" / "realisations" / ".orbits.h5.tmp-31338"));
   CHECK(r2.reused == std::vector<std::string>{"orbits", "mock", "orbits-r1"});
   CHECK(fs::exists(d / "spiral" / "realisations" / "r1" / "orbits.h5"));
   CHECK(fs::exists(d / "spiral" / "verdict.csv"));

@@ -46,4 +46,14 @@ private:
   std::ofstream out_;
 };
 
+// Refuses (InputError, one line) an output file path that cannot be written: a folder, a parent
+// that is missing, a file or unwritable. Call it before any work, not after hours of it.
+void check_output_file(const std::string& path);
+
+// Removes the temporaries (is_temporary) that writers killed mid-write left in `dir` and its
+// subfolders: a folder that a run owns, before the run resumes in it.
+void remove_stale_temporaries(const std::string& dir);
+// The same for one output file's temporaries beside it (".<name>.tmp-<pid>").
+void remove_stale_temporaries_of(const std::string& path);
+
 } // namespace undertow::io

@@ -22,4 +22,12 @@ write_folder_atomically(const std::string& folder, const std::string& marker,
                         const std::string& what,
                         const std::function<std::vector<std::string>(const std::string&)>& write);
 
+// Files that join a folder (existing, perhaps holding other things, or new) all together or not
+// at all: write(temporary folder inside it) creates them and returns their paths; each is then
+// renamed into `folder`. On any failure the temporary is removed, and the folder too if this call
+// created it. Returns the files' paths in `folder`.
+std::vector<std::string>
+write_files_together(const std::string& folder,
+                     const std::function<std::vector<std::string>(const std::string&)>& write);
+
 } // namespace undertow::io

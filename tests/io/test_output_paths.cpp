@@ -1,0 +1,92 @@
+// Output paths checked before any work, and the temporaries of a killed writer removed when a
+// run starts again in its place (common practice for resumable tools: a temporary is never a
+// result).
+#include <catch2/catch.hpp>
+
+#include <filesystem>
+#include <fstream>
+#include <string>
+
+#include "undertow/error.hpp"
+#include "undertow/io/atomic_file.hpp"
+#include "undertow/run/ensemble.hpp"
+#include "undertow/scenario/scenario.hpp"
+
+using namespace undertow;
+namespace fs = std::filesystem;
+
+namespace {
+
+fs::path fresh(const std::string& name) {
+  const auto d = fs::temp_directory_path() / "undertow-output-paths" / name;
+  fs::remove_all(d);
+  fs::create_directories(d);
+  return d;
+}
+
+std::string error_of(const std::function<void()>& f) {
+  try {
+    f();
+  } catch (const InputError& e) {
+    return e.what();
+  }
+  return "(no error)";
+}
+
+scenario::Scenario small_scenario(const fs::path& dir) {
+  return scenario::parse_scenario(
+      "[run]\nname = \"s\"\nseed = 1\n[galaxy]\nmodel_file = \"" +
+          std::string(UNDERTOW_SOURCE_DIR) +
+          "/potentials/kestrel-axisymmetric.toml\"\n[tracers]\nsource = \"disk\"\ncount = 50\n"
+          "scale_length_kpc = 3\nr_min_kpc = 4\nr_max_kpc = 10\nscale_height_kpc = 0.1\n"
+          "sigma_r_kms = 5\nsigma_z_kms = 5\n[integration]\nmethod = \"leapfrog\"\n"
+          "end_myr = 10\nstep_myr = 1\n[output]\nevery_myr = 5\n",
+      (dir / "s.toml").string());
+}
+
+} // namespace
+
+TEST_CASE("output files: a path that cannot be written is refused before any work", "[io]") {
+  const auto d = fresh("check");
+  CHECK_NOTHROW(io::check_output_file((d / "out.h5").string()));
+  fs::create_directories(d / "a-folder.h5");
+  CHECK_THAT(error_of([&] { io::check_output_file((d / "a-folder.h5").string()); }),
+             Catch::Contains("a-folder.h5: is a folder; give the output a file name"));
+  CHECK_THAT(error_of([&] { io::check_output_file((d / "missing" / "out.h5").string()); }),
+             Catch::Contains("does not exist"));
+  std::ofstream(d / "plain") << "x";
+  CHECK_THAT(error_of([&] { io::check_output_file((d / "plain" / "out.h5").string()); }),
+             Catch::Contains("is a file, not a folder"));
+  // integrate to a folder: refused at once, and no parts folder is started
+  run::EnsembleOptions o;
+  o.output = (d / "a-folder.h5").string();
+  CHECK_THAT(error_of([&] { run::run_ensemble(small_scenario(d), o); }),
+             Catch::Contains("is a folder"));
+  CHECK_FALSE(fs::exists(d / "a-folder.h5.parts"));
+}
+
+TEST_CASE("output files: a killed writer's temporaries are removed when the run starts again",
+          "[io]") {
+  const auto d = fresh("stale");
+  // left by a process killed while renaming its final file, and one of a staged folder
+  std::ofstream(d / ".orbits.h5.tmp-4242") << "half";
+  fs::create_directories(d / "sub" / ".arms.tmp-77");
+  std::ofstream(d / "sub" / ".arms.tmp-77" / "arms.h5") << "half";
+  // not temporaries: kept
+  std::ofstream(d / ".orbits.h5.tmp-") << "keep";
+  std::ofstream(d / "orbits.h5.tmp-12") << "keep";
+  std::ofstream(d / ".other.h5.tmp-9") << "someone else's";
+  run::EnsembleOptions o;
+  o.output = (d / "orbits.h5").string();
+  REQUIRE(run::run_ensemble(small_scenario(d), o).complete);
+  CHECK_FALSE(fs::exists(d / ".orbits.h5.tmp-4242"));
+  CHECK(fs::exists(d / ".other.h5.tmp-9")); // one output's temporaries only
+  CHECK(fs::exists(d / ".orbits.h5.tmp-"));
+  CHECK(fs::exists(d / "orbits.h5.tmp-12"));
+  // a folder a run owns: every temporary in it
+  io::remove_stale_temporaries(d.string());
+  CHECK_FALSE(fs::exists(d / ".other.h5.tmp-9"));
+  CHECK_FALSE(fs::exists(d / "sub" / ".arms.tmp-77"));
+  CHECK(fs::exists(d / "orbits.h5"));
+  CHECK(fs::exists(d / ".orbits.h5.tmp-"));
+}
