@@ -8,6 +8,8 @@
 #include <fstream>
 #include <string>
 
+#include "support/input_error.hpp"
+#include "support/scratch.hpp"
 #include "undertow/error.hpp"
 #include "undertow/io/text_file.hpp"
 #include "undertow/potential/model_file.hpp"
@@ -24,44 +26,29 @@ std::string row(const std::string& name, const std::string& parallax) {
   return name + ",272.1,-19.8," + parallax + ",0.01,-3.8,0.2,-6.4,0.1,67,5\n";
 }
 
-std::string error_of(const std::function<void()>& f) {
-  try {
-    f();
-  } catch (const InputError& e) {
-    return e.what();
-  }
-  return "(no error)";
-}
-
-std::filesystem::path scratch(const std::string& name) {
-  const auto d = std::filesystem::temp_directory_path() / "undertow-hygiene";
-  std::filesystem::create_directories(d);
-  return d / name;
-}
-
 } // namespace
 
 TEST_CASE("text inputs: control characters are refused at their line and column", "[io]") {
   // a NUL inside a parallax: strtod would read "0.4" and stop, silently
   std::string text = kHeader + row("A", "0.4") + row("B", "0.41");
   text.insert(text.find("0.41") + 2, std::string(1, '\0') + "garbage");
-  const auto e = error_of([&] { io::checked_text(text, "cat.csv"); });
+  const auto e = test::input_error_of([&] { io::checked_text(text, "cat.csv"); });
   CHECK_THAT(e, Catch::Contains("cat.csv:3:17: control character 0x00 (NUL)"));
   // other control characters too, but tab and carriage return are text
-  CHECK_THAT(error_of([&] { io::checked_text("a\x01", "f"); }),
+  CHECK_THAT(test::input_error_of([&] { io::checked_text("a\x01", "f"); }),
              Catch::Contains("f:1:2: control character 0x01"));
-  CHECK_THAT(error_of([&] { io::checked_text("a\n\x7f", "f"); }),
+  CHECK_THAT(test::input_error_of([&] { io::checked_text("a\n\x7f", "f"); }),
              Catch::Contains("f:2:1: control character 0x7F"));
   CHECK(io::checked_text("a\tb\r\nc", "f") == "a\tb\r\nc");
   // through the file reader, so every catalog, model, scenario and sweep file is covered
-  const auto p = scratch("nul.csv");
+  const auto p = test::scratch("hygiene-nul") / "nul.csv";
   std::ofstream(p, std::ios::binary) << text;
-  CHECK_THAT(error_of([&] { residuals::read_catalog(p.string()); }),
+  CHECK_THAT(test::input_error_of([&] { residuals::read_catalog(p.string()); }),
              Catch::Contains(":3:17: control character 0x00"));
 }
 
 TEST_CASE("text inputs: a UTF-8 byte-order mark is accepted and removed", "[io]") {
-  const auto p = scratch("bom.csv");
+  const auto p = test::scratch("hygiene-bom") / "bom.csv";
   std::ofstream(p, std::ios::binary) << "\xEF\xBB\xBF" << kHeader << row("A", "0.4");
   const auto c = residuals::read_catalog(p.string());
   REQUIRE(c.sources.size() == 1);
@@ -74,9 +61,9 @@ TEST_CASE("text inputs: a UTF-8 byte-order mark is accepted and removed", "[io]"
 }
 
 TEST_CASE("text inputs: a folder where a file is expected says so", "[io]") {
-  const auto d = scratch("a-folder.csv");
+  const auto d = test::scratch("hygiene-folder") / "a-folder.csv";
   std::filesystem::create_directories(d);
-  CHECK_THAT(error_of([&] { residuals::read_catalog(d.string()); }),
+  CHECK_THAT(test::input_error_of([&] { residuals::read_catalog(d.string()); }),
              Catch::EndsWith("a-folder.csv: is a folder, not a file"));
 }
 
@@ -107,12 +94,12 @@ TEST_CASE("model files: a calibration's bad radius is reported at its own line",
   const std::string m = "[[component]]\nlabel = \"halo\"\nkind = \"nfw\"\n"
                         "density_msun_kpc3 = 1e7\nscale_kpc = 15\n[calibration]\n"
                         "radius_kpc = -8\nspeed_kms = 220\nrescale = [\"halo\"]\n";
-  CHECK_THAT(error_of([&] { potential::parse_model_text(m, "m.toml"); }),
+  CHECK_THAT(test::input_error_of([&] { potential::parse_model_text(m, "m.toml"); }),
              Catch::Contains("m.toml:7:14: calibration.radius_kpc: must be positive"));
   std::string v = m;
   v.replace(v.find("-8"), 2, "8");
   v.replace(v.find("220"), 3, "-2");
-  CHECK_THAT(error_of([&] { potential::parse_model_text(v, "m.toml"); }),
+  CHECK_THAT(test::input_error_of([&] { potential::parse_model_text(v, "m.toml"); }),
              Catch::Contains("m.toml:8:13: calibration.speed_kms: must be positive"));
 }
 

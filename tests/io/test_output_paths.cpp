@@ -7,6 +7,8 @@
 #include <fstream>
 #include <string>
 
+#include "support/input_error.hpp"
+#include "support/scratch.hpp"
 #include "undertow/error.hpp"
 #include "undertow/io/atomic_file.hpp"
 #include "undertow/run/ensemble.hpp"
@@ -16,22 +18,6 @@ using namespace undertow;
 namespace fs = std::filesystem;
 
 namespace {
-
-fs::path fresh(const std::string& name) {
-  const auto d = fs::temp_directory_path() / "undertow-output-paths" / name;
-  fs::remove_all(d);
-  fs::create_directories(d);
-  return d;
-}
-
-std::string error_of(const std::function<void()>& f) {
-  try {
-    f();
-  } catch (const InputError& e) {
-    return e.what();
-  }
-  return "(no error)";
-}
 
 scenario::Scenario small_scenario(const fs::path& dir) {
   return scenario::parse_scenario(
@@ -47,27 +33,29 @@ scenario::Scenario small_scenario(const fs::path& dir) {
 } // namespace
 
 TEST_CASE("output files: a path that cannot be written is refused before any work", "[io]") {
-  const auto d = fresh("check");
+  const auto d = test::scratch("output-check");
   CHECK_NOTHROW(io::check_output_file((d / "out.h5").string()));
   fs::create_directories(d / "a-folder.h5");
-  CHECK_THAT(error_of([&] { io::check_output_file((d / "a-folder.h5").string()); }),
+  CHECK_THAT(test::input_error_of([&] { io::check_output_file((d / "a-folder.h5").string()); }),
              Catch::Contains("a-folder.h5: is a folder; give the output a file name"));
-  CHECK_THAT(error_of([&] { io::check_output_file((d / "missing" / "out.h5").string()); }),
-             Catch::Contains("does not exist"));
+  CHECK_THAT(
+      test::input_error_of([&] { io::check_output_file((d / "missing" / "out.h5").string()); }),
+      Catch::Contains("does not exist"));
   std::ofstream(d / "plain") << "x";
-  CHECK_THAT(error_of([&] { io::check_output_file((d / "plain" / "out.h5").string()); }),
-             Catch::Contains("is a file, not a folder"));
+  CHECK_THAT(
+      test::input_error_of([&] { io::check_output_file((d / "plain" / "out.h5").string()); }),
+      Catch::Contains("is a file, not a folder"));
   // integrate to a folder: refused at once, and no parts folder is started
   run::EnsembleOptions o;
   o.output = (d / "a-folder.h5").string();
-  CHECK_THAT(error_of([&] { run::run_ensemble(small_scenario(d), o); }),
+  CHECK_THAT(test::input_error_of([&] { run::run_ensemble(small_scenario(d), o); }),
              Catch::Contains("is a folder"));
   CHECK_FALSE(fs::exists(d / "a-folder.h5.parts"));
 }
 
 TEST_CASE("output files: a killed writer's temporaries are removed when the run starts again",
           "[io]") {
-  const auto d = fresh("stale");
+  const auto d = test::scratch("output-stale");
   // left by a process killed while renaming its final file, and one of a staged folder
   std::ofstream(d / ".orbits.h5.tmp-4242") << "half";
   fs::create_directories(d / "sub" / ".arms.tmp-77");
