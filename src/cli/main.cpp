@@ -1,10 +1,12 @@
 // The undertow command line: declares subcommands and forwards to the library. No physics here.
 #include <CLI/CLI.hpp>
+#include <algorithm>
 #include <cmath>
 #include <iostream>
 #include <memory>
 #include <optional>
 #include <sstream>
+#include <vector>
 
 #include "undertow/dynamics/frequencies.hpp"
 #include "undertow/dynamics/profile.hpp"
@@ -355,7 +357,31 @@ int run_whole(const RunArgs& a) {
   o.folder = a.folder.empty() ? std::filesystem::path(a.scenario).stem().string() : a.folder;
   o.force = a.from_scratch;
   undertow::cli::prepare_long_run(o, a.threads);
-  const auto r = run::run_all(sc, o);
+  namespace fs = std::filesystem;
+  const bool existed = fs::exists(o.folder);
+  run::WholeRunResult r;
+  try {
+    r = run::run_all(sc, o);
+  } catch (const InputError& e) {
+    // say what a failed run leaves: a new folder with no finished stage is removed; finished
+    // stages stay, named, for a rerun to reuse
+    std::error_code ec;
+    std::vector<std::string> kept;
+    if (!existed && fs::is_directory(o.folder, ec))
+      for (const auto& f : fs::recursive_directory_iterator(o.folder, ec))
+        if (f.is_regular_file() && f.path().parent_path().filename() != ".keys")
+          kept.push_back(fs::relative(f.path(), o.folder).string());
+    if (existed || kept.empty()) {
+      if (!existed) fs::remove_all(o.folder, ec);
+      throw;
+    }
+    std::sort(kept.begin(), kept.end());
+    std::string list;
+    for (const auto& k : kept)
+      list += (list.empty() ? "" : ", ") + k;
+    throw InputError(std::string(e.what()) + "; the stages finished before it are kept in " +
+                     o.folder + "/ (" + list + ") for a rerun to reuse");
+  }
   if (!r.complete) {
     std::cerr << "undertow: interrupted; run the same command again to resume\n";
     return 130;

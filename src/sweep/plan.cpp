@@ -7,6 +7,7 @@
 
 #include "undertow/io/digest.hpp"
 #include "undertow/io/paths.hpp"
+#include "undertow/io/staged_folder.hpp"
 #include "undertow/io/text_file.hpp"
 #include "undertow/io/toml_table.hpp"
 #include "undertow/io/toml_writer.hpp"
@@ -20,8 +21,8 @@ namespace {
 namespace fs = std::filesystem;
 
 // Scenario values that name files; relative ones are relative to the scenario's folder.
-const char* const path_keys[] = {"tracers.file", "observation.errors.catalog",
-                                 "comparison.catalog", "observation.sun.from_fit"};
+const char* const path_keys[] = {"tracers.file", "observation.errors.catalog", "comparison.catalog",
+                                 "observation.sun.from_fit"};
 const char* const seed_keys[] = {"run.seed", "observation.seed", "comparison.seed"};
 constexpr std::size_t max_points = 100000;
 
@@ -320,11 +321,12 @@ void write_plan(const Plan& p) {
        "# to a point's folder.\n[scenario]\nbase = " +
        block(p.base) + "\n";
   if (!p.reference.empty()) o += "reference = " + block(p.reference) + "\n";
-  std::error_code ec;
-  fs::create_directories(p.folder, ec);
-  if (ec)
-    throw InputError(SourcePlace{p.folder, 0, 0, {}}, "cannot create folder: " + ec.message());
-  io::write_text_file((fs::path(p.folder) / "plan.toml").string(), o);
+  // a folder this call creates is removed again if the plan cannot be written (a full disk)
+  io::write_files_together(p.folder, [&](const std::string& tmp) {
+    const std::string file = (fs::path(tmp) / "plan.toml").string();
+    io::write_text_file(file, o);
+    return std::vector<std::string>{file};
+  });
 }
 
 Plan read_plan(const std::string& folder_or_file, bool build) {

@@ -112,6 +112,8 @@ sed -i 's|^draws = 200|draws = 200\nparallax_snr_min = 50|' none.toml
 if "$undertow" run none.toml -o none-out > none.log 2> none.err; then fail "a catalog with no usable source was compared"; fi
 grep -q "sources are left after the selection" none.err || { cat none.err; fail "no clear message for an empty selection"; }
 ! ls none-out/comparison-* > /dev/null 2>&1 || fail "comparison tables were written for an empty selection"
+# the stages finished before the failure stay for a rerun, and the message says which
+grep -q "kept in none-out/ (.*orbits.h5" none.err || { cat none.err; fail "the message hides the stages kept"; }
 
 # Zero simulated young sources near a measured one: a neighbourhood radius of 1 pc.
 sed 's/^neighbourhood = "nearest"/neighbourhood = "radius"\nneighbourhood_radius_kpc = 0.001/' typo.toml | sed 's/^neighbors = 30/neighbours = 30/' > lonely.toml

@@ -11,6 +11,7 @@
 #include "support/scratch.hpp"
 #include "undertow/error.hpp"
 #include "undertow/io/atomic_file.hpp"
+#include "undertow/io/staged_folder.hpp"
 #include "undertow/run/ensemble.hpp"
 #include "undertow/scenario/scenario.hpp"
 
@@ -77,4 +78,37 @@ TEST_CASE("output files: a killed writer's temporaries are removed when the run 
   CHECK_FALSE(fs::exists(d / "sub" / ".arms.tmp-77"));
   CHECK(fs::exists(d / "orbits.h5"));
   CHECK(fs::exists(d / ".orbits.h5.tmp-"));
+}
+
+TEST_CASE("output files: files that join a folder arrive together or not at all", "[io]") {
+  const auto d = test::scratch("output-together");
+  const auto write_two = [](bool fail) {
+    return [fail](const std::string& tmp) {
+      std::ofstream(fs::path(tmp) / "a.csv") << "a";
+      if (fail) throw InputError(SourcePlace{tmp + "/b.h5", 0, 0, {}}, "write failed");
+      std::ofstream(fs::path(tmp) / "b.h5") << "b";
+      return std::vector<std::string>{tmp + "/a.csv", tmp + "/b.h5"};
+    };
+  };
+  // a new folder: removed again on failure, and the error names the final path
+  CHECK_THAT(test::input_error_of(
+                 [&] { io::write_files_together((d / "new").string(), write_two(true)); }),
+             Catch::StartsWith((d / "new" / "b.h5").string() + ": write failed"));
+  CHECK_FALSE(fs::exists(d / "new"));
+  // a folder of the user's: its files untouched, nothing added
+  fs::create_directories(d / "mine");
+  std::ofstream(d / "mine" / "notes.txt") << "mine";
+  CHECK_THROWS(io::write_files_together((d / "mine").string(), write_two(true)));
+  std::size_t n = 0;
+  for ([[maybe_unused]] const auto& e : fs::directory_iterator(d / "mine"))
+    ++n;
+  CHECK(n == 1);
+  // success: both files, no temporary
+  const auto files = io::write_files_together((d / "mine").string(), write_two(false));
+  CHECK(files ==
+        std::vector<std::string>{(d / "mine" / "a.csv").string(), (d / "mine" / "b.h5").string()});
+  n = 0;
+  for ([[maybe_unused]] const auto& e : fs::directory_iterator(d / "mine"))
+    ++n;
+  CHECK(n == 3);
 }
