@@ -10,6 +10,7 @@ packages=(
   libplplot-dev plplot-driver-cairo libfontconfig-dev fonts-dejavu-core
   libcfitsio-dev libyaml-cpp-dev
   libpng-dev poppler-utils
+  clang libclang-rt-14-dev libomp-14-dev
   python3-numpy python3-h5py python3-astropy python3-scipy python3-emcee
   slurm-wlm munge
 )

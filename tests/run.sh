@@ -9,3 +9,6 @@ cmake --build build-test
 # Two test processes share the two cores: OpenMP threads must sleep, not spin, while they wait.
 export OMP_WAIT_POLICY=PASSIVE
 ctest --test-dir build-test --output-on-failure -j 2 "$@"
+# The readers under libFuzzer with AddressSanitizer and UndefinedBehaviorSanitizer: a second build
+# (clang, build-fuzz/, about 6 minutes) and a fixed set of inputs per reader (about 5 minutes).
+bash tests/fuzz/run.sh --fixed "$here/build-fuzz"

@@ -95,11 +95,12 @@ SweepSpec parse_sweep_file(const std::string& text, const std::string& path) {
     w.fail("name", "use 1 to 64 letters, digits, '_', '-' or '.'");
   s.description = w.string_or("description", "");
   s.base_path = io::path_beside(path, w.string("base"));
-  if (!fs::is_regular_file(s.base_path))
+  std::error_code ec; // a path the system refuses (too long, say) does not exist: no throw
+  if (!fs::is_regular_file(s.base_path, ec))
     w.fail("base", "the base scenario " + s.base_path + " does not exist");
   if (w.has("reference")) {
     s.reference_path = io::path_beside(path, w.string("reference"));
-    if (!fs::is_regular_file(s.reference_path))
+    if (!fs::is_regular_file(s.reference_path, ec))
       w.fail("reference", "the reference scenario " + s.reference_path + " does not exist");
   }
   const std::string design = w.string_or("design", "grid");
