@@ -33,7 +33,9 @@ ObservationSpec observation_from_table(const toml::table& t, const std::string& 
   TableReader r(t, file, ctx);
   r.check_keys({"seed", "lsr", "time_myr", "sun", "selection", "young", "errors"});
   const double seed = r.number_or("seed", 1);
-  if (!(seed >= 0 && std::floor(seed) == seed)) r.fail("seed", "must be a whole number");
+  // below 2^53: every whole number there is exact, and the conversion to 64 bits is defined
+  if (!(seed >= 0 && std::floor(seed) == seed && seed < 0x1p53))
+    r.fail("seed", "must be a whole number from 0 to 2^53");
   s.seed = std::uint64_t(seed);
   try {
     s.lsr = sky::lsr_form_from_name(r.string_or("lsr", "apex"));
