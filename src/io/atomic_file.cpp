@@ -13,8 +13,11 @@ namespace undertow::io {
 
 AtomicPath::AtomicPath(std::string path) : path_(std::move(path)) {
   const std::filesystem::path p(path_);
-  tmp_ = (p.parent_path() / ("." + p.filename().string() + ".tmp-" + std::to_string(::getpid())))
-             .string();
+  tmp_ = (p.parent_path() / temporary_name(p.filename().string())).string();
+}
+
+std::string AtomicPath::temporary_name(const std::string& filename) {
+  return temporary_prefix(filename) + std::to_string(::getpid());
 }
 
 AtomicPath::~AtomicPath() {
@@ -96,7 +99,7 @@ void remove_stale_temporaries_of(const std::string& path) {
   const fs::path p(path);
   fs::path parent = p.parent_path();
   if (parent.empty()) parent = ".";
-  const std::string prefix = "." + p.filename().string() + ".tmp-";
+  const std::string prefix = AtomicPath::temporary_prefix(p.filename().string());
   std::error_code ec;
   std::vector<fs::path> stale;
   for (const auto& e : fs::directory_iterator(parent, ec)) {

@@ -4,6 +4,7 @@
 #include <unistd.h>
 
 #include "undertow/error.hpp"
+#include "undertow/io/atomic_file.hpp"
 
 namespace undertow::io {
 
@@ -39,7 +40,7 @@ write_folder_atomically(const std::string& folder, const std::string& marker,
   const fs::path out = fs::path(folder).lexically_normal();
   const fs::path parent = out.has_parent_path() ? out.parent_path() : fs::path(".");
   const std::string tag = std::to_string(::getpid());
-  const fs::path tmp = parent / ("." + out.filename().string() + ".tmp-" + tag);
+  const fs::path tmp = parent / AtomicPath::temporary_name(out.filename().string());
   const fs::path old = parent / ("." + out.filename().string() + ".old-" + tag);
   fs::remove_all(tmp);
   std::vector<std::string> files;
@@ -74,7 +75,7 @@ write_files_together(const std::string& folder,
   if (ec || !fs::is_directory(out))
     throw InputError(SourcePlace{folder, 0, 0, {}},
                      "cannot create the output folder" + (ec ? ": " + ec.message() : ""));
-  const fs::path tmp = out / (".files.tmp-" + std::to_string(::getpid()));
+  const fs::path tmp = out / AtomicPath::temporary_name("files");
   std::vector<std::string> files;
   try {
     fs::remove_all(tmp);

@@ -22,6 +22,12 @@ public:
   // Whether a file name is a temporary of this class (".<name>.tmp-<pid>"): one left by a
   // killed process is garbage, never a result.
   static bool is_temporary(const std::string& filename);
+  // The name of this process's temporary for `filename` (".<name>.tmp-<pid>"), and the part before
+  // the pid, which every process's temporary for it shares.
+  static std::string temporary_name(const std::string& filename);
+  static std::string temporary_prefix(const std::string& filename) {
+    return "." + filename + ".tmp-";
+  }
 
 private:
   std::string path_, tmp_;
