@@ -46,13 +46,21 @@ for _ in $(seq 400); do
 done
 kill -9 "$pid"
 wait "$pid" 2>/dev/null || true
-sleep 0.3 # the workers die with the pool (PR_SET_PDEATHSIG)
+# The workers die with the pool (PR_SET_PDEATHSIG), but a process killed with SIGKILL takes a
+# moment to be torn down and to free its point's lock: on a slow machine 0.3 s was not enough and
+# the rerun found a point "running in another task". Wait until no worker of this plan is left.
+for _ in $(seq 500); do
+  pgrep -f "sweep run pool --point" >/dev/null || break
+  sleep 0.02
+done
+! pgrep -f "sweep run pool --point" >/dev/null || fail "the pool's workers outlived it by 10 s"
 k=$(finished pool)
 [ "$k" -lt 7 ] || fail "the pool finished before it was killed; nothing was resumed"
 [ "$k" -ge 1 ] || fail "the pool was killed before any point finished; nothing to skip"
 echo "pool killed with $k of 7 points finished"
 "$U" sweep status pool | tail -n 1
-"$U" sweep run pool --workers 2 --threads 1 >pool-2.out 2>pool-2.err
+"$U" sweep run pool --workers 2 --threads 1 >pool-2.out 2>pool-2.err ||
+  { cat pool-2.out pool-2.err; fail "the rerun of the killed pool failed"; }
 grep -q "already finished $k," pool-2.out || fail "the rerun did not skip the $k finished points"
 
 # 2b. One worker of a pool killed (as the out-of-memory killer would): that point is recorded as
@@ -90,7 +98,8 @@ for attempt in 1 2 3; do
 done
 compgen -G "killed/points/*.partial" >/dev/null || fail "no half-written point to resume (3 attempts)"
 "$U" sweep status killed | grep -q "): partial" || fail "status does not show the partial point"
-"$U" sweep run killed >killed-2.out 2>killed-2.err
+"$U" sweep run killed >killed-2.out 2>killed-2.err ||
+  { cat killed-2.out killed-2.err; fail "the rerun of the killed process failed"; }
 
 # 3b. SIGTERM (what Slurm sends at a time limit) in the middle of a point: exit status 130, the
 # point kept to resume, and the rerun finishes it.
@@ -104,7 +113,8 @@ wait "$pid" || rc=$?
 [ "$rc" = 130 ] || { tail -n 3 term-1.err; fail "SIGTERM gave exit status $rc, not 130"; }
 grep -q "interrupted; run the same command again to resume" term-1.err || fail "no resume hint after SIGTERM"
 [ "$(finished term)" -lt 7 ] || fail "the sweep finished before SIGTERM"
-"$U" sweep run term >term-2.out 2>term-2.err
+"$U" sweep run term >term-2.out 2>term-2.err ||
+  { cat term-2.out term-2.err; fail "the rerun after SIGTERM failed"; }
 
 # 4. Sixteen shards, as a 16-task array would run them.
 "$U" sweep plan "$sweep" -o shards >/dev/null
