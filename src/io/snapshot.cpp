@@ -8,6 +8,7 @@
 #include <unistd.h>
 
 #include "undertow/error.hpp"
+#include "undertow/io/creation_time.hpp"
 #include "undertow/io/hdf5.hpp"
 #include "undertow/io/table.hpp"
 #include "undertow/potential/describe.hpp"
@@ -84,18 +85,17 @@ void copy_group_into(const h5::File& dst, hid_t parent, const std::string& name,
   write_tracers(dst, g.id(), s);
 }
 
-std::string utc_now() {
-  const std::time_t t = std::time(nullptr);
-  char b[32];
-  std::strftime(b, sizeof b, "%Y-%m-%dT%H:%M:%SZ", std::gmtime(&t));
-  return b;
-}
-
 } // namespace
 
 Provenance make_provenance(const std::string& text, const std::string& file,
                            const std::string& model_text, std::uint64_t seed) {
-  return {UNDERTOW_VERSION, UNDERTOW_GIT_REVISION, utc_now(), text, file, model_text, seed};
+  return {UNDERTOW_VERSION,
+          UNDERTOW_GIT_REVISION,
+          creation_time_utc("%Y-%m-%dT%H:%M:%SZ"),
+          text,
+          file,
+          model_text,
+          seed};
 }
 
 void write_snapshot_part(const std::string& path, const Snapshot& s) {

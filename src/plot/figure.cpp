@@ -7,13 +7,18 @@
 #include <cmath>
 #include <cstdio>
 #include <filesystem>
+#include <fstream>
+#include <iterator>
 #include <mutex>
 #include <numbers>
 #include <sstream>
 #include <stdexcept>
+#include <string_view>
 #include <unistd.h>
 
 #include "undertow/error.hpp"
+#include "undertow/io/atomic_file.hpp"
+#include "undertow/io/creation_time.hpp"
 
 namespace undertow::plot {
 namespace {
@@ -71,6 +76,53 @@ void on_abort(PLCHAR_VECTOR msg) {
 }
 
 constexpr double kPointsPerMm = 72 / 25.4;
+
+std::string read_all(const std::string& path) {
+  std::ifstream in(path, std::ios::binary);
+  return {std::istreambuf_iterator<char>(in), std::istreambuf_iterator<char>()};
+}
+
+// PLplot does not report the cairo drivers' write errors (a full disk): a file that lacks its
+// format's closing bytes is refused rather than committed. PNG ends with the IEND chunk (PNG
+// specification, ISO/IEC 15948, 11.2.5), PDF with %%EOF (ISO 32000-1, 7.5.5), SVG with </svg>.
+bool whole_file(const std::string& path, Format format) {
+  std::string s = read_all(path);
+  if (format != Format::png)
+    while (!s.empty() && (s.back() == '\n' || s.back() == '\r' || s.back() == ' '))
+      s.pop_back();
+  const auto ends = [&](std::string_view tail) {
+    return s.size() >= tail.size() && s.compare(s.size() - tail.size(), tail.size(), tail) == 0;
+  };
+  switch (format) {
+  case Format::png:
+    return ends(std::string_view("IEND\xae\x42\x60\x82", 8));
+  case Format::pdf:
+    return ends("%%EOF");
+  case Format::svg:
+    return ends("</svg>");
+  }
+  return false;
+}
+
+// cairo writes the time of drawing as a PDF's /CreationDate (D:YYYYMMDDHHmmSSZ); with
+// SOURCE_DATE_EPOCH set, that time instead, in place and of the same length, so that the
+// cross-reference table's byte offsets still hold.
+void fix_pdf_date(const std::string& path) {
+  if (!io::fixed_creation_time()) return;
+  std::string s = read_all(path);
+  const std::string key = "/CreationDate (D:";
+  const auto at = s.find(key);
+  if (at == std::string::npos) return;
+  const std::string date = io::creation_time_utc("%Y%m%d%H%M%SZ");
+  const auto from = at + key.size();
+  if (s.size() < from + date.size() + 1 || s[from + date.size()] != ')' ||
+      s[from + date.size() - 1] != 'Z')
+    return; // some other layout of the date: left as cairo wrote it
+  s.replace(from, date.size(), date);
+  std::ofstream out(path, std::ios::binary | std::ios::trunc);
+  out << s;
+  if (!out.flush()) throw InputError(path + ": write failed (disk full?); nothing written");
+}
 
 } // namespace
 
@@ -130,7 +182,7 @@ Figure::Figure(std::string path, Format format, const Page& page)
   if (!std::filesystem::is_directory(dir))
     throw InputError(path_ + ": folder " + dir.string() + " does not exist");
   if (access(dir.c_str(), W_OK) != 0) throw InputError(path_ + ": folder is not writable");
-  tmp_ = (dir / ("." + p.filename().string() + ".tmp-" + std::to_string(getpid()))).string();
+  tmp_ = (dir / io::AtomicPath::temporary_name(p.filename().string())).string();
 
   static std::once_flag once;
   std::call_once(once, [] { plsabort(on_abort); });
@@ -528,6 +580,15 @@ void Figure::commit() {
     std::remove(tmp_.c_str());
     done_ = true;
     throw InputError(path_ + ": " + e);
+  }
+  try {
+    if (!whole_file(tmp_, format_))
+      throw InputError(path_ + ": write failed (disk full?); nothing written");
+    if (format_ == Format::pdf) fix_pdf_date(tmp_);
+  } catch (const InputError&) {
+    std::remove(tmp_.c_str());
+    done_ = true;
+    throw;
   }
   std::error_code ec;
   std::filesystem::rename(tmp_, path_, ec);

@@ -3,6 +3,7 @@
 // result).
 #include <catch2/catch.hpp>
 
+#include <cstdlib>
 #include <filesystem>
 #include <fstream>
 #include <string>
@@ -11,6 +12,7 @@
 #include "support/scratch.hpp"
 #include "undertow/error.hpp"
 #include "undertow/io/atomic_file.hpp"
+#include "undertow/io/snapshot.hpp"
 #include "undertow/io/staged_folder.hpp"
 #include "undertow/run/ensemble.hpp"
 #include "undertow/scenario/scenario.hpp"
@@ -111,4 +113,28 @@ TEST_CASE("output files: files that join a folder arrive together or not at all"
   for ([[maybe_unused]] const auto& e : fs::directory_iterator(d / "mine"))
     ++n;
   CHECK(n == 3);
+}
+
+// SOURCE_DATE_EPOCH (reproducible-builds.org/specs/source-date-epoch): a file's creation time is
+// that many seconds after 1970-01-01 UTC, so reruns write identical bytes; a malformed value is
+// refused, as the specification asks. 1e9 s is 2001-09-09T01:46:40Z (a value from memory, checked
+// here against gmtime-free arithmetic: 11574 days of 86400 s plus 6400 s).
+TEST_CASE("a file's creation time follows SOURCE_DATE_EPOCH when it is set", "[io]") {
+  const char* before = std::getenv("SOURCE_DATE_EPOCH");
+  const std::string saved = before ? before : "";
+  REQUIRE(11574LL * 86400 + 6400 == 1000000000LL);
+  ::setenv("SOURCE_DATE_EPOCH", "1000000000", 1);
+  CHECK(io::make_provenance("", "", "", 1).created_utc == "2001-09-09T01:46:40Z");
+  ::setenv("SOURCE_DATE_EPOCH", "0", 1);
+  CHECK(io::make_provenance("", "", "", 1).created_utc == "1970-01-01T00:00:00Z");
+  for (const char* bad : {"12abc", "-5", "1e9", "99999999999999999999"}) {
+    ::setenv("SOURCE_DATE_EPOCH", bad, 1);
+    CHECK(test::input_error_of([] {
+            io::make_provenance("", "", "", 1);
+          }).find("SOURCE_DATE_EPOCH = '") != std::string::npos);
+  }
+  if (before)
+    ::setenv("SOURCE_DATE_EPOCH", saved.c_str(), 1);
+  else
+    ::unsetenv("SOURCE_DATE_EPOCH");
 }

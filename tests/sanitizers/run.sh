@@ -1,0 +1,19 @@
+#!/usr/bin/env bash
+# The test suite again, on the build that tests/fuzz/run.sh made with clang, AddressSanitizer and
+# UndefinedBehaviorSanitizer (every target instrumented): a memory error, a leak of ours or
+# undefined behaviour fails the test that met it. Left out, to keep CI within its time: the
+# statistical injection tests and the demo (the same code as the unit and CLI tests, run hundreds
+# of times over), and the process-level checks of Slurm, kills and full disks (what they check
+# does not depend on the compiler, and they run on the release build).
+# Usage: tests/sanitizers/run.sh [BUILD (build-fuzz)] [ctest arguments]
+set -euo pipefail
+here=$(cd "$(dirname "$0")/../.." && pwd)
+build=${1:-$here/build-fuzz}
+shift || true
+cmake --build "$build"
+export ASAN_OPTIONS=detect_leaks=1:abort_on_error=0:strict_string_checks=1
+export UBSAN_OPTIONS=print_stacktrace=1:halt_on_error=1
+export LSAN_OPTIONS=suppressions=$here/tests/sanitizers/lsan.supp
+export OMP_WAIT_POLICY=PASSIVE
+ctest --test-dir "$build" --output-on-failure -j 2 \
+  -E "^(fit.injection|arms.injection|demo.checks|sweep.slurm|cli.kill_checks|cli.full_disk_checks)$" "$@"
