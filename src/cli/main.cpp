@@ -367,11 +367,11 @@ int run_whole(const RunArgs& a) {
     // stages stay, named, for a rerun to reuse
     std::error_code ec;
     std::vector<std::string> kept;
-    if (!existed && fs::is_directory(o.folder, ec))
+    if (fs::is_directory(o.folder, ec))
       for (const auto& f : fs::recursive_directory_iterator(o.folder, ec))
         if (f.is_regular_file() && f.path().parent_path().filename() != ".keys")
           kept.push_back(fs::relative(f.path(), o.folder).string());
-    if (existed || kept.empty()) {
+    if (kept.empty()) {
       if (!existed) fs::remove_all(o.folder, ec);
       throw;
     }

@@ -295,7 +295,22 @@ PointOutcome run_point(const Plan& p, const Point& q, const PointRunOptions& o) 
   const auto say = [&](const std::string& s) {
     if (o.log) *o.log << label << ": " << s << "\n" << std::flush;
   };
-  const auto failed = [&](const std::string& what) {
+  const auto failed = [&](std::string what) {
+    // as a whole run does: a folder with no finished stage goes, finished stages stay for the
+    // retry and the message says so
+    const fs::path partial = partial_of(p, q);
+    std::error_code ec;
+    if (fs::is_directory(partial, ec)) {
+      bool finished_stage = false;
+      for (const auto& f : fs::recursive_directory_iterator(partial, ec))
+        if (f.is_regular_file() && f.path().parent_path().filename() != ".keys")
+          finished_stage = true;
+      if (finished_stage)
+        what += "; its finished stages are kept in points/" + partial.filename().string() +
+                " for the retry";
+      else
+        fs::remove_all(partial, ec);
+    }
     out.kind = PointOutcome::Kind::failed;
     out.message = what;
     record_failure(p, q, what, o.log);
