@@ -10,5 +10,7 @@ cmake --build build-test
 export OMP_WAIT_POLICY=PASSIVE
 ctest --test-dir build-test --output-on-failure -j 2 "$@"
 # The readers under libFuzzer with AddressSanitizer and UndefinedBehaviorSanitizer: a second build
-# (clang, build-fuzz/, about 6 minutes) and a fixed set of inputs per reader (about 5 minutes).
+# (clang, build-fuzz/) and a fixed set of inputs per reader (about 5 minutes).
 bash tests/fuzz/run.sh --fixed "$here/build-fuzz"
+# The test suite on that instrumented build (DEVELOPERS.md: Sanitizers).
+bash tests/sanitizers/run.sh "$here/build-fuzz"

@@ -13,7 +13,7 @@ fixed=0
 if [ "${1:-}" = "--fixed" ]; then fixed=1; shift; set -- 300 "$@"; fi
 secs=${1:-60} build=${2:-$here/build-fuzz}
 CC=clang CXX=clang++ cmake -S "$here" -B "$build" -G Ninja -DCMAKE_BUILD_TYPE=RelWithDebInfo \
-  -DUNDERTOW_FUZZ=ON -DUNDERTOW_TESTS=OFF -DUNDERTOW_BENCHMARKS=OFF >/dev/null
+  -DUNDERTOW_FUZZ=ON -DUNDERTOW_TESTS=ON -DUNDERTOW_BENCHMARKS=OFF >/dev/null
 cmake --build "$build" --target fuzzers
 
 seeds() { # the demo's files of each kind

@@ -621,7 +621,8 @@ TEST_CASE("Miyamoto-Nagai with a = 0 is a Plummer sphere of scale b (Miyamoto & 
 TEST_CASE("Miyamoto-Nagai: total mass from Gauss's theorem at large r and from the volume "
           "integral of rho (Gauss's theorem, Miyamoto & Nagai 1975)",
           "[components]") {
-  const auto [m, a, b] = GENERATE(std::tuple{6.8e10, 3.0, 0.28}, std::tuple{1e11, 15.0, 3.0});
+  const auto [m, a_, b_] = GENERATE(std::tuple{6.8e10, 3.0, 0.28}, std::tuple{1e11, 15.0, 3.0});
+  const double a = a_, b = b_; // lambdas capture variables, not structured bindings (clang 14)
   const auto mn = MiyamotoNagai::make(m, a, b);
   CHECK(mn.total_mass() == Approx(m).epsilon(1e-14));
   // r^2 |a| / G -> M: the correction is of order (a + b) / r

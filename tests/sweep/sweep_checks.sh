@@ -13,9 +13,10 @@ cd "$W"
 fail() { echo "FAIL: $*" >&2; exit 1; }
 sweep="$SRC/tests/sweep/ci-sweep.toml"
 finished() { find "$1/points" -mindepth 1 -maxdepth 1 -type d ! -name '*.partial' 2>/dev/null | wc -l; }
-# Waits until one point of plan $1 has finished and another is half-way (its .partial folder).
+# Waits (up to a minute: a sanitizer build is slow) until one point of plan $1 has finished and
+# another is half-way (its .partial folder).
 mid_point() {
-  for _ in $(seq 400); do
+  for _ in $(seq 3000); do
     compgen -G "$1/points/*.partial/.keys" >/dev/null && [ "$(finished "$1")" -ge 1 ] && return 0
     sleep 0.02
   done
@@ -40,7 +41,7 @@ one_done=$(date +%s.%N)
 "$U" sweep plan "$sweep" -o pool >/dev/null
 "$U" sweep run pool --workers 2 --threads 1 >pool-1.out 2>pool-1.err &
 pid=$!
-for _ in $(seq 400); do
+for _ in $(seq 3000); do
   [ "$(finished pool)" -ge 2 ] && break
   sleep 0.02
 done
@@ -69,7 +70,7 @@ grep -q "already finished $k," pool-2.out || fail "the rerun did not skip the $k
 "$U" sweep run oom --workers 2 --threads 1 >oom-1.out 2>oom-1.err &
 pid=$!
 worker=""
-for _ in $(seq 400); do
+for _ in $(seq 3000); do
   worker=$(pgrep -P "$pid" -f "sweep run . --point" | head -n 1 || true)
   [ -n "$worker" ] && break
   sleep 0.02
