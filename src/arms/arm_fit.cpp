@@ -31,6 +31,7 @@ ArmFit run_arm_fit(const residuals::Catalog& c, const ArmFitSettings& s,
     throw detail::ParameterError("max arms", "must lie between 1 and 16");
   ArmFit f;
   f.catalog = c.file;
+  f.catalog_warnings = c.warnings;
   // the groups, in the order given or of first appearance
   std::vector<std::string> names = s.groups;
   std::map<std::string, std::vector<residuals::Source>> by_group;
@@ -299,6 +300,16 @@ std::string arm_summary(const ArmFit& f, const ArmFitSettings& s) {
   }
   for (const auto& n : f.notes)
     o << "note: " << n << "\n";
+  // counted here as well as printed when read: a summary read later must not hide them
+  if (!f.catalog_warnings.empty()) {
+    const std::size_t shown = 10;
+    o << f.catalog_warnings.size() << " warning" << (f.catalog_warnings.size() == 1 ? "" : "s")
+      << " reading " << f.catalog << ":\n";
+    for (std::size_t i = 0; i < f.catalog_warnings.size() && i < shown; ++i)
+      o << "warning: " << f.catalog_warnings[i] << "\n";
+    if (f.catalog_warnings.size() > shown)
+      o << "warning: ... and " << f.catalog_warnings.size() - shown << " more\n";
+  }
   return o.str();
 }
 

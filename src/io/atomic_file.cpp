@@ -100,11 +100,18 @@ void remove_stale_temporaries_of(const std::string& path) {
   fs::path parent = p.parent_path();
   if (parent.empty()) parent = ".";
   const std::string prefix = AtomicPath::temporary_prefix(p.filename().string());
+  // and a replaced folder set aside by write_folder_atomically: ".<name>.old-<pid>"
+  const std::string old = "." + p.filename().string() + ".old-";
+  const auto pid_after = [](const std::string& name, const std::string& start) {
+    return name.size() > start.size() && name.rfind(start, 0) == 0 &&
+           name.find_first_not_of("0123456789", start.size()) == std::string::npos;
+  };
   std::error_code ec;
   std::vector<fs::path> stale;
   for (const auto& e : fs::directory_iterator(parent, ec)) {
     const std::string name = e.path().filename().string();
-    if (name.rfind(prefix, 0) == 0 && AtomicPath::is_temporary(name)) stale.push_back(e.path());
+    if ((name.rfind(prefix, 0) == 0 && AtomicPath::is_temporary(name)) || pid_after(name, old))
+      stale.push_back(e.path());
   }
   for (const auto& q : stale)
     fs::remove_all(q, ec);

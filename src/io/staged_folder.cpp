@@ -42,7 +42,7 @@ write_folder_atomically(const std::string& folder, const std::string& marker,
   const std::string tag = std::to_string(::getpid());
   const fs::path tmp = parent / AtomicPath::temporary_name(out.filename().string());
   const fs::path old = parent / ("." + out.filename().string() + ".old-" + tag);
-  fs::remove_all(tmp);
+  remove_stale_temporaries_of(out.string()); // a killed earlier write's, ours included
   std::vector<std::string> files;
   try {
     fs::create_directories(tmp);

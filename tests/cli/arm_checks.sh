@@ -57,6 +57,15 @@ TOML
 "$undertow" tabulate model.toml --from 8 --to 8 --step 1 > model.out || fail "arms_from: model refused"
 grep -q "m = 4" model.out || fail "arms_from: the model has not the fit's four arms"
 
+# 3b. Odd but valid input: a column undertow does not read gives a warning on stderr, counted and
+# repeated in summary.txt.
+awk -F, 'BEGIN { OFS = "," } /^#/ { print; next } !h { print $0, "observer"; h = 1; next } { print $0, "nobody" }' \
+  arms-catalog.csv > extra.csv
+"$undertow" arms extra.csv --r0 8.1 -o extra > extra.out 2> extra.err
+grep -q "^warning: .*observer.*not a column undertow reads" extra.err || { cat extra.err; fail "no warning for an unread column"; }
+grep -q "^1 warning reading extra.csv" extra/summary.txt || { cat extra/summary.txt; fail "summary.txt does not count the warning"; }
+grep -q "^warning: .*observer" extra/summary.txt || fail "summary.txt does not repeat the warning"
+
 # 4. Bad input: one line, exit 2, nothing written.
 refuse() { # name, expected text, arguments
   local name=$1 want=$2

@@ -80,6 +80,20 @@ TEST_CASE("output files: a killed writer's temporaries are removed when the run 
   CHECK_FALSE(fs::exists(d / "sub" / ".arms.tmp-77"));
   CHECK(fs::exists(d / "orbits.h5"));
   CHECK(fs::exists(d / ".orbits.h5.tmp-"));
+  // a folder replaced as a whole, killed between its two renames: the new result staged and the
+  // old one set aside, both hidden; the next write of that folder removes them
+  fs::create_directories(d / ".fit.tmp-31337");
+  fs::create_directories(d / ".fit.old-31337");
+  fs::create_directories(d / ".fit.old-x");
+  std::ofstream(d / ".fit.old-31337" / "arms.h5") << "old";
+  io::write_folder_atomically((d / "fit").string(), "arms.h5", "arm fit", [](const std::string& t) {
+    std::ofstream(t + "/arms.h5") << "new";
+    return std::vector<std::string>{t + "/arms.h5"};
+  });
+  CHECK(fs::exists(d / "fit" / "arms.h5"));
+  CHECK_FALSE(fs::exists(d / ".fit.tmp-31337"));
+  CHECK_FALSE(fs::exists(d / ".fit.old-31337"));
+  CHECK(fs::exists(d / ".fit.old-x")); // not a pid: not ours
 }
 
 TEST_CASE("output files: files that join a folder arrive together or not at all", "[io]") {

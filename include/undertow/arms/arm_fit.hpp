@@ -40,7 +40,8 @@ struct ArmFit {
   // and at the measured value ± 1σ (near, far; the far end at the distance range's limit when
   // ϖ − σ <= 0), for the face-on figure
   io::Table sources;
-  std::vector<std::string> notes; // sources left out, warnings
+  std::vector<std::string> notes;            // sources left out, warnings
+  std::vector<std::string> catalog_warnings; // from reading the catalog (Catalog::warnings)
   double seconds = 0;
 };
 

@@ -59,7 +59,8 @@ void check_output_file(const std::string& path);
 // Removes the temporaries (is_temporary) that writers killed mid-write left in `dir` and its
 // subfolders: a folder that a run owns, before the run resumes in it.
 void remove_stale_temporaries(const std::string& dir);
-// The same for one output file's temporaries beside it (".<name>.tmp-<pid>").
+// The same for one output file's or folder's temporaries beside it (".<name>.tmp-<pid>", and
+// ".<name>.old-<pid>", a replaced folder that a killed write_folder_atomically set aside).
 void remove_stale_temporaries_of(const std::string& path);
 
 } // namespace undertow::io
