@@ -365,17 +365,12 @@ int run_whole(const RunArgs& a) {
   } catch (const InputError& e) {
     // say what a failed run leaves: a new folder with no finished stage is removed; finished
     // stages stay, named, for a rerun to reuse
-    std::error_code ec;
-    std::vector<std::string> kept;
-    if (fs::is_directory(o.folder, ec))
-      for (const auto& f : fs::recursive_directory_iterator(o.folder, ec))
-        if (f.is_regular_file() && f.path().parent_path().filename() != ".keys")
-          kept.push_back(fs::relative(f.path(), o.folder).string());
+    const auto kept = run::finished_stage_files(o.folder);
     if (kept.empty()) {
+      std::error_code ec;
       if (!existed) fs::remove_all(o.folder, ec);
       throw;
     }
-    std::sort(kept.begin(), kept.end());
     std::string list;
     for (const auto& k : kept)
       list += (list.empty() ? "" : ", ") + k;

@@ -8,7 +8,6 @@
 #include <cstdio>
 #include <filesystem>
 #include <fstream>
-#include <iterator>
 #include <mutex>
 #include <numbers>
 #include <sstream>
@@ -19,6 +18,7 @@
 #include "undertow/error.hpp"
 #include "undertow/io/atomic_file.hpp"
 #include "undertow/io/creation_time.hpp"
+#include "undertow/io/text_file.hpp"
 
 namespace undertow::plot {
 namespace {
@@ -77,16 +77,11 @@ void on_abort(PLCHAR_VECTOR msg) {
 
 constexpr double kPointsPerMm = 72 / 25.4;
 
-std::string read_all(const std::string& path) {
-  std::ifstream in(path, std::ios::binary);
-  return {std::istreambuf_iterator<char>(in), std::istreambuf_iterator<char>()};
-}
-
 // PLplot does not report the cairo drivers' write errors (a full disk): a file that lacks its
 // format's closing bytes is refused rather than committed. PNG ends with the IEND chunk (PNG
 // specification, ISO/IEC 15948, 11.2.5), PDF with %%EOF (ISO 32000-1, 7.5.5), SVG with </svg>.
 bool whole_file(const std::string& path, Format format) {
-  std::string s = read_all(path);
+  std::string s = io::read_file_bytes(path);
   if (format != Format::png)
     while (!s.empty() && (s.back() == '\n' || s.back() == '\r' || s.back() == ' '))
       s.pop_back();
@@ -109,7 +104,7 @@ bool whole_file(const std::string& path, Format format) {
 // cross-reference table's byte offsets still hold.
 void fix_pdf_date(const std::string& path) {
   if (!io::fixed_creation_time()) return;
-  std::string s = read_all(path);
+  std::string s = io::read_file_bytes(path);
   const std::string key = "/CreationDate (D:";
   const auto at = s.find(key);
   if (at == std::string::npos) return;

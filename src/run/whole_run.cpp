@@ -746,4 +746,15 @@ io::Table compare_runs(const std::vector<std::string>& folders) {
   return t;
 }
 
+std::vector<std::string> finished_stage_files(const std::string& folder) {
+  std::error_code ec;
+  std::vector<std::string> kept;
+  if (fs::is_directory(folder, ec))
+    for (const auto& f : fs::recursive_directory_iterator(folder, ec))
+      if (f.is_regular_file() && f.path().parent_path().filename() != ".keys")
+        kept.push_back(fs::relative(f.path(), folder).string());
+  std::sort(kept.begin(), kept.end());
+  return kept;
+}
+
 } // namespace undertow::run

@@ -300,17 +300,11 @@ PointOutcome run_point(const Plan& p, const Point& q, const PointRunOptions& o) 
     // retry and the message says so
     const fs::path partial = partial_of(p, q);
     std::error_code ec;
-    if (fs::is_directory(partial, ec)) {
-      bool finished_stage = false;
-      for (const auto& f : fs::recursive_directory_iterator(partial, ec))
-        if (f.is_regular_file() && f.path().parent_path().filename() != ".keys")
-          finished_stage = true;
-      if (finished_stage)
-        what += "; its finished stages are kept in points/" + partial.filename().string() +
-                " for the retry";
-      else
-        fs::remove_all(partial, ec);
-    }
+    if (!run::finished_stage_files(partial.string()).empty())
+      what += "; its finished stages are kept in points/" + partial.filename().string() +
+              " for the retry";
+    else
+      fs::remove_all(partial, ec);
     out.kind = PointOutcome::Kind::failed;
     out.message = what;
     record_failure(p, q, what, o.log);

@@ -41,6 +41,10 @@ struct WholeRunResult {
 
 WholeRunResult run_all(const scenario::Scenario& s, const WholeRunOptions& o);
 
+// The files of the stages finished in a whole run's folder (relative paths, sorted; the stage keys
+// in .keys/ left out): what a failed run keeps for a rerun and names. Empty for a missing folder.
+std::vector<std::string> finished_stage_files(const std::string& folder);
+
 // Model-vs-model: one row per run (labelled by its run name), differences against the first.
 // Refuses runs that do not share the measured catalog (by content), the Sun and the selection.
 io::Table compare_runs(const std::vector<std::string>& folders);
