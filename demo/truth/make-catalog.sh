@@ -1,7 +1,8 @@
 #!/usr/bin/env bash
 # Regenerates the demo's "measured" catalog, demo/kestrel-measured.csv, from the truth scenario
 # (orbits.toml, galaxy.toml) and the invented survey (survey.toml). The result is the same bit
-# for bit on any machine and thread count. Usage: make-catalog.sh <undertow executable> [output]
+# for bit for any thread count on any machine with AVX2, with the default build (not with
+# UNDERTOW_AVX512: docs/performance.md). Usage: make-catalog.sh <undertow executable> [output]
 set -euo pipefail
 undertow=$1
 here=$(cd "$(dirname "$0")" && pwd)

@@ -8,6 +8,7 @@
 #include <sstream>
 #include <vector>
 
+#include "undertow/detail/kernel.hpp"
 #include "undertow/dynamics/frequencies.hpp"
 #include "undertow/dynamics/profile.hpp"
 #include "undertow/dynamics/resonances.hpp"
@@ -458,7 +459,8 @@ int main(int argc, char** argv) {
   CLI::App app{"undertow: galaxy models, tracer orbits and the peculiar motions of young sources"};
   undertow::cli::RenamedOptions renamed;
   app.set_version_flag("--version", std::string("undertow ") + UNDERTOW_VERSION + " (" +
-                                        UNDERTOW_GIT_REVISION + ")");
+                                        UNDERTOW_GIT_REVISION + "), vector kernels " +
+                                        undertow::detail::vector_kernels());
   app.require_subcommand(1);
 
   TabulateArgs tab;

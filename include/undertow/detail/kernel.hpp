@@ -14,12 +14,17 @@
 #define UNDERTOW_INLINE inline
 #endif
 
-// A vectorised loop compiled three times (baseline x86-64, x86-64-v3 with AVX2, x86-64-v4 with
-// AVX-512); the widest the CPU supports is picked at load time, so one binary runs on any
-// x86-64 node and still uses wide vectors.
-#if defined(__x86_64__) && defined(__GNUC__) && !defined(__clang__)
+// A vectorised loop compiled for baseline x86-64 and x86-64-v3 (AVX2, FMA); the widest the CPU
+// supports is picked at load time, so one binary runs on any x86-64 node and still uses wide
+// vectors. An AVX-512 variant (x86-64-v4) only with the CMake option UNDERTOW_AVX512: it is
+// faster where the CPU has it, but its vector maths (libmvec's AVX-512 functions) rounds
+// differently in the last bits, so results would differ between AVX2 and AVX-512 nodes of one
+// cluster and from the committed demo data; by default every AVX2 machine gives the same bits.
+#if defined(__x86_64__) && defined(__GNUC__) && !defined(__clang__) && defined(UNDERTOW_AVX512)
 #define UNDERTOW_CLONES                                                                            \
   __attribute__((target_clones("default", "arch=x86-64-v3", "arch=x86-64-v4")))
+#elif defined(__x86_64__) && defined(__GNUC__) && !defined(__clang__)
+#define UNDERTOW_CLONES __attribute__((target_clones("default", "arch=x86-64-v3")))
 #else
 #define UNDERTOW_CLONES
 #endif
@@ -80,4 +85,20 @@ inline double finite(double v, const char* key) {
   return v;
 }
 
+} // namespace undertow::detail
+
+namespace undertow::detail {
+// The variant of the vectorised loops this machine runs: "x86-64-v4 (AVX-512)", "x86-64-v3
+// (AVX2)" or "x86-64 (SSE2)" (results are bit-identical between machines that run the same one).
+inline const char* vector_kernels() {
+#if defined(__x86_64__) && defined(__GNUC__) && !defined(__clang__)
+#if defined(UNDERTOW_AVX512)
+  if (__builtin_cpu_supports("x86-64-v4")) return "x86-64-v4 (AVX-512)";
+#endif
+  if (__builtin_cpu_supports("x86-64-v3")) return "x86-64-v3 (AVX2)";
+  return "x86-64 (SSE2)";
+#else
+  return "not multiversioned (compiler without target_clones)";
+#endif
+}
 } // namespace undertow::detail
