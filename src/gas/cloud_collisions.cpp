@@ -3,7 +3,9 @@
 #include <algorithm>
 #include <cmath>
 #include <cstdint>
+#include <stdexcept>
 #include <tuple>
+#include <utility>
 #include <vector>
 
 #include <omp.h>
@@ -54,7 +56,8 @@ bool contact(const orbit::PhaseSpace& p, std::size_t i, std::size_t j, double d2
 // Working arrays kept from pass to pass (one set per calling thread): a run calls the search
 // every step, and fresh arrays of tens of megabytes would cost page faults and zeroing each time.
 struct Scratch {
-  std::vector<std::size_t> fast, start, fill, order, col;
+  std::vector<std::size_t> fast;
+  std::vector<std::uint32_t> start, order, col;
   std::vector<double> px, py, pz, s, speed, sample, cx, cy, cz, cs;
   std::vector<std::uint32_t> ring;
   std::vector<char> done;
@@ -64,6 +67,8 @@ constexpr std::size_t kBlock = 512;
 struct Cloud0 {
   const double *x, *y, *z, *vx, *vy, *vz;
 };
+// col[i] of a cloud that takes no part, and of a fast one
+constexpr std::uint32_t kNone = ~std::uint32_t(0), kFast = kNone - 1;
 struct Cloud1 {
   double *px, *py, *pz, *w, *speed;
 };
@@ -92,6 +97,7 @@ CollisionPass collide_pairs(orbit::PhaseSpace& p, const CloudCollisions& c, doub
   const std::size_t n = std::min(count, p.size());
   CollisionPass out;
   if (n < 2 || !(dt_myr > 0)) return out;
+  if (n >= kFast) throw std::length_error("the collision search takes fewer than 2^32 - 2 clouds");
   const double dt = units::myr_to_internal(dt_myr); // kpc per (km/s): distance = v dt
   const double a = c.radius_kpc, d2 = 4 * a * a;
 
@@ -173,35 +179,65 @@ CollisionPass collide_pairs(orbit::PhaseSpace& p, const CloudCollisions& c, doub
     if (h >= h_min || tries == 8) break;
     h = h_min;
   }
+  // Column numbers and counts are 32-bit (half the memory traffic of the sort and the sweep):
+  // widen the columns until they fit; the search is exact whatever the columns.
+  while (double(long((x1 - x0) / h) + 1) * double(long((y1 - y0) / h) + 1) >= double(kFast))
+    h *= 2;
   const long nx = long((x1 - x0) / h) + 1, ny = long((y1 - y0) / h) + 1;
   const long ncol = nx * ny;
   // Counting sort of the slow clouds into columns (in index order within a column); the fast
-  // ones (and those taking no part, as -1) listed apart.
-  constexpr std::size_t kNone = ~std::size_t(0);
-  auto &col = w.col, &fast = w.fast, &start = w.start, &order = w.order;
+  // ones listed apart (in index order), those taking no part left out.
+  auto &col = w.col, &start = w.start, &order = w.order;
+  auto& fast = w.fast;
   col.resize(n);
 #pragma omp parallel for schedule(static)
   for (std::size_t i = 0; i < n; ++i)
-    col[i] = s[i] >= 0 && 2 * s[i] <= h
-                 ? std::size_t(long((px[i] - x0) / h) * ny + long((py[i] - y0) / h))
-                 : kNone;
+    col[i] = !(s[i] >= 0)   ? kNone
+             : 2 * s[i] > h ? kFast
+                            : std::uint32_t(long((px[i] - x0) / h) * ny + long((py[i] - y0) / h));
+  // In parallel, deterministically: each thread owns a range of columns, counts and places the
+  // clouds of its range in index order (so every thread reads all of col), and start[c + 1]
+  // serves as column c's fill pointer, which leaves it at the column's end: start[c] is then
+  // where column c begins.
   fast.clear();
-  start.assign(std::size_t(ncol) + 1, 0);
-  for (std::size_t i = 0; i < n; ++i)
-    if (col[i] != kNone)
-      ++start[col[i] + 1];
-    else if (s[i] >= 0)
-      fast.push_back(i);
-  for (std::size_t c2 = 1; c2 < start.size(); ++c2)
-    start[c2] += start[c2 - 1];
-  const std::size_t ns = start.back();
-  order.resize(ns);
+  start.resize(std::size_t(ncol) + 1);
+  start[0] = 0;
+  std::vector<std::size_t> before; // slow clouds in the ranges of the threads before
+#pragma omp parallel
   {
-    auto& fill = w.fill;
-    fill.assign(start.begin(), start.end() - 1);
-    for (std::size_t i = 0; i < n; ++i)
-      if (col[i] != kNone) order[fill[col[i]]++] = i;
+    const std::size_t nt = std::size_t(omp_get_num_threads()),
+                      t = std::size_t(omp_get_thread_num());
+    const std::uint32_t lo = std::uint32_t(std::size_t(ncol) * t / nt),
+                        hi = std::uint32_t(std::size_t(ncol) * (t + 1) / nt);
+#pragma omp single
+    before.assign(nt + 1, 0);
+    std::uint32_t* __restrict fp = start.data() + 1;
+    std::fill(fp + lo, fp + hi, 0u);
+    for (std::size_t i = 0; i < n; ++i) {
+      const std::uint32_t c2 = col[i];
+      if (c2 >= lo && c2 < hi) ++fp[c2];
+      if (t == 0 && c2 == kFast) fast.push_back(i);
+    }
+    std::uint32_t sum = 0;
+    for (std::uint32_t c2 = lo; c2 < hi; ++c2)
+      sum += std::exchange(fp[c2], sum);
+    before[t + 1] = sum;
+#pragma omp barrier
+#pragma omp single
+    {
+      for (std::size_t k = 1; k <= nt; ++k)
+        before[k] += before[k - 1];
+      order.resize(before[nt]);
+    }
+    const std::uint32_t off = std::uint32_t(before[t]);
+    for (std::uint32_t c2 = lo; c2 < hi; ++c2)
+      fp[c2] += off;
+    for (std::size_t i = 0; i < n; ++i) {
+      const std::uint32_t c2 = col[i];
+      if (c2 >= lo && c2 < hi) order[fp[c2]++] = std::uint32_t(i);
+    }
   }
+  const std::size_t ns = start.back();
   // The slow clouds' mid-points and radii in column order, so the sweep reads memory in order.
   auto &cx = w.cx, &cy = w.cy, &cz = w.cz, &cs = w.cs;
   cx.resize(ns), cy.resize(ns), cz.resize(ns), cs.resize(ns);
@@ -237,7 +273,7 @@ CollisionPass collide_pairs(orbit::PhaseSpace& p, const CloudCollisions& c, doub
     const double* __restrict Y = cy.data();
     const double* __restrict Z = cz.data();
     const double* __restrict S = cs.data();
-    const std::size_t* __restrict B = start.data();
+    const std::uint32_t* __restrict B = start.data();
     const auto scan = [&](std::size_t e, std::size_t f0, std::size_t f1) {
       const double xe = X[e], ye = Y[e], ze = Z[e], se = S[e];
       for (std::size_t f = f0; f < f1; ++f) {
@@ -245,18 +281,20 @@ CollisionPass collide_pairs(orbit::PhaseSpace& p, const CloudCollisions& c, doub
         if (dx * dx + dy * dy + dz * dz <= reach * reach) exact(order[e], order[f]);
       }
     };
-#pragma omp for schedule(dynamic, 1024)
-    for (long c2 = 0; c2 < ncol; ++c2) {
-      const long ix = c2 / ny, iy = c2 % ny;
-      const std::size_t end = B[std::size_t(c2) + 1];
-      const std::size_t next = iy + 1 < ny ? B[std::size_t(c2) + 2] : end;
+#pragma omp for schedule(dynamic, 1)
+    for (long ix = 0; ix < nx; ++ix) { // by rows of columns: no division per column
       const bool right = ix + 1 < nx;
-      const std::size_t r0 = right ? B[std::size_t((ix + 1) * ny + std::max(iy - 1, 0L))] : 0,
-                        r1 = right ? B[std::size_t((ix + 1) * ny + std::min(iy + 1, ny - 1)) + 1]
-                                   : 0;
-      for (std::size_t e = B[std::size_t(c2)]; e < end; ++e) {
-        scan(e, e + 1, next);
-        scan(e, r0, r1);
+      for (long iy = 0; iy < ny; ++iy) {
+        const std::size_t c2 = std::size_t(ix * ny + iy), end = B[c2 + 1];
+        if (B[c2] == end) continue;
+        const std::size_t next = iy + 1 < ny ? B[c2 + 2] : end;
+        const std::size_t r0 = right ? B[std::size_t((ix + 1) * ny + std::max(iy - 1, 0L))] : 0,
+                          r1 = right ? B[std::size_t((ix + 1) * ny + std::min(iy + 1, ny - 1)) + 1]
+                                     : 0;
+        for (std::size_t e = B[c2]; e < end; ++e) {
+          scan(e, e + 1, next);
+          scan(e, r0, r1);
+        }
       }
     }
     // Each fast cloud with every slow cloud within its reach, and with the later fast ones.
