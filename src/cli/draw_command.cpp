@@ -26,7 +26,11 @@ void draw_after(const FigureArgs& a, const std::string& where) {
     const auto files = plot::draw_figures(plot::detect_source(where), where, out, {}, o);
     std::cout << "figures: " << files.size() << " files in " << out << "/\n";
   } catch (const InputError& e) {
-    throw InputError(std::string(e.what()) + " (the other outputs in " + where +
+    // where: a run's or a fit's folder, or a gathered sweep's HDF5 file among its tables
+    const std::filesystem::path w(where);
+    const std::string place =
+        std::filesystem::is_directory(w) || !w.has_parent_path() ? where : w.parent_path().string();
+    throw InputError(std::string(e.what()) + " (the other outputs in " + place +
                      " are complete and kept; redraw with 'undertow draw')");
   }
 }

@@ -18,6 +18,7 @@
 #include "undertow/io/atomic_file.hpp"
 #include "undertow/io/snapshot.hpp"
 #include "undertow/io/staged_folder.hpp"
+#include "undertow/io/table_fits.hpp"
 #include "undertow/io/table_hdf5.hpp"
 #include "undertow/observe/observation_file.hpp"
 #include "undertow/observe/prepare.hpp"
@@ -107,7 +108,22 @@ int run_integrate(const IntegrateArgs& a) {
       a.output.empty() ? std::filesystem::path(a.scenario).stem().string() + ".h5" : a.output;
   o.restart = a.from_scratch;
   undertow::cli::prepare_long_run(o, a.threads);
-  const auto r = run::run_ensemble(sc, o);
+  run::EnsembleResult r;
+  try {
+    r = run::run_ensemble(sc, o);
+  } catch (const InputError& e) {
+    // whole parts stay for the rerun to resume from (docs/snapshot-format.md): say so
+    std::size_t parts = 0;
+    std::error_code ec;
+    for (const auto& f : std::filesystem::directory_iterator(o.output + ".parts", ec)) {
+      const std::string name = f.path().filename().string();
+      parts += name.starts_with("part_") && name.ends_with(".h5");
+    }
+    if (parts == 0) throw;
+    throw InputError(std::string(e.what()) + "; the " + std::to_string(parts) +
+                     (parts == 1 ? " part" : " parts") + " finished before it are kept in " +
+                     o.output + ".parts/ for the same command to resume from");
+  }
   if (!r.complete) {
     std::cerr << "undertow: interrupted; snapshots up to t = " << r.reached_myr
               << " Myr are kept in " << o.output
@@ -428,6 +444,7 @@ int run_arm_flow(const ArmFlowArgs& a) {
   const std::string summary = gas::describe_shock(problem, flow);
   std::cerr << summary;
   if (!flow.converged) return 1;
+  std::optional<io::Table> crossing; // the clouds' crossing of the arm, when given clouds
   if (snap) {
     run::CloudCrossing c;
     c.time_myr = snap->time_myr;
@@ -436,22 +453,29 @@ int run_arm_flow(const ArmFlowArgs& a) {
     c.used = used;
     c.steady = run::steady_bins(problem, flow, cloud_side.edges);
     std::cerr << run::describe_crossing(problem, c);
-    const auto ct = run::crossing_table(problem, c);
-    if (a.crossing_output.empty()) {
-      io::write_table(std::cerr, ct, io::TableFormat::markdown);
-    } else {
-      io::write_table_file(a.crossing_output, ct, io::table_format_from_name(a.format));
-      std::cerr << "wrote " << a.crossing_output << "\n";
-    }
+    crossing = run::crossing_table(problem, c);
+    if (a.crossing_output.empty()) io::write_table(std::cerr, *crossing, io::TableFormat::markdown);
   }
   const auto table = gas::shock_profile_table(problem, flow);
   const auto fmt = io::table_format_from_name(a.format);
-  if (a.output.empty()) {
+  // The files given appear together or not at all; a FITS table is named after its file.
+  const auto staged = [&](const std::string& target, const io::Table& t) {
+    return io::StagedWrite{target, [&, target](const std::string& tmp) {
+                             if (fmt == io::TableFormat::fits)
+                               io::write_table_fits(tmp, t, std::filesystem::path(target).stem());
+                             else
+                               io::write_table_file(tmp, t, fmt);
+                           }};
+  };
+  std::vector<io::StagedWrite> files;
+  if (crossing && !a.crossing_output.empty()) files.push_back(staged(a.crossing_output, *crossing));
+  if (!a.output.empty()) files.push_back(staged(a.output, table));
+  io::write_files_atomically(files);
+  if (crossing && !a.crossing_output.empty()) std::cerr << "wrote " << a.crossing_output << "\n";
+  if (a.output.empty())
     io::write_table(std::cout, table, fmt);
-  } else {
-    io::write_table_file(a.output, table, fmt);
+  else
     std::cout << "wrote " << a.output << " (" << table.rows.size() << " points across the arm)\n";
-  }
   return 0;
 }
 
@@ -693,14 +717,18 @@ int main(int argc, char** argv) {
       const auto table = undertow::run::compare_runs(versus);
       undertow::io::write_table(std::cout, table, undertow::io::TableFormat::markdown);
       if (!versus_out.empty()) {
-        std::filesystem::create_directories(versus_out);
-        const std::string stem = (std::filesystem::path(versus_out) / "versus").string();
-        auto files = undertow::io::write_table_files(stem, table);
-        undertow::io::h5::File::write_atomically(
-            stem + ".h5", [&](const undertow::io::h5::File& f) {
-              undertow::io::write_table_group(f, "versus", table);
+        // the six files join the folder together or none does
+        const auto files =
+            undertow::io::write_files_together(versus_out, [&](const std::string& tmp) {
+              const std::string stem = (std::filesystem::path(tmp) / "versus").string();
+              auto written = undertow::io::write_table_files(stem, table);
+              undertow::io::h5::File::write_atomically(
+                  stem + ".h5", [&](const undertow::io::h5::File& f) {
+                    undertow::io::write_table_group(f, "versus", table);
+                  });
+              written.push_back(stem + ".h5");
+              return written;
             });
-        files.push_back(stem + ".h5");
         std::cout << "wrote";
         for (const auto& f : files)
           std::cout << " " << f;

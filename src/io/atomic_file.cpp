@@ -4,6 +4,7 @@
 #include <cstdio>
 #include <cstring>
 #include <filesystem>
+#include <memory>
 #include <unistd.h>
 #include <vector>
 
@@ -64,6 +65,23 @@ void AtomicFile::commit() {
   const bool ok = bool(out_);
   out_.close();
   path_.commit(ok && !out_.fail());
+}
+
+void write_files_atomically(const std::vector<StagedWrite>& files) {
+  std::vector<std::unique_ptr<AtomicPath>> staged; // each removes its temporary unless committed
+  for (const auto& [target, write] : files) {
+    const std::string& tmp = staged.emplace_back(std::make_unique<AtomicPath>(target))->temporary();
+    try {
+      write(tmp);
+    } catch (const InputError& e) {
+      std::string m = e.what();
+      for (auto at = m.find(tmp); at != std::string::npos; at = m.find(tmp, at + target.size()))
+        m.replace(at, tmp.size(), target);
+      throw InputError(m);
+    }
+  }
+  for (auto& p : staged)
+    p->commit();
 }
 
 void check_output_file(const std::string& path) {

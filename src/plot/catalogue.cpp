@@ -3,6 +3,7 @@
 #include <filesystem>
 
 #include "undertow/error.hpp"
+#include "undertow/io/staged_folder.hpp"
 
 namespace undertow::plot {
 
@@ -88,22 +89,24 @@ std::vector<std::string> draw_figures(Source source, const std::string& dir,
   std::vector<std::function<void(Figure&)>> drawings;
   for (const FigureKind* k : chosen)
     drawings.push_back(k->load(dir, options));
-  std::filesystem::create_directories(out_dir);
-  std::vector<std::string> written;
-  for (std::size_t i = 0; i < chosen.size(); ++i) {
-    Page page = chosen[i]->page;
-    if (options.width_mm > 0) page.width_mm = options.width_mm;
-    if (options.height_mm > 0) page.height_mm = options.height_mm;
-    page.dpi = options.dpi;
-    for (Format f : options.formats) {
-      const std::string path = out_dir + "/fig-" + chosen[i]->name + "." + extension(f);
-      Figure fig(path, f, page);
-      drawings[i](fig);
-      fig.commit();
-      written.push_back(path);
+  // The figures join the folder together or none does.
+  return io::write_files_together(out_dir, [&](const std::string& tmp) {
+    std::vector<std::string> written;
+    for (std::size_t i = 0; i < chosen.size(); ++i) {
+      Page page = chosen[i]->page;
+      if (options.width_mm > 0) page.width_mm = options.width_mm;
+      if (options.height_mm > 0) page.height_mm = options.height_mm;
+      page.dpi = options.dpi;
+      for (Format f : options.formats) {
+        const std::string path = tmp + "/fig-" + chosen[i]->name + "." + extension(f);
+        Figure fig(path, f, page);
+        drawings[i](fig);
+        fig.commit();
+        written.push_back(path);
+      }
     }
-  }
-  return written;
+    return written;
+  });
 }
 
 } // namespace undertow::plot

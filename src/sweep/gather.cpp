@@ -8,6 +8,7 @@
 #include <optional>
 
 #include "undertow/io/hdf5.hpp"
+#include "undertow/io/staged_folder.hpp"
 #include "undertow/io/table.hpp"
 #include "undertow/io/table_hdf5.hpp"
 #include "undertow/io/toml_writer.hpp"
@@ -336,77 +337,79 @@ GatherReport gather(const Plan& p, const GatherOptions& o) {
   } else if (!rep.posterior_refused.empty()) {
     t.notes.push_back("no posterior written: " + rep.posterior_refused);
   }
-  fs::create_directories(folder); // here: a refused posterior leaves nothing behind
-  rep.files = io::write_table_files(prefix, t);
-  if (post) {
-    for (const auto& f : io::write_table_files(prefix + "-posterior", post_table))
-      rep.files.push_back(f);
-    if (!marg_table.rows.empty())
-      for (const auto& f : io::write_table_files(prefix + "-marginals", marg_table))
-        rep.files.push_back(f);
-  }
-
-  // HDF5: every point in plan order, with its status; NaN where a point has no result.
-  const std::string h5 = prefix + ".h5";
-  io::h5::File::write_atomically(h5, [&](const io::h5::File& f) {
-    namespace h = io::h5;
-    h::set_attr(f, f.id(), "undertow_format", std::string("sweep-results"));
-    h::set_attr(f, f.id(), "name", p.name);
-    h::set_attr(f, f.id(), "design", p.design);
-    h::set_attr(f, f.id(), "points", std::int64_t(p.points.size()));
-    h::set_attr(f, f.id(), "complete", std::int64_t(rep.complete));
-    h::set_attr(f, f.id(), "base_scenario", p.base);
-    if (has_ref) h::set_attr(f, f.id(), "reference_scenario", p.reference);
-    std::vector<std::uint64_t> num;
-    std::vector<std::string> ids, states, details;
-    for (std::size_t i = 0; i < p.points.size(); ++i) {
-      num.push_back(i);
-      ids.push_back(p.points[i].id);
-      states.push_back(state_name(status[i].state));
-      details.push_back(status[i].detail);
-    }
-    h::write_u64(f, f.id(), "number", num, "point number in the plan");
-    h::write_strings(f, f.id(), "id", ids, "point id (digest of its scenario)");
-    h::write_strings(f, f.id(), "status", states, "complete, missing, partial, failed, corrupt");
-    h::write_strings(f, f.id(), "detail", details, "error of a failed point");
-    const auto pg = h::create_group(f, "parameters");
-    for (std::size_t j = 0; j < p.parameters.size(); ++j) {
-      const std::string& k = p.parameters[j];
-      const auto steps = parse_key_path(k);
-      if (std::find(numeric.begin(), numeric.end(), j) != numeric.end()) {
-        std::vector<double> v;
-        for (const auto& q : p.points)
-          v.push_back(parameter_value(q, j));
-        h::write_doubles(f, pg.id(), k, v, 1, io::unit_of_name(steps.back().key),
-                         "swept value (NaN for the reference)");
-      } else {
-        std::vector<std::string> v;
-        for (const auto& q : p.points)
-          v.push_back(q.reference ? "" : io::toml_value_text(*q.values.get(j)));
-        h::write_strings(f, pg.id(), k, v, "swept value as TOML text");
-      }
-    }
-    if (p.replicates > 1) {
-      std::vector<std::uint64_t> r;
-      for (const auto& q : p.points)
-        r.push_back(q.replicate);
-      h::write_u64(f, pg.id(), "replicate", r, "replicate (seeds derived from it)");
-    }
+  // All the tables join the folder together or none does (a full disk, a refused posterior).
+  rep.files = io::write_files_together(folder, [&](const std::string& tmp) {
+    const std::string stem = (fs::path(tmp) / (p.name + "-results")).string();
+    std::vector<std::string> files = io::write_table_files(stem, t);
     if (post) {
-      io::write_table_group(f, "posterior", post_table);
-      if (!marg_table.rows.empty()) io::write_table_group(f, "marginals", marg_table);
+      for (const auto& f : io::write_table_files(stem + "-posterior", post_table))
+        files.push_back(f);
+      if (!marg_table.rows.empty())
+        for (const auto& f : io::write_table_files(stem + "-marginals", marg_table))
+          files.push_back(f);
     }
-    const auto sg = h::create_group(f, "statistics");
-    for (const auto* s : columns) {
-      std::vector<double> v;
-      for (std::size_t i = 0; i < p.points.size(); ++i)
-        v.push_back(status[i].state == PointStatus::State::complete
-                        ? s->value(status[i].result, ref_log_l)
-                        : NAN);
-      h::write_doubles(f, sg.id(), s->name, v, 1, s->unit, s->plain);
-    }
+    // HDF5: every point in plan order, with its status; NaN where a point has no result.
+    files.push_back(stem + ".h5");
+    io::h5::File::write_atomically(files.back(), [&](const io::h5::File& f) {
+      namespace h = io::h5;
+      h::set_attr(f, f.id(), "undertow_format", std::string("sweep-results"));
+      h::set_attr(f, f.id(), "name", p.name);
+      h::set_attr(f, f.id(), "design", p.design);
+      h::set_attr(f, f.id(), "points", std::int64_t(p.points.size()));
+      h::set_attr(f, f.id(), "complete", std::int64_t(rep.complete));
+      h::set_attr(f, f.id(), "base_scenario", p.base);
+      if (has_ref) h::set_attr(f, f.id(), "reference_scenario", p.reference);
+      std::vector<std::uint64_t> num;
+      std::vector<std::string> ids, states, details;
+      for (std::size_t i = 0; i < p.points.size(); ++i) {
+        num.push_back(i);
+        ids.push_back(p.points[i].id);
+        states.push_back(state_name(status[i].state));
+        details.push_back(status[i].detail);
+      }
+      h::write_u64(f, f.id(), "number", num, "point number in the plan");
+      h::write_strings(f, f.id(), "id", ids, "point id (digest of its scenario)");
+      h::write_strings(f, f.id(), "status", states, "complete, missing, partial, failed, corrupt");
+      h::write_strings(f, f.id(), "detail", details, "error of a failed point");
+      const auto pg = h::create_group(f, "parameters");
+      for (std::size_t j = 0; j < p.parameters.size(); ++j) {
+        const std::string& k = p.parameters[j];
+        const auto steps = parse_key_path(k);
+        if (std::find(numeric.begin(), numeric.end(), j) != numeric.end()) {
+          std::vector<double> v;
+          for (const auto& q : p.points)
+            v.push_back(parameter_value(q, j));
+          h::write_doubles(f, pg.id(), k, v, 1, io::unit_of_name(steps.back().key),
+                           "swept value (NaN for the reference)");
+        } else {
+          std::vector<std::string> v;
+          for (const auto& q : p.points)
+            v.push_back(q.reference ? "" : io::toml_value_text(*q.values.get(j)));
+          h::write_strings(f, pg.id(), k, v, "swept value as TOML text");
+        }
+      }
+      if (p.replicates > 1) {
+        std::vector<std::uint64_t> r;
+        for (const auto& q : p.points)
+          r.push_back(q.replicate);
+        h::write_u64(f, pg.id(), "replicate", r, "replicate (seeds derived from it)");
+      }
+      if (post) {
+        io::write_table_group(f, "posterior", post_table);
+        if (!marg_table.rows.empty()) io::write_table_group(f, "marginals", marg_table);
+      }
+      const auto sg = h::create_group(f, "statistics");
+      for (const auto* s : columns) {
+        std::vector<double> v;
+        for (std::size_t i = 0; i < p.points.size(); ++i)
+          v.push_back(status[i].state == PointStatus::State::complete
+                          ? s->value(status[i].result, ref_log_l)
+                          : NAN);
+        h::write_doubles(f, sg.id(), s->name, v, 1, s->unit, s->plain);
+      }
+    });
+    return files;
   });
-  rep.files.push_back(h5);
   return rep;
 }
 

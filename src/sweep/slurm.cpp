@@ -3,6 +3,7 @@
 #include <array>
 #include <cstdio>
 #include <filesystem>
+#include <iostream>
 #include <sys/wait.h>
 
 #include "undertow/error.hpp"
@@ -63,6 +64,7 @@ SlurmScript write_slurm_script(const Plan& p, const SlurmOptions& o) {
                     "plan");
   const fs::path logs = folder / "logs";
   std::error_code ec;
+  const bool new_logs = !fs::exists(logs, ec);
   fs::create_directories(logs, ec);
   if (ec) throw InputError(SourcePlace{logs.string(), 0, 0, {}}, "cannot create: " + ec.message());
   const std::size_t per_task = (p.points.size() + s.tasks - 1) / s.tasks;
@@ -95,8 +97,15 @@ SlurmScript write_slurm_script(const Plan& p, const SlurmOptions& o) {
   t += "exec " + shell_quote(o.executable) + " sweep run " + shell_quote(folder.string()) + "\n";
   s.path = (folder / "slurm-array.sh").string();
   s.text = t;
-  io::write_text_file(s.path, t);
+  try { // a script that cannot be written leaves no empty logs folder of ours behind
+    io::write_text_file(s.path, t);
+  } catch (...) {
+    if (new_logs) fs::remove(logs, ec);
+    throw;
+  }
   fs::permissions(s.path, fs::perms::owner_exec | fs::perms::group_exec, fs::perm_options::add, ec);
+  if (ec) // sbatch runs it through bash anyway; say so rather than fail
+    std::cerr << "warning: " << s.path << ": cannot make it executable: " << ec.message() << "\n";
   return s;
 }
 

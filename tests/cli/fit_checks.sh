@@ -15,28 +15,7 @@ cmp demo-catalog.csv "$src/demo/kinematic-catalog.csv" ||
   fail "demo/kinematic-catalog.csv is not what demo/kinematic-truth.toml gives (regenerate it)"
 
 # 2. A small survey, simulated and fitted.
-cat > truth.toml <<'TOML'
-sources = 60
-seed = 5
-[rotation]
-form = "flat"
-[volume]
-distance_min_kpc = 1.0
-distance_max_kpc = 10.0
-[errors]
-parallax_err_mas = 0.02
-pm_err_masyr = 0.05
-vlsr_err_kms = 5.0
-[parameters]
-r0_kpc = 8.2
-theta0_kms = 235
-u_sun_kms = 11.1
-v_sun_kms = 12.24
-w_sun_kms = 7.25
-mean_u_kms = 2
-mean_v_kms = -6
-dispersion_kms = 6
-TOML
+cp "$src/tests/cli/tiny-survey.toml" truth.toml
 "$undertow" mock-kinematics truth.toml -o survey.csv | grep -q "60 sources" || fail "mock-kinematics"
 cat > fit.toml <<'TOML'
 catalog = "survey.csv"
@@ -113,28 +92,7 @@ grep -q "from the kinematic fit out/fit.h5 (posterior median" res1/residuals-sum
 grep -q "marginalised over" res2/residuals-summary.md || fail "marginalisation not named"
 
 # 3b. A mock observation whose Sun comes from the fit: R0 and the Sun's total velocity as fitted.
-cat > tiny.toml <<TOML
-[run]
-name = "tiny"
-seed = 3
-[galaxy]
-model_file = "$src/potentials/kestrel-axisymmetric.toml"
-[tracers]
-source = "disk"
-count = 3000
-scale_length_kpc = 3.0
-r_min_kpc = 4.0
-r_max_kpc = 14.0
-scale_height_kpc = 0.05
-sigma_r_kms = 6.0
-sigma_z_kms = 3.0
-[integration]
-method = "leapfrog"
-end_myr = 10.0
-step_myr = 0.5
-[output]
-every_myr = 10.0
-TOML
+sed 's|^model_file = "../..|model_file = "'"$src"'|' "$src/tests/cli/tiny-stars.toml" > tiny.toml
 "$undertow" integrate tiny.toml -o tiny.h5 > /dev/null
 printf 'seed = 2\n[sun]\nfrom_fit = "out/fit.h5"\n[selection]\ndistance_max_kpc = 6\n[errors]\nkind = "fixed"\n' > obs-fit.toml
 "$undertow" observe tiny.h5 obs-fit.toml -o obs-fit.csv > obs-fit.log || fail "observe with the Sun from a fit"

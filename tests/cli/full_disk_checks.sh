@@ -11,12 +11,10 @@ W=$3
 if mountpoint -q "$W/disk" 2>/dev/null; then umount "$W/disk"; fi
 rm -rf "$W"
 mkdir -p "$W/disk"
+W=$(realpath "$W")
 cd "$W"
 export SOURCE_DATE_EPOCH=1800000000 # identical bytes from run to run (docs/snapshot-format.md)
-fail() { echo "FAIL: $*" >&2; exit 1; }
-debris() { find "$1" \( -name '.*.tmp-*' -o -name '.*.old-*' \) -print; }
-mount -t tmpfs -o size=256m tmpfs disk || fail "cannot mount a tmpfs to fill"
-trap 'umount "$W/disk" 2>/dev/null || true' EXIT
+source "$SRC/tests/cli/full_disk_lib.sh"
 room() { mount -o remount,size="$1" disk; }
 
 # Sizes (KiB) at which the writes of an uninterrupted run in FOLDER fail in turn: for each file in
@@ -37,7 +35,6 @@ failed_cleanly() { # what, rc, stderr file, folder
   [ "$(grep -c '^undertow: ' "$3")" = 1 ] || { cat "$3"; fail "$1: not one error line"; }
   [ -z "$(debris "$4")" ] || { debris "$4"; fail "$1: temporaries left behind"; }
 }
-used_kib() { df -k --output=used disk | tail -n 1 | tr -d ' '; }
 # Runs "$@" again and again in a disk given more room each time (the cuts, then 256 MiB): each time
 # it must fail cleanly, until it finishes. The rerun resumes from the stages finished before, so
 # the failures move on from one write to the next. Prints the files whose writes failed.

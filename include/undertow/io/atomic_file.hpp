@@ -2,7 +2,9 @@
 // Output files appear whole or not at all: written to a temporary name beside the target and
 // renamed into place on commit(); a writer destroyed without commit() removes its temporary.
 #include <fstream>
+#include <functional>
 #include <string>
+#include <vector>
 
 namespace undertow::io {
 
@@ -51,6 +53,15 @@ private:
   AtomicPath path_;
   std::ofstream out_;
 };
+
+// Output files in different places that appear all together or not at all: each writer writes
+// its file at the path it is given (a temporary beside its target), and only when every one is
+// written are they renamed into place; an error names the target, not the temporary.
+struct StagedWrite {
+  std::string target;
+  std::function<void(const std::string& temporary)> write;
+};
+void write_files_atomically(const std::vector<StagedWrite>& files);
 
 // Refuses (InputError, one line) an output file path that cannot be written: a folder, a parent
 // that is missing, a file or unwritable. Call it before any work, not after hours of it.
