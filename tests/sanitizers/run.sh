@@ -18,4 +18,4 @@ export UBSAN_OPTIONS=print_stacktrace=1:halt_on_error=1
 export LSAN_OPTIONS=suppressions=$here/tests/sanitizers/lsan.supp
 export OMP_WAIT_POLICY=PASSIVE
 ctest --test-dir "$build" --output-on-failure -j 2 \
-  -E "^(fit.injection|arms.injection|demo.checks|sweep.local|sweep.slurm|cli.kill_checks|cli.full_disk_checks)$|^Injection and recovery: other realisations" "$@"
+  -E "^(fit.injection|arms.injection|demo.checks|sweep.local|sweep.slurm|cli.kill_checks|cli.full_disk_checks|cli.full_disk_commands)$|^Injection and recovery: other realisations" "$@"
