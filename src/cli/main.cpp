@@ -328,6 +328,9 @@ struct ObserveArgs {
 
 int run_observe(const ObserveArgs& a) {
   using namespace undertow;
+  const std::string out =
+      a.output.empty() ? std::filesystem::path(a.snapshot).stem().string() + "-mock.csv" : a.output;
+  io::check_output_file(out); // before any work
   const io::SnapshotReader rd(a.snapshot);
   const auto model = scenario::model_of(rd.provenance(), a.snapshot);
   const auto spec = observe::load_observation_file(a.observation, model);
@@ -338,8 +341,6 @@ int run_observe(const ObserveArgs& a) {
                      "no tracer passes the selection (" + std::to_string(mock.candidates) +
                          " inside the volume, " + std::to_string(mock.rejected_snr) +
                          " below the parallax signal-to-noise limit); nothing written");
-  const std::string out =
-      a.output.empty() ? std::filesystem::path(a.snapshot).stem().string() + "-mock.csv" : a.output;
   residuals::write_catalog(out, mock.catalog);
   std::cout << "wrote " << out << ": " << mock.catalog.sources.size()
             << " sources observed at t = " << prep.time_myr << " Myr (" << mock.candidates
@@ -422,6 +423,8 @@ struct ArmFlowArgs {
 
 int run_arm_flow(const ArmFlowArgs& a) {
   using namespace undertow;
+  for (const auto& out : {a.output, a.crossing_output}) // before any work
+    if (!out.empty()) io::check_output_file(out);
   const potential::Model model = potential::load_model_file(a.model_path);
   auto problem =
       gas::shock_problem(model, static_cast<std::size_t>(a.pattern - 1), a.radius, a.sound_speed);

@@ -5,7 +5,7 @@
 #include "undertow/error.hpp"
 #include "undertow/io/snapshot.hpp"
 #include "undertow/io/toml_table.hpp"
-#include "undertow/potential/model_file.hpp"
+#include "undertow/scenario/provenance_model.hpp"
 #include "undertow/sky/solar_frame.hpp"
 
 namespace undertow::plot {
@@ -15,11 +15,13 @@ RunModel read_run_model(const std::string& dir, const std::string& figure) {
   if (!std::filesystem::is_regular_file(orbits))
     throw InputError(orbits + ": no such file (figure '" + figure + "' needs the model in it)");
   const io::SnapshotReader reader(orbits);
-  const auto prov = reader.provenance();
-  if (prov.model_text.empty())
-    throw InputError(orbits + ": /model has no model_file text (figure '" + figure + "' needs it)");
   RunModel r;
-  r.model = potential::parse_model_text(prov.model_text, orbits + ":/model");
+  // the model file's text, or the recorded scenario's inline [galaxy] (a sweep point's)
+  try {
+    r.model = scenario::model_of(reader.provenance(), orbits);
+  } catch (const InputError& e) {
+    throw InputError(std::string(e.what()) + " (figure '" + figure + "' needs the model)");
+  }
   const auto times = reader.times_myr();
   r.time_myr = times.empty() ? 0 : times.back();
   r.r0_kpc = sky::SolarFrame{}.r0_kpc;

@@ -23,4 +23,8 @@ if "$undertow" arm-flow "$model" --pattern 2 -o bad.csv 2> err.txt; then fail "p
 [ "$(wc -l < err.txt)" = 1 ] || fail "not one line: $(cat err.txt)"
 grep -q "no pattern number 2" err.txt || fail "error does not name the pattern: $(cat err.txt)"
 [ ! -e bad.csv ] || fail "a table was written for a bad pattern"
+# An output path through a missing folder: refused before the flow is solved, one line.
+if "$undertow" arm-flow "$model" --radius 8 -o no-such-folder/flow.csv 2> err.txt; then fail "accepted"; fi
+[ "$(wc -l < err.txt)" = 1 ] && grep -q "does not exist" err.txt || fail "unclear: $(cat err.txt)"
+grep -q "shock at" err.txt && fail "the flow was solved before the output was checked"
 echo "arm-flow checks passed"

@@ -151,6 +151,10 @@ TOML
 "$U" sweep run in/sweep --threads 2 >/dev/null 2>in.err || { cat in.err; fail "the tiny sweep"; }
 run=$(find in/sweep/points -mindepth 1 -maxdepth 1 -type d | sort | head -n 1)
 [ -f "$run/orbits.h5" ] || fail "no orbits.h5 kept in $run"
+# A sweep point's scenario holds its galaxy inline (no model file): the figures that need the
+# model take it from there (they refused to draw, though listed as available).
+"$U" draw "$run" --figure rotation --figure face-on --format png -o in/model-figures >/dev/null ||
+  fail "draw rotation and face-on from a sweep point's folder"
 cp -a "$run" in/run2
 # A run without gas, 3000 stars for 10 Myr (tests/cli/tiny-stars.toml), six snapshots: for
 # integrate and observe.
