@@ -67,6 +67,15 @@ void AtomicFile::commit() {
   path_.commit(ok && !out_.fail());
 }
 
+void rethrow_with_path(const std::string& what, const std::string& temporary,
+                       const std::string& target) {
+  std::string m = what;
+  for (auto at = m.find(temporary); at != std::string::npos;
+       at = m.find(temporary, at + target.size()))
+    m.replace(at, temporary.size(), target);
+  throw InputError(m);
+}
+
 void write_files_atomically(const std::vector<StagedWrite>& files) {
   std::vector<std::unique_ptr<AtomicPath>> staged; // each removes its temporary unless committed
   for (const auto& [target, write] : files) {
@@ -74,10 +83,7 @@ void write_files_atomically(const std::vector<StagedWrite>& files) {
     try {
       write(tmp);
     } catch (const InputError& e) {
-      std::string m = e.what();
-      for (auto at = m.find(tmp); at != std::string::npos; at = m.find(tmp, at + target.size()))
-        m.replace(at, tmp.size(), target);
-      throw InputError(m);
+      rethrow_with_path(e.what(), tmp, target);
     }
   }
   for (auto& p : staged)

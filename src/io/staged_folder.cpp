@@ -8,17 +8,6 @@
 
 namespace undertow::io {
 
-namespace {
-// An error met while writing into a temporary folder, told with the paths the user asked for.
-[[noreturn]] void rethrow_for(const std::string& what, const std::string& tmp,
-                              const std::string& out) {
-  std::string m = what;
-  for (auto at = m.find(tmp); at != std::string::npos; at = m.find(tmp, at + out.size()))
-    m.replace(at, tmp.size(), out);
-  throw InputError(m);
-}
-} // namespace
-
 void check_replaceable_folder(const std::string& folder, const std::string& marker,
                               const std::string& what) {
   namespace fs = std::filesystem;
@@ -58,7 +47,7 @@ write_folder_atomically(const std::string& folder, const std::string& marker,
     try {
       throw;
     } catch (const InputError& e) {
-      rethrow_for(e.what(), tmp.string(), out.string());
+      rethrow_with_path(e.what(), tmp.string(), out.string());
     }
   }
   return files;
@@ -92,7 +81,7 @@ write_files_together(const std::string& folder,
     try {
       throw;
     } catch (const InputError& e) {
-      rethrow_for(e.what(), tmp.string(), out.string());
+      rethrow_with_path(e.what(), tmp.string(), out.string());
     }
   }
   return files;

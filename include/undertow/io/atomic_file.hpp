@@ -54,6 +54,11 @@ private:
   std::ofstream out_;
 };
 
+// An error met while writing a temporary (file or folder), thrown again as an InputError told with
+// the path the user asked for.
+[[noreturn]] void rethrow_with_path(const std::string& what, const std::string& temporary,
+                                    const std::string& target);
+
 // Output files in different places that appear all together or not at all: each writer writes
 // its file at the path it is given (a temporary beside its target), and only when every one is
 // written are they renamed into place; an error names the target, not the temporary.
