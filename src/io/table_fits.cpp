@@ -58,8 +58,11 @@ public:
   fitsfile* file() { return f_; }
   void check(int) {
     if (status_ == 0) return;
+    // CFITSIO reports a failed write (a full disk among others) as WRITE_ERROR: say what the
+    // other formats say
     throw InputError(SourcePlace{target_, 0, 0, {}},
-                     "cannot write the FITS table: " + fits_status_text(status_));
+                     "cannot write the FITS table: " + fits_status_text(status_) +
+                         (status_ == WRITE_ERROR ? " (disk full?)" : ""));
   }
   int* status() { return &status_; }
   void close() {

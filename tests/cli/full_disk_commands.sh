@@ -4,10 +4,10 @@
 # made to fail in turn, as tests/cli/full_disk_checks.sh does for the whole run and the sweep: the
 # command's outputs go to a tmpfs whose room is set, attempt after attempt, to just below what its
 # outputs up to a given file need (the files of an uninterrupted run in the order they were
-# written). Each failure must give exit status 2, exactly one line starting with "undertow: ", no
-# temporary anywhere on the tmpfs, and no output of the command left behind, unless it is a
-# documented finished stage and the message says it is kept (the parts of an integration, the
-# tables of a fit beside which a figure failed). With room, the result is byte-identical to the
+# written). Each failure must give exit status 2, exactly one line starting with "undertow: " that
+# says the disk may be full, no temporary anywhere on the tmpfs, and no output of the command left
+# behind, unless it is a documented finished stage and the message says it is kept (the parts of
+# an integration, the tables of a fit beside which a figure failed). With room, the result is byte-identical to the
 # uninterrupted one. Every problem is listed (command, room, exit status, message, files left) and
 # the script fails at the end if there was any. Needs root (mount).
 # Usage: full_disk_commands.sh UNDERTOW SRC WORK
@@ -108,6 +108,7 @@ check() { # label, mode, kept, max, command...
     [ "$rc" = 2 ] || why+=" exit status $rc, not 2;"
     n=$(grep -c '^undertow: ' step.err || true)
     [ "$n" = 1 ] || why+=" $n lines start with 'undertow: ', not 1;"
+    grep -q '^undertow: .*disk full' step.err || why+=" the message does not say the disk may be full;"
     [ -z "$(debris disk)" ] || why+=" temporaries left;"
     left=$(left_behind)
     if [ -n "$left" ]; then
