@@ -16,14 +16,19 @@ cd "$W"
 export SOURCE_DATE_EPOCH=1800000000 # identical bytes from run to run (docs/snapshot-format.md)
 source "$SRC/tests/cli/full_disk_lib.sh"
 room() { mount -o remount,size="$1" disk; }
+# Two pages that stay on the disk: tmpfs takes size=0 as no limit, and a cut may give no room.
+filler() { head -c 8192 /dev/zero >disk/filler; }
+filler
 
-# Sizes (KiB) at which the writes of an uninterrupted run in FOLDER fail in turn: for each file in
-# the order written, the room the files before it take plus half of its own, rounded up to whole
-# pages (tmpfs counts pages); at most 80 of them, evenly spread.
+# Sizes (KiB, the filler's pages included) at which the writes of an uninterrupted run in FOLDER
+# fail in turn: for each file in the order written, the room the files before it take plus half
+# of its own pages, rounded down (a one-page file gets no room at all: tmpfs counts pages); at
+# most 80 of them, evenly spread. The order written is the order of the inode numbers, which a
+# tmpfs hands out one after the other (file times are too coarse: a dozen small files share one).
 cuts() {
-  find "$1" -type f -printf '%T@ %b\n' | sort -n | awk '
-    { kib = int(($2 * 512 + 4095) / 4096) * 4; half = int((kib / 2 + 3) / 4) * 4; if (half < 4) half = 4
-      c = used + half; if (c != last) cut[n++] = c; last = c; used += kib }
+  find "$1" -type f -printf '%i %b\n' | sort -n | awk '
+    { kib = int(($2 * 512 + 4095) / 4096) * 4; half = int(kib / 8) * 4
+      c = 8 + used + half; if (n == 0 || c != last) cut[n++] = c; last = c; used += kib }
     END { m = n < 80 ? n : 80; for (k = 0; k < m; k++) print cut[int(k * (n - 1) / (m > 1 ? m - 1 : 1))] }' |
     uniq
 }
@@ -42,7 +47,7 @@ fill_in_turn() { # label, check-folder, cuts file, command...
   local label=$1 folder=$2 list=$3 s rc
   shift 3
   for s in $(cat "$list") 262144; do
-    [ "$s" -gt "$(($(used_kib) + 4))" ] || continue
+    [ "$s" -ge "$(used_kib)" ] || continue
     room "${s}k"
     rc=0
     "$@" >step.out 2>step.err || rc=$?
@@ -79,6 +84,7 @@ sort -u failed-writes.txt | sed 's/^/  /'
 # 2. The sweep: its plan, points and gathered tables.
 rm -rf disk/*
 room 256m
+filler
 "$U" sweep plan "$SRC/tests/cli/tiny-sweep.toml" -o disk/sref >/dev/null
 "$U" sweep run disk/sref --threads 2 >sref.out 2>sref.err || { cat sref.err; fail "the sweep with room to spare"; }
 "$U" sweep gather disk/sref >/dev/null
@@ -86,8 +92,9 @@ cuts disk/sref >sweep-cuts.txt
 cp -a disk/sref sref && rm -rf disk/sref
 : >failed-writes.txt
 sweep() {
-  [ -f disk/s/plan.toml ] || "$U" sweep plan "$SRC/tests/cli/tiny-sweep.toml" -o disk/s
-  "$U" sweep run disk/s --threads 2 && "$U" sweep gather disk/s
+  # (called under ||, so without set -e: each step only after the one before it worked)
+  { [ -f disk/s/plan.toml ] || "$U" sweep plan "$SRC/tests/cli/tiny-sweep.toml" -o disk/s; } &&
+    "$U" sweep run disk/s --threads 2 && "$U" sweep gather disk/s
 }
 fill_in_turn "sweep" disk/s sweep-cuts.txt sweep
 diff -r sref/points disk/s/points >/dev/null || { diff -rq sref/points disk/s/points | head; fail "sweep: the points after the failures differ"; }
