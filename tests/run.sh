@@ -4,7 +4,9 @@ set -euo pipefail
 here=$(cd "$(dirname "$0")/.." && pwd)
 cd "$here"
 bash cmake/install-deps.sh
-cmake -S . -B build-test -G Ninja -DCMAKE_BUILD_TYPE=Release -DUNDERTOW_WERROR=ON >/dev/null
+# The default suite and the statistical calibration tests (UNDERTOW_CALIBRATION_TESTS).
+cmake -S . -B build-test -G Ninja -DCMAKE_BUILD_TYPE=Release -DUNDERTOW_WERROR=ON \
+  -DUNDERTOW_CALIBRATION_TESTS=ON >/dev/null
 cmake --build build-test
 # Two test processes share the two cores: OpenMP threads must sleep, not spin, while they wait.
 export OMP_WAIT_POLICY=PASSIVE
