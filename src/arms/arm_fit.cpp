@@ -289,9 +289,10 @@ std::string arm_summary(const ArmFit& f, const ArmFitSettings& s) {
     if (c.ln_bayes_factor_independent < std::log(3.0))
       o << "  regular spacing is not preferred over independent segments (Bayes factor below "
            "3)\n";
-    o << "  at m = " << c.best_m << ": shared pitch " << fmt(c.pitch_deg.median, 1) << " −"
-      << fmt(c.pitch_deg.median - c.pitch_deg.lo, 1) << " +"
-      << fmt(c.pitch_deg.hi - c.pitch_deg.median, 1)
+    // two decimals: the shared pitch is often known to a tenth of a degree or better
+    o << "  at m = " << c.best_m << ": shared pitch " << fmt(c.pitch_deg.median, 2) << " −"
+      << fmt(c.pitch_deg.median - c.pitch_deg.lo, 2) << " +"
+      << fmt(c.pitch_deg.hi - c.pitch_deg.median, 2)
       << " deg; an arm crosses R = " << fmt(s.nominal().r0_kpc, 2)
       << " kpc at ψ = " << fmt(c.arm_azimuth_deg, 1) << " ± " << fmt(c.arm_azimuth_sigma_deg, 1)
       << " deg (modulo " << fmt(360.0 / c.best_m, 1) << " deg)\n";
@@ -352,8 +353,12 @@ std::vector<std::string> write_arm_outputs(const std::string& folder, const ArmF
         io::write_table_group(file, "membership", membership_table(f));
         const auto best = io::h5::create_group(file, "preferred");
         io::h5::set_attr(file, best.id(), "arms", std::int64_t(f.count->best_m));
-        io::h5::set_attr(file, best.id(), "pitch_deg", f.count->pitch_deg.median);
+        const auto& p = f.count->pitch_deg;
+        io::h5::set_attr(file, best.id(), "pitch_deg", p.median);
+        io::h5::set_attr(file, best.id(), "pitch_minus_deg", p.median - p.lo);
+        io::h5::set_attr(file, best.id(), "pitch_plus_deg", p.hi - p.median);
         io::h5::set_attr(file, best.id(), "arm_azimuth_deg", f.count->arm_azimuth_deg);
+        io::h5::set_attr(file, best.id(), "arm_azimuth_sigma_deg", f.count->arm_azimuth_sigma_deg);
         io::h5::set_attr(file, best.id(), "arm_azimuth_radius_kpc", s.nominal().r0_kpc);
         io::h5::set_attr(file, best.id(), "ln_bayes_factor_next", f.count->ln_bayes_factor_next);
       }
