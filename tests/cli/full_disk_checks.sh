@@ -16,22 +16,11 @@ cd "$W"
 export SOURCE_DATE_EPOCH=1800000000 # identical bytes from run to run (docs/snapshot-format.md)
 source "$SRC/tests/cli/full_disk_lib.sh"
 room() { mount -o remount,size="$1" disk; }
-# Two pages that stay on the disk: tmpfs takes size=0 as no limit, and a cut may give no room.
-filler() { head -c 8192 /dev/zero >disk/filler; }
 filler
+# The cuts of the files of an uninterrupted run in FOLDER, the filler's 8 KiB included, at most 80
+# (full_disk_lib.sh).
+cuts() { find "$1" -type f | cut_sizes 80 0 8; }
 
-# Sizes (KiB, the filler's pages included) at which the writes of an uninterrupted run in FOLDER
-# fail in turn: for each file in the order written, the room the files before it take plus half
-# of its own pages, rounded down (a one-page file gets no room at all: tmpfs counts pages); at
-# most 80 of them, evenly spread. The order written is the order of the inode numbers, which a
-# tmpfs hands out one after the other (file times are too coarse: a dozen small files share one).
-cuts() {
-  find "$1" -type f -printf '%i %b\n' | sort -n | awk '
-    { kib = int(($2 * 512 + 4095) / 4096) * 4; half = int(kib / 8) * 4
-      c = 8 + used + half; if (n == 0 || c != last) cut[n++] = c; last = c; used += kib }
-    END { m = n < 80 ? n : 80; for (k = 0; k < m; k++) print cut[int(k * (n - 1) / (m > 1 ? m - 1 : 1))] }' |
-    uniq
-}
 # A failed command: exit status 2 (a sweep whose points failed: 1, docs/sweeps.md), exactly one
 # error line, nothing half-written.
 failed_cleanly() { # what, rc, stderr file, folder

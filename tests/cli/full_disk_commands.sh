@@ -7,8 +7,8 @@
 # written). Each failure must give exit status 2, exactly one line starting with "undertow: " that
 # says the disk may be full, no temporary anywhere on the tmpfs, and no output of the command left
 # behind, unless it is a documented finished stage and the message says it is kept (the parts of
-# an integration, the tables of a fit beside which a figure failed). With room, the result is byte-identical to the
-# uninterrupted one. Every problem is listed (command, room, exit status, message, files left) and
+# an integration, the tables of a fit beside which a figure failed). With room, the result is
+# byte-identical to the uninterrupted one. Every problem is listed (command, room, exit status, message, files left) and
 # the script fails at the end if there was any. Needs root (mount).
 # Usage: full_disk_commands.sh UNDERTOW SRC WORK
 set -euo pipefail
@@ -22,26 +22,11 @@ W=$(realpath "$W")
 cd "$W"
 export SOURCE_DATE_EPOCH=1800000000 # identical bytes from run to run (docs/snapshot-format.md)
 source "$SRC/tests/cli/full_disk_lib.sh"
-# Two pages that stay on the disk: tmpfs takes size=0 as no limit, and a cut may give no room.
-head -c 8192 /dev/zero >disk/filler
+filler
 room() { mount -o remount,size="$1" disk || fail "cannot give the tmpfs $1"; }
 
-# Sizes (KiB, beyond what the disk held before the command) at which the writes of an
-# uninterrupted run fail in turn: for each new file (paths on stdin), in the order written, the room
-# the files before it take plus half of its own pages, rounded down (a one-page file gets no room
-# at all: tmpfs counts pages); at most MAX of them, evenly spread. The order written is the order
-# of the inode numbers, which a tmpfs hands out one after the other (file times are too coarse: a
-# dozen small tables share one). With EVEN, EVEN more sizes spread evenly up to twice the outputs:
-# for the files a command writes and removes again (the parts of an integration), which the
-# finished folder does not show.
-cuts() { # max, even
-  xargs -r -d '\n' stat -c '%i %b %F' | grep ' regular' | sort -n | awk -v max="$1" -v even="$2" '
-    { kib = int(($2 * 512 + 4095) / 4096) * 4; half = int(kib / 8) * 4
-      c = used + half; if (n == 0 || c != last) cut[n++] = c; last = c; used += kib }
-    END { m = n < max ? n : max; for (k = 0; k < m; k++) print cut[int(k * (n - 1) / (m > 1 ? m - 1 : 1))]
-          for (k = 0; k < even; k++) print int(2 * used * k / even / 4) * 4 }' |
-    sort -n | uniq
-}
+# The cuts: sizes beyond what the disk held before the command (full_disk_lib.sh).
+cuts() { cut_sizes "$1" "$2" 0; } # max, even
 
 # The outputs go to disk/o. SETUP (a function name) puts there what a command works on (nothing
 # for most); base is then the room the disk holds before the command.
